@@ -1,0 +1,19 @@
+//! arithvec: golden-model test vectors, result-log checking and corner-class coverage for
+//! arithmetic datapaths (adders, subtractors, add/sub units, negators, incrementers,
+//! comparators) in five number encodings.
+//!
+//! The library is the whole tool; the `arithvec` binary only parses arguments and calls it.
+//! Modules are private; their public types are re-exported here.
+
+#![deny(missing_docs)]
+
+mod error;
+mod spec;
+mod word;
+
+pub use error::{Error, ErrorKind, Problem, Result};
+pub use spec::{
+    is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
+    NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
+};
+pub use word::{hex_digits, Word, MAX_WIDTH};

@@ -1,0 +1,1138 @@
+//! The operation spec: what unit is under test, in which encoding, with which ports and flag
+//! conventions, and how many random vectors to draw.
+//!
+//! This module owns the spec types, the TOML reader and its validation. Validation collects
+//! every problem in the file (unknown keys, wrong types, ports the operation does not have,
+//! conventions that would have no effect) and reports each with its line and key. Nothing here
+//! does arithmetic; `model` reads a validated [`Spec`].
+
+use std::collections::BTreeMap;
+use std::fmt;
+
+use serde::Serialize;
+use toml::de::{DeTable, DeValue};
+use toml::Spanned;
+
+use crate::error::{Error, Problem, Result};
+use crate::word::MAX_WIDTH;
+
+/// The arithmetic operation the unit performs.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+#[non_exhaustive]
+pub enum Operation {
+    /// `a + b + carry_in`.
+    Add,
+    /// `a - b - borrow_in`.
+    Sub,
+    /// `a + b + carry_in` when `mode` is 0, `a - b - borrow_in` when `mode` is 1.
+    AddSub,
+    /// `-a`.
+    Negate,
+    /// `a + 1`.
+    Increment,
+    /// `a - 1`.
+    Decrement,
+    /// Orders `a` against `b` by value under the encoding.
+    Compare,
+}
+
+impl Operation {
+    /// Every operation, in documentation order.
+    pub const ALL: [Operation; 7] = [
+        Operation::Add,
+        Operation::Sub,
+        Operation::AddSub,
+        Operation::Negate,
+        Operation::Increment,
+        Operation::Decrement,
+        Operation::Compare,
+    ];
+
+    /// The spec-file spelling.
+    pub fn name(self) -> &'static str {
+        match self {
+            Operation::Add => "add",
+            Operation::Sub => "sub",
+            Operation::AddSub => "addsub",
+            Operation::Negate => "negate",
+            Operation::Increment => "increment",
+            Operation::Decrement => "decrement",
+            Operation::Compare => "compare",
+        }
+    }
+
+    /// True for operations with a `b` operand.
+    pub fn is_binary(self) -> bool {
+        matches!(
+            self,
+            Operation::Add | Operation::Sub | Operation::AddSub | Operation::Compare
+        )
+    }
+
+    /// The signals this operation can have.
+    pub fn signals(self) -> &'static [Signal] {
+        use Signal::*;
+        match self {
+            Operation::Add | Operation::Sub => &[
+                A, B, CarryIn, Result, CarryOut, Overflow, Zero, Negative,
+            ],
+            Operation::AddSub => &[
+                A, B, CarryIn, Mode, Result, CarryOut, Overflow, Zero, Negative,
+            ],
+            Operation::Negate | Operation::Increment | Operation::Decrement => {
+                &[A, Result, CarryOut, Overflow, Zero, Negative]
+            }
+            Operation::Compare => &[A, B, Less, Equal, Greater],
+        }
+    }
+}
+
+impl fmt::Display for Operation {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// How an N-bit pattern stands for a number.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+#[non_exhaustive]
+pub enum Encoding {
+    /// 0 .. 2^N - 1.
+    Unsigned,
+    /// Two's complement, -2^(N-1) .. 2^(N-1) - 1.
+    Twos,
+    /// One's complement, -(2^(N-1) - 1) .. 2^(N-1) - 1, with +0 and -0.
+    Ones,
+    /// Sign-magnitude, -(2^(N-1) - 1) .. 2^(N-1) - 1, with +0 and -0.
+    #[serde(rename = "signmag")]
+    SignMagnitude,
+    /// Offset binary (excess-2^(N-1)), -2^(N-1) .. 2^(N-1) - 1.
+    Offset,
+}
+
+impl Encoding {
+    /// Every encoding, in documentation order.
+    pub const ALL: [Encoding; 5] = [
+        Encoding::Unsigned,
+        Encoding::Twos,
+        Encoding::Ones,
+        Encoding::SignMagnitude,
+        Encoding::Offset,
+    ];
+
+    /// The spec-file spelling.
+    pub fn name(self) -> &'static str {
+        match self {
+            Encoding::Unsigned => "unsigned",
+            Encoding::Twos => "twos",
+            Encoding::Ones => "ones",
+            Encoding::SignMagnitude => "signmag",
+            Encoding::Offset => "offset",
+        }
+    }
+
+    /// True for the encodings with two zero codes.
+    pub fn has_negative_zero(self) -> bool {
+        matches!(self, Encoding::Ones | Encoding::SignMagnitude)
+    }
+
+    /// True for the encodings whose datapath is a plain N-bit binary adder (after, for offset
+    /// binary, inverting the top bit of each operand and of the result).
+    pub fn is_binary_datapath(self) -> bool {
+        matches!(self, Encoding::Unsigned | Encoding::Twos | Encoding::Offset)
+    }
+}
+
+impl fmt::Display for Encoding {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// One input or output of the unit. The names are arithvec's; the spec's `[ports]` table maps
+/// them to the DUT's own names.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Signal {
+    /// First operand.
+    A,
+    /// Second operand.
+    B,
+    /// Carry-in (add) or borrow-in (sub), per `conventions.carry_in`.
+    CarryIn,
+    /// Add/subtract select of an addsub unit: 0 = add, 1 = subtract.
+    Mode,
+    /// The N-bit result.
+    Result,
+    /// Carry-out or borrow-out, per `conventions.carry_out`.
+    CarryOut,
+    /// The true result is not representable.
+    Overflow,
+    /// The result is zero (per `conventions.zero_flag`).
+    Zero,
+    /// The result's sign bit is set.
+    Negative,
+    /// Compare: a < b.
+    Less,
+    /// Compare: a == b.
+    Equal,
+    /// Compare: a > b.
+    Greater,
+}
+
+impl Signal {
+    /// Every signal, in file-layout order: inputs first, then outputs.
+    pub const ALL: [Signal; 12] = [
+        Signal::A,
+        Signal::B,
+        Signal::CarryIn,
+        Signal::Mode,
+        Signal::Result,
+        Signal::CarryOut,
+        Signal::Overflow,
+        Signal::Zero,
+        Signal::Negative,
+        Signal::Less,
+        Signal::Equal,
+        Signal::Greater,
+    ];
+
+    /// The key used in `[ports]`.
+    pub fn key(self) -> &'static str {
+        match self {
+            Signal::A => "a",
+            Signal::B => "b",
+            Signal::CarryIn => "carry_in",
+            Signal::Mode => "mode",
+            Signal::Result => "result",
+            Signal::CarryOut => "carry_out",
+            Signal::Overflow => "overflow",
+            Signal::Zero => "zero",
+            Signal::Negative => "negative",
+            Signal::Less => "less",
+            Signal::Equal => "equal",
+            Signal::Greater => "greater",
+        }
+    }
+
+    /// Looks a signal up by its `[ports]` key.
+    pub fn from_key(key: &str) -> Option<Signal> {
+        Signal::ALL.into_iter().find(|s| s.key() == key)
+    }
+
+    /// True for inputs of the unit.
+    pub fn is_input(self) -> bool {
+        matches!(
+            self,
+            Signal::A | Signal::B | Signal::CarryIn | Signal::Mode
+        )
+    }
+
+    /// The signal's width in bits for a unit of operand width `width`.
+    pub fn width(self, width: u32) -> u32 {
+        match self {
+            Signal::A | Signal::B | Signal::Result => width,
+            _ => 1,
+        }
+    }
+}
+
+/// What a subtracting unit's carry-out port reports.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum CarryOutConvention {
+    /// 1 = a borrow was needed (the default).
+    Borrow,
+    /// The raw adder carry of a + ~b + 1, which is NOT borrow.
+    Carry,
+}
+
+/// What a subtracting unit's carry-in port means.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum CarryInConvention {
+    /// The input is a borrow and is subtracted (the default).
+    Borrow,
+    /// The input is the raw adder carry-in of a + ~b + c, so 1 means "no borrow".
+    Carry,
+}
+
+/// Which zero a one's-complement or sign-magnitude unit produces.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum NegativeZero {
+    /// Bit-exact with the usual datapath (the default): end-around-carry adder for one's
+    /// complement, the magnitude adder/subtractor without a zero fix-up for sign-magnitude.
+    Hardware,
+    /// Every zero result is +0.
+    Positive,
+    /// Either zero is accepted when the result's value is zero.
+    Either,
+}
+
+/// When the zero flag is set.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum ZeroFlag {
+    /// When the result's value is zero: +0 and -0 both set it (the default).
+    Value,
+    /// Only when every result bit is 0.
+    Bits,
+}
+
+/// How random operands are drawn.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Mix {
+    /// Every operand bit pattern equally likely (the default).
+    Uniform,
+    /// A share of operands (`corner_share` percent) drawn from the special values and their
+    /// neighbourhoods, the rest uniform.
+    Corner,
+}
+
+/// The spec's port names, by signal.
+#[derive(Debug, Clone, PartialEq, Eq, Default, Serialize)]
+pub struct Ports {
+    names: BTreeMap<Signal, String>,
+}
+
+impl Ports {
+    /// The DUT's name for `signal`, if the DUT has it.
+    pub fn get(&self, signal: Signal) -> Option<&str> {
+        self.names.get(&signal).map(String::as_str)
+    }
+
+    /// Adds or replaces a port name.
+    pub fn set(&mut self, signal: Signal, name: impl Into<String>) {
+        self.names.insert(signal, name.into());
+    }
+}
+
+/// Flag and zero conventions.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+pub struct Conventions {
+    /// See [`CarryOutConvention`].
+    pub carry_out: CarryOutConvention,
+    /// See [`CarryInConvention`].
+    pub carry_in: CarryInConvention,
+    /// See [`NegativeZero`].
+    pub negative_zero: NegativeZero,
+    /// See [`ZeroFlag`].
+    pub zero_flag: ZeroFlag,
+}
+
+impl Default for Conventions {
+    fn default() -> Conventions {
+        Conventions {
+            carry_out: CarryOutConvention::Borrow,
+            carry_in: CarryInConvention::Borrow,
+            negative_zero: NegativeZero::Hardware,
+            zero_flag: ZeroFlag::Value,
+        }
+    }
+}
+
+/// The `[random]` table.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub struct RandomSettings {
+    /// Number of random vectors after the directed ones (default 1000).
+    pub count: u64,
+    /// ChaCha seed (default 1).
+    pub seed: u64,
+    /// Operand distribution (default uniform).
+    pub mix: Mix,
+    /// Percent of operands drawn from specials when `mix = "corner"` (default 25).
+    pub corner_share: u32,
+}
+
+impl Default for RandomSettings {
+    fn default() -> RandomSettings {
+        RandomSettings {
+            count: 1000,
+            seed: 1,
+            mix: Mix::Uniform,
+            corner_share: 25,
+        }
+    }
+}
+
+/// A Verilog parameter / VHDL generic value.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+#[serde(untagged)]
+pub enum ParamValue {
+    /// An integer.
+    Int(i64),
+    /// A string (emitted as a string literal).
+    Str(String),
+}
+
+/// The `[dut]` table: the module or entity to instantiate.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct Dut {
+    /// Module (Verilog) or entity (VHDL) name.
+    pub module: String,
+    /// Parameters / generics, by name.
+    pub parameters: BTreeMap<String, ParamValue>,
+}
+
+/// A validated operation spec.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct Spec {
+    /// Unit name used in reports and file headers.
+    pub name: String,
+    /// The operation.
+    pub operation: Operation,
+    /// Bits per operand, 1..=512.
+    pub width: u32,
+    /// The number encoding.
+    pub encoding: Encoding,
+    /// The DUT's port names.
+    pub ports: Ports,
+    /// Flag conventions.
+    pub conventions: Conventions,
+    /// Random-vector settings.
+    pub random: RandomSettings,
+    /// The DUT to instantiate in testbenches and netlists, if given.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub dut: Option<Dut>,
+}
+
+impl Spec {
+    /// Reads and validates a spec from TOML text; `file` names it in error messages.
+    pub fn parse(text: &str, file: &str) -> Result<Spec> {
+        Reader::new(text, file).read()
+    }
+
+    /// The input signals this spec's unit has, in file-layout order, with port names.
+    pub fn inputs(&self) -> Vec<(Signal, &str)> {
+        self.fields(true)
+    }
+
+    /// The output signals this spec's unit has, in file-layout order, with port names.
+    pub fn outputs(&self) -> Vec<(Signal, &str)> {
+        self.fields(false)
+    }
+
+    fn fields(&self, inputs: bool) -> Vec<(Signal, &str)> {
+        Signal::ALL
+            .into_iter()
+            .filter(|s| s.is_input() == inputs)
+            .filter_map(|s| self.ports.get(s).map(|p| (s, p)))
+            .collect()
+    }
+
+    /// True when the unit has `signal`.
+    pub fn has(&self, signal: Signal) -> bool {
+        self.ports.get(signal).is_some()
+    }
+
+    /// True when the operation subtracts in some mode (and so the borrow conventions apply).
+    pub fn subtracts(&self) -> bool {
+        matches!(
+            self.operation,
+            Operation::Sub | Operation::AddSub | Operation::Negate | Operation::Decrement
+        )
+    }
+
+    /// The normalised spec as canonical JSON (every default filled in, fixed key order).
+    pub fn normalised_json(&self) -> String {
+        serde_json::to_string(self).expect("spec serialises")
+    }
+
+    /// A minimal spec with default ports for `operation` (every signal the operation can have
+    /// under `encoding`, named by its key), for tests and examples.
+    pub fn with_defaults(operation: Operation, encoding: Encoding, width: u32) -> Spec {
+        let mut ports = Ports::default();
+        for &s in operation.signals() {
+            if signal_allowed(s, operation, encoding).is_ok() {
+                ports.set(s, s.key());
+            }
+        }
+        Spec {
+            name: format!("{}_{}_{}", operation.name(), encoding.name(), width),
+            operation,
+            width,
+            encoding,
+            ports,
+            conventions: Conventions::default(),
+            random: RandomSettings::default(),
+            dut: None,
+        }
+    }
+}
+
+/// Whether `signal` makes sense under `encoding` (the operation's own list aside).
+fn signal_allowed(
+    signal: Signal,
+    operation: Operation,
+    encoding: Encoding,
+) -> std::result::Result<(), String> {
+    match (signal, encoding) {
+        (Signal::CarryOut, Encoding::Ones) if operation == Operation::Negate => Err(
+            "a one's-complement negator is a row of inverters with no carry-out; remove it"
+                .to_string(),
+        ),
+        (Signal::CarryIn, Encoding::Ones | Encoding::SignMagnitude) => Err(format!(
+            "a carry_in port is defined for unsigned, twos and offset units only (a {} \
+             datapath has no plain carry-in); remove it",
+            encoding.name()
+        )),
+        (Signal::CarryOut, Encoding::SignMagnitude) => Err(
+            "a sign-magnitude unit has no carry-out of its own; use the overflow port for \
+             magnitude overflow"
+                .to_string(),
+        ),
+        _ => Ok(()),
+    }
+}
+
+/// Walks the parsed TOML document, collecting problems.
+struct Reader<'a> {
+    text: &'a str,
+    file: &'a str,
+    problems: Vec<Problem>,
+}
+
+type Table<'i> = DeTable<'i>;
+
+impl<'a> Reader<'a> {
+    fn new(text: &'a str, file: &'a str) -> Reader<'a> {
+        Reader {
+            text,
+            file,
+            problems: Vec::new(),
+        }
+    }
+
+    fn line_of(&self, span: std::ops::Range<usize>) -> usize {
+        let end = span.start.min(self.text.len());
+        self.text.as_bytes()[..end]
+            .iter()
+            .filter(|&&b| b == b'\n')
+            .count()
+            + 1
+    }
+
+    fn problem(&mut self, span: std::ops::Range<usize>, key: &str, message: impl Into<String>) {
+        let line = self.line_of(span);
+        self.problems.push(
+            Problem::new(self.file, message)
+                .at_line(line)
+                .field(key.to_string()),
+        );
+    }
+
+    fn read(mut self) -> Result<Spec> {
+        let doc = match DeTable::parse(self.text) {
+            Ok(doc) => doc,
+            Err(e) => {
+                let line = e.span().map(|s| self.line_of(s));
+                let mut p = Problem::new(self.file, format!("not valid TOML: {}", e.message()));
+                p.line = line;
+                return Err(Error::problem(p));
+            }
+        };
+        let spec = self.read_root(doc.get_ref());
+        if self.problems.is_empty() {
+            Ok(spec.expect("no problems means a spec"))
+        } else {
+            self.problems.sort_by_key(|p| p.line);
+            Err(Error::input(self.problems))
+        }
+    }
+
+    fn check_keys(&mut self, table: &Table<'_>, prefix: &str, allowed: &[&str]) {
+        for (k, _) in table.iter() {
+            if !allowed.contains(&k.get_ref().as_ref()) {
+                let key = format!("{prefix}{}", k.get_ref());
+                self.problem(
+                    k.span(),
+                    &key,
+                    format!("unknown key; expected one of: {}", allowed.join(", ")),
+                );
+            }
+        }
+    }
+
+    fn get<'t, 'i>(
+        table: &'t Table<'i>,
+        key: &str,
+    ) -> Option<(&'t Spanned<toml::de::DeString<'i>>, &'t Spanned<DeValue<'i>>)> {
+        table.get_key_value(key)
+    }
+
+    fn string(&mut self, table: &Table<'_>, prefix: &str, key: &str) -> Option<(String, usize)> {
+        let (_, v) = Self::get(table, key)?;
+        match v.get_ref() {
+            DeValue::String(s) => Some((s.to_string(), v.span().start)),
+            _ => {
+                self.problem(v.span(), &format!("{prefix}{key}"), "expected a string");
+                None
+            }
+        }
+    }
+
+    fn integer(&mut self, table: &Table<'_>, prefix: &str, key: &str) -> Option<(i128, usize)> {
+        let (_, v) = Self::get(table, key)?;
+        match v.get_ref() {
+            DeValue::Integer(i) => {
+                let digits: String = i.as_str().chars().filter(|&c| c != '_').collect();
+                let (neg, body) = match digits.strip_prefix('-') {
+                    Some(rest) => (true, rest.to_string()),
+                    None => (false, digits.trim_start_matches('+').to_string()),
+                };
+                let body = body
+                    .trim_start_matches("0x")
+                    .trim_start_matches("0o")
+                    .trim_start_matches("0b");
+                match i128::from_str_radix(body, i.radix()) {
+                    Ok(n) => Some((if neg { -n } else { n }, v.span().start)),
+                    Err(_) => {
+                        self.problem(v.span(), &format!("{prefix}{key}"), "integer out of range");
+                        None
+                    }
+                }
+            }
+            _ => {
+                self.problem(v.span(), &format!("{prefix}{key}"), "expected an integer");
+                None
+            }
+        }
+    }
+
+    fn table<'t, 'i>(&mut self, root: &'t Table<'i>, key: &str) -> Option<&'t Table<'i>> {
+        let (_, v) = Self::get(root, key)?;
+        match v.get_ref() {
+            DeValue::Table(t) => Some(t),
+            _ => {
+                self.problem(v.span(), key, "expected a table");
+                None
+            }
+        }
+    }
+
+    fn choice<T: Copy>(
+        &mut self,
+        table: &Table<'_>,
+        prefix: &str,
+        key: &str,
+        options: &[(&str, T)],
+    ) -> Option<(T, usize)> {
+        let (s, at) = self.string(table, prefix, key)?;
+        match options.iter().find(|(name, _)| *name == s) {
+            Some(&(_, v)) => Some((v, at)),
+            None => {
+                let names: Vec<&str> = options.iter().map(|(n, _)| *n).collect();
+                self.problem(
+                    at..at,
+                    &format!("{prefix}{key}"),
+                    format!("unknown value \"{s}\"; expected one of: {}", names.join(", ")),
+                );
+                None
+            }
+        }
+    }
+
+    fn read_root(&mut self, root: &Table<'_>) -> Option<Spec> {
+        self.check_keys(
+            root,
+            "",
+            &[
+                "name",
+                "operation",
+                "width",
+                "encoding",
+                "ports",
+                "conventions",
+                "random",
+                "dut",
+            ],
+        );
+        let name = self.string(root, "", "name");
+        if let Some((n, at)) = &name {
+            if n.is_empty()
+                || !n
+                    .chars()
+                    .all(|c| c.is_ascii_alphanumeric() || matches!(c, '_' | '-' | '.'))
+            {
+                self.problem(
+                    *at..*at,
+                    "name",
+                    "use letters, digits, '_', '-' and '.' only (it appears in file headers)",
+                );
+            }
+        }
+        let operation = self.choice(
+            root,
+            "",
+            "operation",
+            &Operation::ALL.map(|o| (o.name(), o)),
+        );
+        let encoding = self.choice(root, "", "encoding", &Encoding::ALL.map(|e| (e.name(), e)));
+        let width = self.integer(root, "", "width");
+        if let Some((w, at)) = width {
+            if !(1..=MAX_WIDTH as i128).contains(&w) {
+                self.problem(at..at, "width", format!("must be 1..={MAX_WIDTH}, got {w}"));
+            }
+        }
+        for (key, got) in [
+            ("name", name.is_some()),
+            ("operation", operation.is_some()),
+            ("encoding", encoding.is_some()),
+            ("width", width.is_some()),
+        ] {
+            if !got && Self::get(root, key).is_none() {
+                self.problems.push(
+                    Problem::new(self.file, "required key is missing")
+                        .at_line(1)
+                        .field(key),
+                );
+            }
+        }
+        let ports_table = self.table(root, "ports");
+        let conv_table = self.table(root, "conventions");
+        let random_table = self.table(root, "random");
+        let dut_table = self.table(root, "dut");
+
+        let (operation, encoding) = match (operation, encoding) {
+            (Some((o, _)), Some((e, _))) => (o, e),
+            _ => {
+                // Still check the sub-tables' keys so every problem is reported at once.
+                if let Some(t) = ports_table {
+                    let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
+                    self.check_keys(t, "ports.", &keys);
+                }
+                return None;
+            }
+        };
+        let ports = match ports_table {
+            Some(t) => self.read_ports(t, operation, encoding),
+            None => {
+                self.problems.push(
+                    Problem::new(self.file, "the [ports] table is missing")
+                        .at_line(1)
+                        .field("ports"),
+                );
+                Ports::default()
+            }
+        };
+        let mut spec = Spec {
+            name: name.map(|n| n.0).unwrap_or_default(),
+            operation,
+            width: width.map(|w| w.0.clamp(1, MAX_WIDTH as i128) as u32).unwrap_or(8),
+            encoding,
+            ports,
+            conventions: Conventions::default(),
+            random: RandomSettings::default(),
+            dut: None,
+        };
+        if let Some(t) = conv_table {
+            self.read_conventions(t, &mut spec);
+        }
+        if let Some(t) = random_table {
+            self.read_random(t, &mut spec.random);
+        }
+        if let Some(t) = dut_table {
+            spec.dut = self.read_dut(t);
+        }
+        Some(spec)
+    }
+
+    fn read_ports(&mut self, t: &Table<'_>, operation: Operation, encoding: Encoding) -> Ports {
+        let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
+        self.check_keys(t, "ports.", &keys);
+        let mut ports = Ports::default();
+        let mut seen: BTreeMap<String, Signal> = BTreeMap::new();
+        for signal in Signal::ALL {
+            let Some((k, _)) = Self::get(t, signal.key()) else {
+                continue;
+            };
+            let key = format!("ports.{}", signal.key());
+            let Some((name, at)) = self.string(t, "ports.", signal.key()) else {
+                continue;
+            };
+            if !operation.signals().contains(&signal) {
+                self.problem(
+                    k.span(),
+                    &key,
+                    format!(
+                        "operation \"{}\" has no {} port; remove it",
+                        operation.name(),
+                        signal.key()
+                    ),
+                );
+                continue;
+            }
+            if let Err(msg) = signal_allowed(signal, operation, encoding) {
+                self.problem(k.span(), &key, msg);
+                continue;
+            }
+            if !is_identifier(&name) {
+                self.problem(
+                    at..at,
+                    &key,
+                    format!(
+                        "\"{name}\" is not a usable port name (letters, digits and '_', not \
+                         starting with a digit)"
+                    ),
+                );
+                continue;
+            }
+            if name == "index" || name == "classes" {
+                self.problem(
+                    at..at,
+                    &key,
+                    format!("\"{name}\" is reserved for the vector files' own columns"),
+                );
+                continue;
+            }
+            if let Some(other) = seen.get(&name) {
+                self.problem(
+                    at..at,
+                    &key,
+                    format!("port name \"{name}\" is already used by ports.{}", other.key()),
+                );
+                continue;
+            }
+            seen.insert(name.clone(), signal);
+            ports.set(signal, name);
+        }
+        let line = 1;
+        if ports.get(Signal::A).is_none() {
+            self.problems.push(
+                Problem::new(self.file, "every operation needs an `a` port")
+                    .at_line(line)
+                    .field("ports.a"),
+            );
+        }
+        if operation.is_binary() && ports.get(Signal::B).is_none() {
+            self.problems.push(
+                Problem::new(
+                    self.file,
+                    format!("operation \"{}\" needs a `b` port", operation.name()),
+                )
+                .at_line(line)
+                .field("ports.b"),
+            );
+        }
+        if operation == Operation::AddSub && ports.get(Signal::Mode).is_none() {
+            self.problems.push(
+                Problem::new(self.file, "an addsub unit needs a `mode` port (0 = add, 1 = subtract)")
+                    .at_line(line)
+                    .field("ports.mode"),
+            );
+        }
+        if !Signal::ALL
+            .iter()
+            .any(|s| !s.is_input() && ports.get(*s).is_some())
+        {
+            self.problems.push(
+                Problem::new(self.file, "the unit has no output port; name at least one")
+                    .at_line(line)
+                    .field("ports"),
+            );
+        }
+        ports
+    }
+
+    fn read_conventions(&mut self, t: &Table<'_>, spec: &mut Spec) {
+        self.check_keys(
+            t,
+            "conventions.",
+            &["carry_out", "carry_in", "negative_zero", "zero_flag"],
+        );
+        let p = "conventions.";
+        if let Some((v, at)) = self.choice(
+            t,
+            p,
+            "carry_out",
+            &[
+                ("borrow", CarryOutConvention::Borrow),
+                ("carry", CarryOutConvention::Carry),
+            ],
+        ) {
+            spec.conventions.carry_out = v;
+            if !(spec.subtracts() && spec.encoding.is_binary_datapath() && spec.has(Signal::CarryOut))
+            {
+                self.problem(
+                    at..at,
+                    "conventions.carry_out",
+                    "has no effect: it applies to a carry_out port of a subtracting unit \
+                     (sub, addsub, negate, decrement) in unsigned, twos or offset encoding; \
+                     remove it",
+                );
+            }
+        }
+        if let Some((v, at)) = self.choice(
+            t,
+            p,
+            "carry_in",
+            &[
+                ("borrow", CarryInConvention::Borrow),
+                ("carry", CarryInConvention::Carry),
+            ],
+        ) {
+            spec.conventions.carry_in = v;
+            if !(matches!(spec.operation, Operation::Sub | Operation::AddSub)
+                && spec.has(Signal::CarryIn))
+            {
+                self.problem(
+                    at..at,
+                    "conventions.carry_in",
+                    "has no effect: it applies to the carry_in port of a sub or addsub unit; \
+                     remove it",
+                );
+            }
+        }
+        if let Some((v, at)) = self.choice(
+            t,
+            p,
+            "negative_zero",
+            &[
+                ("hardware", NegativeZero::Hardware),
+                ("positive", NegativeZero::Positive),
+                ("either", NegativeZero::Either),
+            ],
+        ) {
+            spec.conventions.negative_zero = v;
+            if !spec.encoding.has_negative_zero() || spec.operation == Operation::Compare {
+                self.problem(
+                    at..at,
+                    "conventions.negative_zero",
+                    "has no effect: it applies to the result of a ones or signmag unit; remove it",
+                );
+            }
+        }
+        if let Some((v, at)) = self.choice(
+            t,
+            p,
+            "zero_flag",
+            &[("value", ZeroFlag::Value), ("bits", ZeroFlag::Bits)],
+        ) {
+            spec.conventions.zero_flag = v;
+            if v == ZeroFlag::Bits && spec.encoding == Encoding::Offset {
+                self.problem(
+                    at..at,
+                    "conventions.zero_flag",
+                    "\"bits\" is not meaningful for offset binary, whose zero is 10..0; use \"value\"",
+                );
+            } else if !spec.has(Signal::Zero) {
+                self.problem(
+                    at..at,
+                    "conventions.zero_flag",
+                    "has no effect: the unit has no zero port; remove it",
+                );
+            }
+        }
+    }
+
+    fn read_random(&mut self, t: &Table<'_>, random: &mut RandomSettings) {
+        self.check_keys(t, "random.", &["count", "seed", "mix", "corner_share"]);
+        if let Some((n, at)) = self.integer(t, "random.", "count") {
+            if !(0..=u64::MAX as i128).contains(&n) {
+                self.problem(at..at, "random.count", "must be a non-negative integer");
+            } else {
+                random.count = n as u64;
+            }
+        }
+        if let Some((n, at)) = self.integer(t, "random.", "seed") {
+            if !(0..=u64::MAX as i128).contains(&n) {
+                self.problem(at..at, "random.seed", "must be an integer 0..2^64-1");
+            } else {
+                random.seed = n as u64;
+            }
+        }
+        if let Some((m, _)) = self.choice(
+            t,
+            "random.",
+            "mix",
+            &[("uniform", Mix::Uniform), ("corner", Mix::Corner)],
+        ) {
+            random.mix = m;
+        }
+        if let Some((n, at)) = self.integer(t, "random.", "corner_share") {
+            if !(0..=100).contains(&n) {
+                self.problem(at..at, "random.corner_share", "must be a percentage 0..=100");
+            } else {
+                random.corner_share = n as u32;
+                if random.mix != Mix::Corner {
+                    self.problem(
+                        at..at,
+                        "random.corner_share",
+                        "has no effect unless mix = \"corner\"",
+                    );
+                }
+            }
+        }
+    }
+
+    fn read_dut(&mut self, t: &Table<'_>) -> Option<Dut> {
+        self.check_keys(t, "dut.", &["module", "parameters"]);
+        let module = self.string(t, "dut.", "module");
+        if let Some((m, at)) = &module {
+            if !is_identifier(m) {
+                self.problem(*at..*at, "dut.module", format!("\"{m}\" is not a usable module name"));
+            }
+        } else if Self::get(t, "module").is_none() {
+            self.problems.push(
+                Problem::new(self.file, "the [dut] table needs a module name")
+                    .at_line(1)
+                    .field("dut.module"),
+            );
+        }
+        let mut parameters = BTreeMap::new();
+        if let Some((_, v)) = Self::get(t, "parameters") {
+            match v.get_ref() {
+                DeValue::Table(params) => {
+                    for (k, pv) in params.iter() {
+                        let key = format!("dut.parameters.{}", k.get_ref());
+                        if !is_identifier(k.get_ref()) {
+                            self.problem(k.span(), &key, "not a usable parameter name");
+                            continue;
+                        }
+                        let value = match pv.get_ref() {
+                            DeValue::String(s) => ParamValue::Str(s.to_string()),
+                            DeValue::Integer(_) => {
+                                match self.integer(params, "dut.parameters.", k.get_ref()) {
+                                    Some((n, at)) if i64::try_from(n).is_ok() => {
+                                        let _ = at;
+                                        ParamValue::Int(n as i64)
+                                    }
+                                    Some((_, at)) => {
+                                        self.problem(at..at, &key, "integer out of range");
+                                        continue;
+                                    }
+                                    None => continue,
+                                }
+                            }
+                            _ => {
+                                self.problem(pv.span(), &key, "expected an integer or a string");
+                                continue;
+                            }
+                        };
+                        parameters.insert(k.get_ref().to_string(), value);
+                    }
+                }
+                _ => self.problem(v.span(), "dut.parameters", "expected a table"),
+            }
+        }
+        module.map(|(module, _)| Dut { module, parameters })
+    }
+}
+
+/// True for names usable as Verilog and VHDL identifiers.
+pub fn is_identifier(name: &str) -> bool {
+    let mut chars = name.chars();
+    matches!(chars.next(), Some(c) if c.is_ascii_alphabetic() || c == '_')
+        && chars.all(|c| c.is_ascii_alphanumeric() || c == '_')
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const GOOD: &str = r#"
+name = "pump_delta"
+operation = "sub"
+width = 16
+encoding = "twos"
+
+[ports]
+a = "a"
+b = "b"
+carry_in = "cin"
+result = "y"
+carry_out = "co"
+overflow = "ovf"
+zero = "zero"
+negative = "neg"
+
+[conventions]
+carry_out = "borrow"
+carry_in = "borrow"
+
+[random]
+count = 1000
+seed = 1
+"#;
+
+    #[test]
+    fn reads_the_documented_example() {
+        let spec = Spec::parse(GOOD, "unit.toml").unwrap();
+        assert_eq!(spec.operation, Operation::Sub);
+        assert_eq!(spec.width, 16);
+        assert_eq!(spec.ports.get(Signal::CarryIn), Some("cin"));
+        assert_eq!(
+            spec.inputs(),
+            vec![(Signal::A, "a"), (Signal::B, "b"), (Signal::CarryIn, "cin")]
+        );
+        assert_eq!(spec.outputs().len(), 5);
+    }
+
+    #[test]
+    fn lists_every_problem_with_line_and_key() {
+        let text = r#"name = "x"
+operation = "negate"
+width = 600
+encoding = "twos"
+colour = "red"
+
+[ports]
+a = "a"
+b = "b"
+mode = "m"
+result = "y"
+"#;
+        let err = Spec::parse(text, "bad.toml").unwrap_err();
+        let problems = err.problems();
+        let find = |field: &str| problems.iter().find(|p| p.field.as_deref() == Some(field));
+        assert_eq!(find("width").unwrap().line, Some(3));
+        assert_eq!(find("colour").unwrap().line, Some(5));
+        assert_eq!(find("ports.b").unwrap().line, Some(9));
+        assert_eq!(find("ports.mode").unwrap().line, Some(10));
+        assert!(err.to_string().contains("bad.toml:3: width: must be 1..=512"));
+    }
+
+    #[test]
+    fn rejects_conventions_without_effect() {
+        let text = r#"name = "x"
+operation = "add"
+width = 8
+encoding = "twos"
+[ports]
+a = "a"
+b = "b"
+result = "y"
+[conventions]
+carry_out = "carry"
+"#;
+        let err = Spec::parse(text, "c.toml").unwrap_err();
+        assert_eq!(err.problems()[0].field.as_deref(), Some("conventions.carry_out"));
+    }
+
+    #[test]
+    fn rejects_bad_toml_with_line() {
+        let err = Spec::parse("name = \"x\"\nwidth = = 3\n", "t.toml").unwrap_err();
+        assert_eq!(err.problems()[0].line, Some(2));
+    }
+
+    #[test]
+    fn rejects_duplicate_and_reserved_port_names() {
+        let text = r#"name = "x"
+operation = "add"
+width = 8
+encoding = "unsigned"
+[ports]
+a = "p"
+b = "p"
+result = "index"
+"#;
+        let err = Spec::parse(text, "d.toml").unwrap_err();
+        let fields: Vec<_> = err.problems().iter().map(|p| p.field.clone().unwrap()).collect();
+        assert!(fields.contains(&"ports.b".to_string()));
+        assert!(fields.contains(&"ports.result".to_string()));
+    }
+}
