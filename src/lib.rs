@@ -8,10 +8,12 @@
 #![deny(missing_docs)]
 
 mod error;
+mod layout;
 mod spec;
 mod word;
 
 pub use error::{Error, ErrorKind, Problem, Result};
+pub use layout::{Field, Layout, WordLayout};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
     NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
