@@ -7,13 +7,18 @@
 
 #![deny(missing_docs)]
 
+mod bits;
+mod encoding;
 mod error;
 mod layout;
+mod model;
 mod spec;
 mod word;
 
+pub use encoding::Value;
 pub use error::{Error, ErrorKind, Problem, Result};
 pub use layout::{Field, Layout, WordLayout};
+pub use model::{Inputs, Model, Outputs};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
     NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,

@@ -1,0 +1,637 @@
+//! The golden arithmetic model: every operation, every encoding, every flag.
+//!
+//! [`Model::evaluate`] maps a vector's inputs to the outputs a correct unit produces, following
+//! the rules written down in DEVELOPERS.md ("Golden model rules"). The arithmetic is generic
+//! over `bits::Bits` and runs on `u128` for widths up to 64 and on a 576-bit integer above.
+//! Internally the model also records a [`Trace`] of the datapath (operands as the adder sees
+//! them, the carry or borrow into every bit, the true result), which the corner-class
+//! catalogue reads. The model knows nothing about files, ports or formats.
+
+use crate::bits::{Bits, Wide};
+use crate::encoding::{decode, encode, is_negative_zero, negative_zero, representable, sign_bit};
+use crate::spec::{
+    CarryInConvention, CarryOutConvention, Encoding, NegativeZero, Operation, Signal, Spec,
+    ZeroFlag,
+};
+use crate::word::Word;
+
+/// The inputs of one vector. Fields the unit lacks are zero / false.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub struct Inputs {
+    /// First operand.
+    pub a: Word,
+    /// Second operand.
+    pub b: Word,
+    /// The carry_in port's value (its meaning follows `conventions.carry_in`).
+    pub carry_in: bool,
+    /// addsub select: false = add, true = subtract.
+    pub mode: bool,
+}
+
+/// The outputs of one vector. Fields the unit lacks are still computed where defined.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub struct Outputs {
+    /// The N-bit result.
+    pub result: Word,
+    /// The carry_out port's value (its meaning follows `conventions.carry_out`).
+    pub carry_out: bool,
+    /// The true result is not representable.
+    pub overflow: bool,
+    /// Zero flag.
+    pub zero: bool,
+    /// Negative flag (the result's sign bit).
+    pub negative: bool,
+    /// Compare: a < b.
+    pub less: bool,
+    /// Compare: a == b.
+    pub equal: bool,
+    /// Compare: a > b.
+    pub greater: bool,
+}
+
+impl Inputs {
+    /// The value of an input signal as a word.
+    pub fn get(&self, signal: Signal) -> Word {
+        match signal {
+            Signal::A => self.a,
+            Signal::B => self.b,
+            Signal::CarryIn => Word::from_u64(self.carry_in as u64),
+            Signal::Mode => Word::from_u64(self.mode as u64),
+            _ => Word::ZERO,
+        }
+    }
+
+    /// Sets an input signal from a word (1-bit signals take bit 0).
+    pub fn set(&mut self, signal: Signal, value: Word) {
+        match signal {
+            Signal::A => self.a = value,
+            Signal::B => self.b = value,
+            Signal::CarryIn => self.carry_in = value.bit(0),
+            Signal::Mode => self.mode = value.bit(0),
+            _ => {}
+        }
+    }
+}
+
+impl Outputs {
+    /// The value of an output signal as a word.
+    pub fn get(&self, signal: Signal) -> Word {
+        let flag = |b: bool| Word::from_u64(b as u64);
+        match signal {
+            Signal::Result => self.result,
+            Signal::CarryOut => flag(self.carry_out),
+            Signal::Overflow => flag(self.overflow),
+            Signal::Zero => flag(self.zero),
+            Signal::Negative => flag(self.negative),
+            Signal::Less => flag(self.less),
+            Signal::Equal => flag(self.equal),
+            Signal::Greater => flag(self.greater),
+            _ => Word::ZERO,
+        }
+    }
+
+    /// Sets an output signal from a word (1-bit signals take bit 0).
+    pub fn set(&mut self, signal: Signal, value: Word) {
+        let b = value.bit(0);
+        match signal {
+            Signal::Result => self.result = value,
+            Signal::CarryOut => self.carry_out = b,
+            Signal::Overflow => self.overflow = b,
+            Signal::Zero => self.zero = b,
+            Signal::Negative => self.negative = b,
+            Signal::Less => self.less = b,
+            Signal::Equal => self.equal = b,
+            Signal::Greater => self.greater = b,
+            _ => {}
+        }
+    }
+}
+
+/// Which one-bit cell a binary datapath is built from, for chain and cell-row classes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Cell {
+    /// Full adder: generate x&y, propagate x^y, kill ~x&~y.
+    Adder,
+    /// Full subtractor x - y: generate ~x&y, propagate ~(x^y), kill x&~y.
+    Subtractor,
+}
+
+/// The datapath of one evaluation, as the corner classes see it.
+#[derive(Debug, Clone, Copy)]
+pub(crate) enum Path<B> {
+    /// An N-bit ripple adder or subtractor on (x, y, c0): unsigned, twos and offset units.
+    Ripple {
+        cell: Cell,
+        x: B,
+        y: B,
+        c0: bool,
+        /// Bit i is the carry (borrow) into bit i; bit N is the carry (borrow) out.
+        carries: B,
+    },
+    /// A one's-complement end-around-carry adder on (x, y).
+    EndAround {
+        x: B,
+        y: B,
+        /// The first pass x + y, N + 1 bits.
+        first: B,
+        /// The end-around carry.
+        carry: bool,
+    },
+    /// A sign-magnitude adder.
+    SignMagnitude {
+        /// The signs differed (after inverting b's for a subtraction): magnitudes subtract.
+        effective_sub: bool,
+        /// a's magnitude.
+        ma: B,
+        /// The effective second operand's magnitude.
+        mb: B,
+        /// Same-sign case: the magnitude sum carried out.
+        magnitude_carry: bool,
+    },
+    /// No adder: a comparator, or a negator that only flips bits.
+    None,
+}
+
+/// Everything the model computed for one vector.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Trace<B> {
+    /// Decoded a and b (b is zero for unary operations).
+    pub va: B,
+    pub vb: B,
+    /// The carry_in as the arithmetic uses it: a carry for addition, a borrow for subtraction
+    /// (already translated from the port's convention), false when there is none.
+    pub cin: bool,
+    /// True when the operation subtracts (sub, addsub in mode 1, negate, decrement).
+    pub subtracting: bool,
+    /// The exact mathematical result (for compare: va - vb).
+    pub truth: B,
+    /// Result pattern (N bits).
+    pub result: B,
+    pub path: Path<B>,
+    pub outputs_flags: Flags,
+}
+
+/// The one-bit outputs.
+#[derive(Debug, Clone, Copy, Default)]
+pub(crate) struct Flags {
+    pub carry_out: bool,
+    pub overflow: bool,
+    pub zero: bool,
+    pub negative: bool,
+    pub less: bool,
+    pub equal: bool,
+    pub greater: bool,
+}
+
+/// The golden model for one spec.
+#[derive(Debug, Clone)]
+pub struct Model {
+    operation: Operation,
+    encoding: Encoding,
+    width: u32,
+    carry_out: CarryOutConvention,
+    carry_in: CarryInConvention,
+    negative_zero: NegativeZero,
+    zero_flag: ZeroFlag,
+    has_carry_in: bool,
+    force_wide: bool,
+}
+
+impl Model {
+    /// The model for `spec`.
+    pub fn new(spec: &Spec) -> Model {
+        Model {
+            operation: spec.operation,
+            encoding: spec.encoding,
+            width: spec.width,
+            carry_out: spec.conventions.carry_out,
+            carry_in: spec.conventions.carry_in,
+            negative_zero: spec.conventions.negative_zero,
+            zero_flag: spec.conventions.zero_flag,
+            has_carry_in: spec.has(Signal::CarryIn),
+            force_wide: false,
+        }
+    }
+
+    /// The same model, always on the wide arithmetic path (for cross-checking the fast path).
+    #[doc(hidden)]
+    pub fn wide_only(mut self) -> Model {
+        self.force_wide = true;
+        self
+    }
+
+    /// Operand width in bits.
+    pub fn width(&self) -> u32 {
+        self.width
+    }
+
+    /// The encoding.
+    pub fn encoding(&self) -> Encoding {
+        self.encoding
+    }
+
+    /// The operation.
+    pub fn operation(&self) -> Operation {
+        self.operation
+    }
+
+    pub(crate) fn uses_fast_path(&self) -> bool {
+        self.width <= 64 && !self.force_wide
+    }
+
+    /// The outputs a correct unit gives for `inputs`.
+    pub fn evaluate(&self, inputs: &Inputs) -> Outputs {
+        if self.uses_fast_path() {
+            self.outputs_of(&self.trace::<u128>(inputs))
+        } else {
+            self.outputs_of(&self.trace::<Wide>(inputs))
+        }
+    }
+
+    /// Under `negative_zero = "either"`, the other acceptable outputs when the result is a
+    /// zero (the other zero pattern, with the zero and negative flags it implies).
+    pub fn alternative(&self, outputs: &Outputs) -> Option<Outputs> {
+        if self.negative_zero != NegativeZero::Either || self.operation == Operation::Compare {
+            return None;
+        }
+        let w = self.width;
+        let p = Wide::from_word(&outputs.result);
+        let nz = negative_zero::<Wide>(w, self.encoding)?;
+        let other = if p.is_zero() {
+            nz
+        } else if p == nz {
+            Wide::zero()
+        } else {
+            return None;
+        };
+        let mut alt = *outputs;
+        alt.result = other.to_word();
+        alt.zero = self.zero_flag_of(other);
+        alt.negative = sign_bit(other, w, self.encoding);
+        Some(alt)
+    }
+
+    pub(crate) fn outputs_of<B: Bits>(&self, t: &Trace<B>) -> Outputs {
+        let f = t.outputs_flags;
+        Outputs {
+            result: t.result.to_word(),
+            carry_out: f.carry_out,
+            overflow: f.overflow,
+            zero: f.zero,
+            negative: f.negative,
+            less: f.less,
+            equal: f.equal,
+            greater: f.greater,
+        }
+    }
+
+    fn zero_flag_of<B: Bits>(&self, result: B) -> bool {
+        match self.zero_flag {
+            ZeroFlag::Value => decode(result, self.width, self.encoding).is_zero(),
+            ZeroFlag::Bits => result.is_zero(),
+        }
+    }
+
+    /// The carry-in as arithmetic (carry when adding, borrow when subtracting).
+    fn arithmetic_carry_in(&self, inputs: &Inputs, subtracting: bool) -> bool {
+        if !self.has_carry_in {
+            return false;
+        }
+        if subtracting && self.carry_in == CarryInConvention::Carry {
+            !inputs.carry_in
+        } else {
+            inputs.carry_in
+        }
+    }
+
+    /// Runs the model and keeps the datapath trace.
+    pub(crate) fn trace<B: Bits>(&self, inputs: &Inputs) -> Trace<B> {
+        let w = self.width;
+        let enc = self.encoding;
+        let mask = B::low_mask(w);
+        let a = B::from_word(&inputs.a).mask(w);
+        let b = if self.operation.is_binary() {
+            B::from_word(&inputs.b).mask(w)
+        } else {
+            B::zero()
+        };
+        let va = decode(a, w, enc);
+        let vb = if self.operation.is_binary() {
+            decode(b, w, enc)
+        } else {
+            B::zero()
+        };
+        let subtracting = match self.operation {
+            Operation::Sub | Operation::Negate | Operation::Decrement => true,
+            Operation::AddSub => inputs.mode,
+            _ => false,
+        };
+        let cin = self.arithmetic_carry_in(inputs, subtracting);
+        let cin_b = B::from_bool(cin);
+        let truth = match self.operation {
+            Operation::Add => va.add(vb).add(cin_b),
+            Operation::Sub => va.sub(vb).sub(cin_b),
+            Operation::AddSub if inputs.mode => va.sub(vb).sub(cin_b),
+            Operation::AddSub => va.add(vb).add(cin_b),
+            Operation::Negate => va.neg(),
+            Operation::Increment => va.add(B::one()),
+            Operation::Decrement => va.sub(B::one()),
+            Operation::Compare => va.sub(vb),
+        };
+
+        if self.operation == Operation::Compare {
+            let flags = Flags {
+                less: va.slt(&vb),
+                equal: va == vb,
+                greater: vb.slt(&va),
+                ..Flags::default()
+            };
+            return Trace {
+                va,
+                vb,
+                cin: false,
+                subtracting: true,
+                truth,
+                result: B::zero(),
+                path: Path::None,
+                outputs_flags: flags,
+            };
+        }
+
+        let (result, path, raw_carry_out) = match enc {
+            Encoding::Unsigned | Encoding::Twos | Encoding::Offset => {
+                let flip = if enc == Encoding::Offset {
+                    B::single_bit(w - 1)
+                } else {
+                    B::zero()
+                };
+                let (cell, x, y, c0) = match self.operation {
+                    Operation::Add => (Cell::Adder, a.xor(flip), b.xor(flip), cin),
+                    Operation::Sub => (Cell::Subtractor, a.xor(flip), b.xor(flip), cin),
+                    // An add/sub unit is one adder: b XOR mode, mode into the carry-in.
+                    Operation::AddSub if inputs.mode => {
+                        (Cell::Adder, a.xor(flip), b.xor(flip).not().mask(w), !cin)
+                    }
+                    Operation::AddSub => (Cell::Adder, a.xor(flip), b.xor(flip), cin),
+                    Operation::Negate => (Cell::Subtractor, B::zero(), a.xor(flip), false),
+                    Operation::Increment => (Cell::Adder, a.xor(flip), B::zero(), true),
+                    Operation::Decrement => (Cell::Subtractor, a.xor(flip), B::zero(), true),
+                    Operation::Compare => unreachable!("handled above"),
+                };
+                let raw = match cell {
+                    Cell::Adder => x.add(y).add(B::from_bool(c0)),
+                    Cell::Subtractor => x.sub(y).sub(B::from_bool(c0)),
+                };
+                let carries = x.xor(y).xor(raw).mask(w + 1);
+                let out = raw.bit(w);
+                (
+                    raw.and(mask).xor(flip),
+                    Path::Ripple {
+                        cell,
+                        x,
+                        y,
+                        c0,
+                        carries,
+                    },
+                    out,
+                )
+            }
+            Encoding::Ones => {
+                let y = match self.operation {
+                    Operation::Add => b,
+                    Operation::AddSub if !subtracting => b,
+                    Operation::Sub | Operation::AddSub => b.not().mask(w),
+                    Operation::Increment => B::one().mask(w),
+                    Operation::Decrement => B::one().not().mask(w),
+                    Operation::Negate => {
+                        let r = a.not().mask(w);
+                        return self.finish(va, vb, cin, subtracting, truth, r, Path::None, false);
+                    }
+                    Operation::Compare => unreachable!("handled above"),
+                };
+                let first = a.add(y);
+                let carry = first.bit(w);
+                let r = first.add(B::from_bool(carry)).mask(w);
+                (
+                    r,
+                    Path::EndAround {
+                        x: a,
+                        y,
+                        first,
+                        carry,
+                    },
+                    carry,
+                )
+            }
+            Encoding::SignMagnitude => {
+                let m = w - 1;
+                let sign = B::single_bit(m);
+                let b_eff = match self.operation {
+                    Operation::Add => b,
+                    Operation::AddSub if !subtracting => b,
+                    Operation::Sub | Operation::AddSub => b.xor(sign),
+                    Operation::Increment => B::one().mask(m),
+                    Operation::Decrement => B::one().mask(m).or(sign),
+                    Operation::Negate => {
+                        let r = a.xor(sign);
+                        return self.finish(va, vb, cin, subtracting, truth, r, Path::None, false);
+                    }
+                    Operation::Compare => unreachable!("handled above"),
+                };
+                let (sa, sb) = (a.bit(m), b_eff.bit(m));
+                let (ma, mb) = (a.mask(m), b_eff.mask(m));
+                let (mag, s, effective_sub, magnitude_carry) = if sa == sb {
+                    let sum = ma.add(mb);
+                    (sum.mask(m), sa, false, sum.bit(m))
+                } else if !ma.slt(&mb) {
+                    (ma.sub(mb), sa, true, false)
+                } else {
+                    (mb.sub(ma), sb, true, false)
+                };
+                let r = if s { mag.or(sign) } else { mag };
+                (
+                    r,
+                    Path::SignMagnitude {
+                        effective_sub,
+                        ma,
+                        mb,
+                        magnitude_carry,
+                    },
+                    false,
+                )
+            }
+        };
+        let carry_out = if subtracting && enc.is_binary_datapath() {
+            // For a ripple subtractor raw_carry_out is the borrow; for the add/sub unit's
+            // adder it is the raw carry, NOT borrow.
+            let borrow = match path {
+                Path::Ripple {
+                    cell: Cell::Subtractor,
+                    ..
+                } => raw_carry_out,
+                _ => !raw_carry_out,
+            };
+            match self.carry_out {
+                CarryOutConvention::Borrow => borrow,
+                CarryOutConvention::Carry => !borrow,
+            }
+        } else {
+            raw_carry_out
+        };
+        self.finish(va, vb, cin, subtracting, truth, result, path, carry_out)
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn finish<B: Bits>(
+        &self,
+        va: B,
+        vb: B,
+        cin: bool,
+        subtracting: bool,
+        truth: B,
+        mut result: B,
+        path: Path<B>,
+        carry_out: bool,
+    ) -> Trace<B> {
+        let (w, enc) = (self.width, self.encoding);
+        if self.negative_zero == NegativeZero::Positive && is_negative_zero(result, w, enc) {
+            result = B::zero();
+        }
+        let flags = Flags {
+            carry_out,
+            overflow: !representable(truth, w, enc),
+            zero: self.zero_flag_of(result),
+            negative: sign_bit(result, w, enc),
+            ..Flags::default()
+        };
+        Trace {
+            va,
+            vb,
+            cin,
+            subtracting,
+            truth,
+            result,
+            path,
+            outputs_flags: flags,
+        }
+    }
+
+    /// The pattern for value `v` when representable (used by the directed generator).
+    pub(crate) fn encode_value<B: Bits>(&self, v: B) -> Option<B> {
+        representable(v, self.width, self.encoding).then(|| encode(v, self.width, self.encoding))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn spec(op: Operation, enc: Encoding, width: u32) -> Spec {
+        Spec::with_defaults(op, enc, width)
+    }
+
+    fn eval(s: &Spec, a: u64, b: u64, cin: bool, mode: bool) -> Outputs {
+        Model::new(s).evaluate(&Inputs {
+            a: Word::from_u64(a),
+            b: Word::from_u64(b),
+            carry_in: cin,
+            mode,
+        })
+    }
+
+    /// Hand-worked 8-bit two's-complement examples (common practice, no source):
+    /// 0x7f + 0x01 = 0x80 overflows; 0x80 - 0x01 = 0x7f overflows with no borrow;
+    /// 0x00 - 0x01 = 0xff borrows without overflow.
+    #[test]
+    fn twos_worked_examples() {
+        let add = spec(Operation::Add, Encoding::Twos, 8);
+        let o = eval(&add, 0x7f, 0x01, false, false);
+        assert_eq!(o.result, Word::from_u64(0x80));
+        assert!(o.overflow && !o.carry_out && o.negative);
+        let sub = spec(Operation::Sub, Encoding::Twos, 8);
+        let o = eval(&sub, 0x80, 0x01, false, false);
+        assert_eq!(o.result, Word::from_u64(0x7f));
+        assert!(o.overflow && !o.carry_out);
+        let o = eval(&sub, 0x00, 0x01, false, false);
+        assert_eq!(o.result, Word::from_u64(0xff));
+        assert!(
+            !o.overflow && o.carry_out,
+            "borrow convention: carry_out = borrow"
+        );
+    }
+
+    /// RFC 1071 section 3 worked example: the one's-complement sum of the 16-bit words
+    /// 0x0001, 0xf203, 0xf4f5, 0xf6f7 is 0xddf2 (end-around carries folded in).
+    #[test]
+    fn rfc1071_checksum_example() {
+        let add = spec(Operation::Add, Encoding::Ones, 16);
+        let mut acc = 0x0001;
+        for w in [0xf203u64, 0xf4f5, 0xf6f7] {
+            acc = eval(&add, acc, w, false, false).result.low_u64();
+        }
+        assert_eq!(acc, 0xddf2);
+    }
+
+    /// Sign-magnitude x + (-x) is -0 without a zero fix-up when x < 0 and +0 when x > 0
+    /// (DOMAIN notes after M. Mano, Computer System Architecture, 10-2).
+    #[test]
+    fn signmag_x_plus_minus_x() {
+        let add = spec(Operation::Add, Encoding::SignMagnitude, 8);
+        assert_eq!(
+            eval(&add, 0x85, 0x05, false, false).result,
+            Word::from_u64(0x80)
+        );
+        assert_eq!(
+            eval(&add, 0x05, 0x85, false, false).result,
+            Word::from_u64(0x00)
+        );
+        let mut fixed = add.clone();
+        fixed.conventions.negative_zero = NegativeZero::Positive;
+        assert_eq!(eval(&fixed, 0x85, 0x05, false, false).result, Word::ZERO);
+    }
+
+    #[test]
+    fn ones_x_plus_minus_x_is_negative_zero() {
+        let add = spec(Operation::Add, Encoding::Ones, 8);
+        let o = eval(&add, 0x05, 0xfa, false, false);
+        assert_eq!(o.result, Word::from_u64(0xff));
+        assert!(o.zero && o.negative && !o.overflow);
+    }
+
+    #[test]
+    fn carry_conventions_invert_only_the_port() {
+        let mut sub = spec(Operation::Sub, Encoding::Unsigned, 8);
+        let borrow = eval(&sub, 3, 5, false, false);
+        sub.conventions.carry_out = CarryOutConvention::Carry;
+        let carry = eval(&sub, 3, 5, false, false);
+        assert!(borrow.carry_out && !carry.carry_out);
+        assert_eq!(borrow.result, carry.result);
+        sub.conventions.carry_in = CarryInConvention::Carry;
+        // Raw carry-in 1 means "no borrow": 5 - 3 = 2.
+        assert_eq!(eval(&sub, 5, 3, true, false).result, Word::from_u64(2));
+        assert_eq!(eval(&sub, 5, 3, false, false).result, Word::from_u64(1));
+    }
+
+    #[test]
+    fn addsub_mode_selects() {
+        let s = spec(Operation::AddSub, Encoding::Twos, 8);
+        assert_eq!(eval(&s, 10, 3, false, false).result, Word::from_u64(13));
+        assert_eq!(eval(&s, 10, 3, false, true).result, Word::from_u64(7));
+        assert_eq!(eval(&s, 10, 3, true, true).result, Word::from_u64(6));
+    }
+
+    #[test]
+    fn either_zero_offers_the_other_pattern() {
+        let mut s = spec(Operation::Add, Encoding::Ones, 8);
+        s.conventions.negative_zero = NegativeZero::Either;
+        let m = Model::new(&s);
+        let o = m.evaluate(&Inputs {
+            a: Word::from_u64(5),
+            b: Word::from_u64(0xfa),
+            ..Inputs::default()
+        });
+        let alt = m.alternative(&o).unwrap();
+        assert_eq!(alt.result, Word::ZERO);
+        assert!(alt.zero && !alt.negative);
+    }
+}
