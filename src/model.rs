@@ -183,6 +183,80 @@ pub(crate) struct Flags {
     pub greater: bool,
 }
 
+/// Where one input of a ripple datapath comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Source {
+    A,
+    B,
+    /// ~b (an add/sub unit in subtract mode, a one's-complement subtractor).
+    NotB,
+    /// The constant 00..0.
+    Zero,
+    /// The constant 00..01.
+    One,
+    /// The constant 11..10 (one's-complement -1).
+    NotOne,
+}
+
+impl Source {
+    fn pick<B: Bits>(self, a: B, b: B, width: u32) -> B {
+        match self {
+            Source::A => a,
+            Source::B => b,
+            Source::NotB => b.not().mask(width),
+            Source::Zero => B::zero(),
+            Source::One => B::one().mask(width),
+            Source::NotOne => B::one().not().mask(width),
+        }
+    }
+
+    /// The datapath operand: the source, with offset binary's top-bit inversion applied to
+    /// operands (not to constants).
+    pub(crate) fn operand<B: Bits>(self, a: B, b: B, width: u32, flip: B) -> B {
+        let v = self.pick(a, b, width);
+        if self.is_constant() {
+            v
+        } else {
+            v.xor(flip)
+        }
+    }
+
+    pub(crate) fn is_constant(self) -> bool {
+        matches!(self, Source::Zero | Source::One | Source::NotOne)
+    }
+}
+
+/// Where the datapath's carry-in (borrow-in for a subtractor cell) comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum CarrySource {
+    Fixed(bool),
+    /// The carry_in port, inverted or not.
+    Port {
+        invert: bool,
+    },
+}
+
+impl CarrySource {
+    pub(crate) fn value(self, port: bool) -> bool {
+        match self {
+            CarrySource::Fixed(v) => v,
+            CarrySource::Port { invert } => port != invert,
+        }
+    }
+}
+
+/// The N-bit ripple datapath behind an operation: which cell, what feeds it. For offset
+/// binary (`flip`) the operands' top bits are inverted on the way in (constants are not) and
+/// the result's top bit on the way out.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) struct RippleView {
+    pub cell: Cell,
+    pub x: Source,
+    pub y: Source,
+    pub c0: CarrySource,
+    pub flip: bool,
+}
+
 /// The golden model for one spec.
 #[derive(Debug, Clone)]
 pub struct Model {
@@ -237,6 +311,64 @@ impl Model {
 
     pub(crate) fn uses_fast_path(&self) -> bool {
         self.width <= 64 && !self.force_wide
+    }
+
+    /// The ripple datapath for the operation in `mode` (ignored unless addsub), or None when
+    /// the unit has none (compare, sign-magnitude, one's-complement negate).
+    pub(crate) fn ripple_view(&self, mode: bool) -> Option<RippleView> {
+        use Source::*;
+        let port = |invert: bool| {
+            if self.has_carry_in {
+                CarrySource::Port { invert }
+            } else {
+                CarrySource::Fixed(invert)
+            }
+        };
+        // For subtraction the port is a borrow unless the convention says it is the raw
+        // adder carry-in.
+        let borrow_port = |adder_view: bool| {
+            if self.has_carry_in {
+                let raw_carry = self.carry_in == CarryInConvention::Carry;
+                CarrySource::Port {
+                    invert: raw_carry != adder_view,
+                }
+            } else {
+                // No borrow-in: the adder view's carry-in is tied to 1, the cell's borrow to 0.
+                CarrySource::Fixed(adder_view)
+            }
+        };
+        let (cell, x, y, c0) = match (self.encoding, self.operation) {
+            (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,
+            (Encoding::Ones, Operation::Negate) => return None,
+            (Encoding::Ones, Operation::Add) => (Cell::Adder, A, B, CarrySource::Fixed(false)),
+            (Encoding::Ones, Operation::AddSub) if !mode => {
+                (Cell::Adder, A, B, CarrySource::Fixed(false))
+            }
+            (Encoding::Ones, Operation::Sub | Operation::AddSub) => {
+                (Cell::Adder, A, NotB, CarrySource::Fixed(false))
+            }
+            (Encoding::Ones, Operation::Increment) => {
+                (Cell::Adder, A, One, CarrySource::Fixed(false))
+            }
+            (Encoding::Ones, Operation::Decrement) => {
+                (Cell::Adder, A, NotOne, CarrySource::Fixed(false))
+            }
+            (_, Operation::Add) => (Cell::Adder, A, B, port(false)),
+            (_, Operation::Sub) => (Cell::Subtractor, A, B, borrow_port(false)),
+            // An add/sub unit is one adder: b XOR mode, mode into the carry-in.
+            (_, Operation::AddSub) if mode => (Cell::Adder, A, NotB, borrow_port(true)),
+            (_, Operation::AddSub) => (Cell::Adder, A, B, port(false)),
+            (_, Operation::Negate) => (Cell::Subtractor, Zero, A, CarrySource::Fixed(false)),
+            (_, Operation::Increment) => (Cell::Adder, A, Zero, CarrySource::Fixed(true)),
+            (_, Operation::Decrement) => (Cell::Subtractor, A, Zero, CarrySource::Fixed(true)),
+        };
+        Some(RippleView {
+            cell,
+            x,
+            y,
+            c0,
+            flip: self.encoding == Encoding::Offset,
+        })
     }
 
     /// The outputs a correct unit gives for `inputs`.
@@ -359,69 +491,51 @@ impl Model {
         }
 
         let (result, path, raw_carry_out) = match enc {
-            Encoding::Unsigned | Encoding::Twos | Encoding::Offset => {
-                let flip = if enc == Encoding::Offset {
+            Encoding::Unsigned | Encoding::Twos | Encoding::Offset | Encoding::Ones => {
+                let Some(view) = self.ripple_view(inputs.mode) else {
+                    // One's-complement negation is a row of inverters.
+                    let r = a.not().mask(w);
+                    return self.finish(va, vb, cin, subtracting, truth, r, Path::None, false);
+                };
+                let flip = if view.flip {
                     B::single_bit(w - 1)
                 } else {
                     B::zero()
                 };
-                let (cell, x, y, c0) = match self.operation {
-                    Operation::Add => (Cell::Adder, a.xor(flip), b.xor(flip), cin),
-                    Operation::Sub => (Cell::Subtractor, a.xor(flip), b.xor(flip), cin),
-                    // An add/sub unit is one adder: b XOR mode, mode into the carry-in.
-                    Operation::AddSub if inputs.mode => {
-                        (Cell::Adder, a.xor(flip), b.xor(flip).not().mask(w), !cin)
-                    }
-                    Operation::AddSub => (Cell::Adder, a.xor(flip), b.xor(flip), cin),
-                    Operation::Negate => (Cell::Subtractor, B::zero(), a.xor(flip), false),
-                    Operation::Increment => (Cell::Adder, a.xor(flip), B::zero(), true),
-                    Operation::Decrement => (Cell::Subtractor, a.xor(flip), B::zero(), true),
-                    Operation::Compare => unreachable!("handled above"),
-                };
-                let raw = match cell {
+                let x = view.x.operand(a, b, w, flip);
+                let y = view.y.operand(a, b, w, flip);
+                let c0 = view.c0.value(inputs.carry_in);
+                let raw = match view.cell {
                     Cell::Adder => x.add(y).add(B::from_bool(c0)),
                     Cell::Subtractor => x.sub(y).sub(B::from_bool(c0)),
                 };
                 let carries = x.xor(y).xor(raw).mask(w + 1);
                 let out = raw.bit(w);
-                (
-                    raw.and(mask).xor(flip),
-                    Path::Ripple {
-                        cell,
-                        x,
-                        y,
-                        c0,
-                        carries,
-                    },
-                    out,
-                )
-            }
-            Encoding::Ones => {
-                let y = match self.operation {
-                    Operation::Add => b,
-                    Operation::AddSub if !subtracting => b,
-                    Operation::Sub | Operation::AddSub => b.not().mask(w),
-                    Operation::Increment => B::one().mask(w),
-                    Operation::Decrement => B::one().not().mask(w),
-                    Operation::Negate => {
-                        let r = a.not().mask(w);
-                        return self.finish(va, vb, cin, subtracting, truth, r, Path::None, false);
-                    }
-                    Operation::Compare => unreachable!("handled above"),
-                };
-                let first = a.add(y);
-                let carry = first.bit(w);
-                let r = first.add(B::from_bool(carry)).mask(w);
-                (
-                    r,
-                    Path::EndAround {
-                        x: a,
-                        y,
-                        first,
-                        carry,
-                    },
-                    carry,
-                )
+                if enc == Encoding::Ones {
+                    let r = raw.add(B::from_bool(out)).mask(w);
+                    (
+                        r,
+                        Path::EndAround {
+                            x,
+                            y,
+                            first: raw,
+                            carry: out,
+                        },
+                        out,
+                    )
+                } else {
+                    (
+                        raw.and(mask).xor(flip),
+                        Path::Ripple {
+                            cell: view.cell,
+                            x,
+                            y,
+                            c0,
+                            carries,
+                        },
+                        out,
+                    )
+                }
             }
             Encoding::SignMagnitude => {
                 let m = w - 1;
