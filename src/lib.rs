@@ -8,15 +8,19 @@
 #![deny(missing_docs)]
 
 mod bits;
+mod classes;
 mod encoding;
 mod error;
+mod generate;
 mod layout;
 mod model;
 mod spec;
 mod word;
 
+pub use classes::{Catalogue, Class, Hits};
 pub use encoding::Value;
 pub use error::{Error, ErrorKind, Problem, Result};
+pub use generate::{Generator, RandomStream};
 pub use layout::{Field, Layout, WordLayout};
 pub use model::{Inputs, Model, Outputs};
 pub use spec::{
