@@ -57,9 +57,6 @@ pub(crate) trait Bits: Copy + Eq + std::fmt::Debug {
             self.mask(width)
         }
     }
-    fn add_small(self, v: u64) -> Self {
-        self.add(Self::from_word(&Word::from_u64(v)))
-    }
 }
 
 impl Bits for u128 {

@@ -101,6 +101,19 @@ impl Generator {
         self.directed_hits[bin]
     }
 
+    /// For each class, how many directed vectors hit at least one of its bins.
+    pub fn directed_class_hits(&self) -> Vec<u32> {
+        let mut counts = vec![0u32; self.catalogue.classes().len()];
+        let mut hits = Hits::new();
+        for v in &self.directed {
+            self.catalogue.evaluate(v, &mut hits);
+            for &c in hits.classes() {
+                counts[c as usize] += 1;
+            }
+        }
+        counts
+    }
+
     /// Number of random vectors.
     pub fn random_count(&self) -> u64 {
         self.random.count

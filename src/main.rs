@@ -1,1 +1,408 @@
-fn main() {}
+//! The `arithvec` command line: parses arguments, calls the library, prints, and maps
+//! outcomes to exit codes (0 success, 1 mismatches, 2 bad input or usage, 3 coverage short).
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand, ValueEnum};
+
+use arithvec::{
+    csv_header, csv_row, write_vector_set, Catalogue, Error, Generator, Problem, Shard, Signal,
+    Spec, Value, WriteOptions,
+};
+
+mod cli_util;
+
+use cli_util::{out, read_spec, Outcome};
+
+const AFTER_HELP: &str = "Exit codes: 0 success; 1 check found mismatches or unknowns; \
+2 bad input or usage; 3 coverage short of a requirement.\n\n\
+Coverage of corner classes is evidence, not proof of correctness; sign-off follows your \
+team's own verification plan.";
+
+#[derive(Parser)]
+#[command(
+    name = "arithvec",
+    version,
+    about = "Golden-model test vectors, result checking and corner-class coverage for arithmetic datapaths",
+    after_help = AFTER_HELP
+)]
+struct Cli {
+    /// Print nothing but errors (and, for check, the verdict line).
+    #[arg(long, short, global = true)]
+    quiet: bool,
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Write directed corner vectors plus seeded random vectors.
+    #[command(
+        after_help = "Example:\n  arithvec gen unit.toml --out vec/\n  arithvec gen unit.toml --out vec/ --count 100000 --seed 7\n  arithvec gen unit.toml --out shard1/ --shard 1/4"
+    )]
+    Gen {
+        /// The operation spec (TOML).
+        spec: PathBuf,
+        /// Output directory (created if missing).
+        #[arg(long, short)]
+        out: PathBuf,
+        /// Number of random vectors (overrides [random] count).
+        #[arg(long)]
+        count: Option<u64>,
+        /// Random seed (overrides [random] seed).
+        #[arg(long)]
+        seed: Option<u64>,
+        /// Write only shard I of N (0-based), e.g. 0/4; the shards' files concatenate to the
+        /// unsharded files.
+        #[arg(long, value_name = "I/N")]
+        shard: Option<String>,
+    },
+    /// List the corner classes of a spec with their bins and directed hits.
+    #[command(
+        after_help = "Example:\n  arithvec classes unit.toml\n  arithvec classes unit.toml --bins\n  arithvec classes unit.toml --format json"
+    )]
+    Classes {
+        /// The operation spec (TOML).
+        spec: PathBuf,
+        /// Output format.
+        #[arg(long, value_enum, default_value_t = Format::Table)]
+        format: Format,
+        /// One row per bin instead of per class.
+        #[arg(long)]
+        bins: bool,
+    },
+    /// Show one vector again, decoded, from the spec, seed and index.
+    #[command(
+        after_help = "Example:\n  arithvec repro unit.toml --index 1234\n  arithvec repro unit.toml --index 1234 --seed 7 --format csv"
+    )]
+    Repro {
+        /// The operation spec (TOML).
+        spec: PathBuf,
+        /// Vector index (directed vectors first, then random).
+        #[arg(long)]
+        index: u64,
+        /// Random seed (overrides [random] seed).
+        #[arg(long)]
+        seed: Option<u64>,
+        /// Output format: text, or csv (the header and the vector's row of vectors.csv).
+        #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
+        format: ReproFormat,
+    },
+}
+
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum Format {
+    Table,
+    Json,
+}
+
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum ReproFormat {
+    Text,
+    Csv,
+}
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let _ = e.print();
+            return match e.kind() {
+                clap::error::ErrorKind::DisplayHelp | clap::error::ErrorKind::DisplayVersion => {
+                    ExitCode::SUCCESS
+                }
+                _ => ExitCode::from(2),
+            };
+        }
+    };
+    match run(cli) {
+        Ok(outcome) => outcome.code(),
+        Err(e) if e.is_broken_pipe() => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("error: {e}");
+            ExitCode::from(2)
+        }
+    }
+}
+
+fn run(cli: Cli) -> Result<Outcome, Error> {
+    let quiet = cli.quiet;
+    match cli.command {
+        Command::Gen {
+            spec,
+            out: dir,
+            count,
+            seed,
+            shard,
+        } => gen(&spec, &dir, count, seed, shard.as_deref(), quiet),
+        Command::Classes { spec, format, bins } => classes(&spec, format, bins),
+        Command::Repro {
+            spec,
+            index,
+            seed,
+            format,
+        } => repro(&spec, index, seed, format),
+    }
+}
+
+fn parse_shard(text: &str) -> Result<Shard, Error> {
+    let bad = || {
+        Error::problem(
+            Problem::new(
+                "--shard",
+                format!("expected I/N with 0 <= I < N, got \"{text}\""),
+            )
+            .field("shard"),
+        )
+    };
+    let (i, n) = text.split_once('/').ok_or_else(bad)?;
+    let index: u64 = i.trim().parse().map_err(|_| bad())?;
+    let count: u64 = n.trim().parse().map_err(|_| bad())?;
+    if count == 0 || index >= count {
+        return Err(bad());
+    }
+    Ok(Shard { index, count })
+}
+
+fn gen(
+    spec_path: &Path,
+    dir: &Path,
+    count: Option<u64>,
+    seed: Option<u64>,
+    shard: Option<&str>,
+    quiet: bool,
+) -> Result<Outcome, Error> {
+    let spec = read_spec(spec_path)?;
+    let shard = shard.map(parse_shard).transpose()?;
+    let generator = Generator::new(&spec, count, seed);
+    let total = shard.map_or(generator.total(), |s| {
+        let r = s.range(generator.total());
+        r.end - r.start
+    });
+    let bar = cli_util::progress_bar(total, quiet, "vectors");
+    let mut tick = |n: u64| {
+        if let Some(b) = &bar {
+            b.set_position(n);
+        }
+    };
+    let manifest = write_vector_set(
+        &generator,
+        &spec,
+        dir,
+        WriteOptions {
+            shard,
+            progress: Some(&mut tick),
+            threads: 0,
+        },
+    )?;
+    if let Some(b) = bar {
+        b.finish_and_clear();
+    }
+    if !quiet {
+        let mut o = out();
+        writeln!(
+            o,
+            "wrote {} vectors ({} directed + {} random, seed {}{}) for unit {} to {}",
+            manifest.vectors,
+            manifest.directed,
+            manifest.random,
+            manifest.seed,
+            shard.map_or(String::new(), |s| format!(
+                ", shard {}/{}",
+                s.index, s.count
+            )),
+            spec.name,
+            dir.display()
+        )
+        .map_err(cli_util::stdout_error)?;
+        for f in &manifest.files {
+            writeln!(
+                o,
+                "  {:<13} {:>12} bytes  sha256 {}",
+                f.name, f.bytes, f.sha256
+            )
+            .map_err(cli_util::stdout_error)?;
+        }
+        writeln!(o, "  {:<13}", "manifest.json").map_err(cli_util::stdout_error)?;
+    }
+    Ok(Outcome::Success)
+}
+
+fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Error> {
+    let spec = read_spec(spec_path)?;
+    let generator = Generator::new(&spec, Some(0), None);
+    let cat: &Catalogue = generator.catalogue();
+    let class_hits = generator.directed_class_hits();
+    let mut o = out();
+    if format == Format::Json {
+        let list: Vec<serde_json::Value> = cat
+            .classes()
+            .iter()
+            .enumerate()
+            .map(|(ci, c)| {
+                let bins: Vec<serde_json::Value> = (0..c.bin_count())
+                    .map(|k| {
+                        let b = c.first_bin() + k;
+                        serde_json::json!({
+                            "label": c.bin_labels()[k],
+                            "reachable": cat.is_reachable(b),
+                            "directed_hits": generator.directed_hits(b),
+                        })
+                    })
+                    .collect();
+                serde_json::json!({
+                    "id": c.id(),
+                    "description": c.description(),
+                    "reachable": cat.is_class_reachable(ci),
+                    "bins_reachable": cat.reachable_bins(ci).count(),
+                    "bins_total": c.bin_count(),
+                    "directed_vectors": class_hits[ci],
+                    "bins": bins,
+                })
+            })
+            .collect();
+        let text = serde_json::to_string_pretty(&list).expect("json");
+        writeln!(o, "{text}").map_err(cli_util::stdout_error)?;
+        return Ok(Outcome::Success);
+    }
+    let mut rows: Vec<[String; 4]> = Vec::new();
+    for (ci, c) in cat.classes().iter().enumerate() {
+        if bins {
+            for k in 0..c.bin_count() {
+                let b = c.first_bin() + k;
+                rows.push([
+                    cat.bin_id(b),
+                    if cat.is_reachable(b) {
+                        "reachable".into()
+                    } else {
+                        "unreachable at this width".into()
+                    },
+                    String::new(),
+                    generator.directed_hits(b).to_string(),
+                ]);
+            }
+        } else {
+            let reachable = cat.reachable_bins(ci).count();
+            let bins_text = if reachable == c.bin_count() {
+                reachable.to_string()
+            } else {
+                format!("{reachable} of {}", c.bin_count())
+            };
+            rows.push([
+                c.id().to_string(),
+                c.description().to_string(),
+                bins_text,
+                class_hits[ci].to_string(),
+            ]);
+        }
+    }
+    let header = if bins {
+        ["bin", "status", "", "directed hits"]
+    } else {
+        ["class", "description", "bins", "directed vectors"]
+    };
+    let table = cli_util::table(&header, &rows);
+    writeln!(o, "{table}").map_err(cli_util::stdout_error)?;
+    writeln!(
+        o,
+        "unit {}: {} {} {} bits; {} classes, {} reachable bins; {} directed vectors",
+        spec.name,
+        spec.operation,
+        spec.encoding,
+        spec.width,
+        cat.classes().len(),
+        (0..cat.bin_count())
+            .filter(|&b| cat.is_reachable(b))
+            .count(),
+        generator.directed().len()
+    )
+    .map_err(cli_util::stdout_error)?;
+    Ok(Outcome::Success)
+}
+
+fn repro(
+    spec_path: &Path,
+    index: u64,
+    seed: Option<u64>,
+    format: ReproFormat,
+) -> Result<Outcome, Error> {
+    let spec = read_spec(spec_path)?;
+    // The random part is unbounded here: vector j is a pure function of (spec, seed, j).
+    let generator = Generator::new(&spec, Some(u64::MAX - 1_000_000), seed);
+    let inputs = generator.vector(index).ok_or_else(|| {
+        Error::problem(Problem::new("--index", "index out of range").field("index"))
+    })?;
+    let mut o = out();
+    if format == ReproFormat::Csv {
+        write!(
+            o,
+            "{}{}",
+            csv_header(&spec),
+            csv_row(&generator, &spec, index, &inputs)
+        )
+        .map_err(cli_util::stdout_error)?;
+        return Ok(Outcome::Success);
+    }
+    let cat = generator.catalogue();
+    let mut hits = arithvec::Hits::new();
+    let outputs = cat.evaluate(&inputs, &mut hits);
+    let d = generator.directed().len() as u64;
+    let origin = if index < d {
+        format!("directed vector {index} of {d}")
+    } else {
+        format!("random vector {} (seed {})", index - d, generator.seed())
+    };
+    writeln!(
+        o,
+        "vector {index} of unit {} ({} {} {} bits): {origin}",
+        spec.name, spec.operation, spec.encoding, spec.width
+    )
+    .map_err(cli_util::stdout_error)?;
+    let mut rows = Vec::new();
+    for (sig, name) in spec.inputs() {
+        rows.push(field_row("input", sig, name, &inputs.get(sig), &spec));
+    }
+    for (sig, name) in spec.outputs() {
+        rows.push(field_row("expected", sig, name, &outputs.get(sig), &spec));
+    }
+    let table = cli_util::table(&["", "port", "hex", "binary", "value"], &rows);
+    writeln!(o, "{table}").map_err(cli_util::stdout_error)?;
+    let mut list = String::new();
+    cat.class_list(&hits, &mut list);
+    writeln!(o, "classes: {list}").map_err(cli_util::stdout_error)?;
+    let mut bins = Vec::new();
+    hits.for_each_bin(|b| bins.push(b));
+    bins.sort_unstable();
+    let named: Vec<String> = bins.iter().map(|&b| cat.bin_id(b)).collect();
+    if named.len() <= 40 {
+        writeln!(o, "bins: {}", named.join(" ")).map_err(cli_util::stdout_error)?;
+    } else {
+        writeln!(
+            o,
+            "bins: {} (list with --format csv is not per bin; {} shown)",
+            named.len(),
+            40
+        )
+        .map_err(cli_util::stdout_error)?;
+        writeln!(o, "  {}", named[..40].join(" ")).map_err(cli_util::stdout_error)?;
+    }
+    Ok(Outcome::Success)
+}
+
+fn field_row(role: &str, sig: Signal, name: &str, v: &arithvec::Word, spec: &Spec) -> [String; 5] {
+    let w = sig.width(spec.width);
+    let value = if matches!(sig, Signal::A | Signal::B | Signal::Result) {
+        format!("{} ({})", Value::decode(v, w, spec.encoding), spec.encoding)
+    } else {
+        (v.bit(0) as u8).to_string()
+    };
+    [
+        role.to_string(),
+        format!("{name} ({})", sig.key()),
+        format!("0x{}", v.to_hex(w)),
+        v.to_bin(w),
+        value,
+    ]
+}

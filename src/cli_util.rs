@@ -1,0 +1,93 @@
+//! Small helpers shared by the subcommands: reading the spec, stdout handling, progress bars,
+//! tables and exit codes.
+
+use std::io::{IsTerminal, Write};
+use std::path::Path;
+use std::process::ExitCode;
+
+use arithvec::{Error, Spec};
+use tabled::builder::Builder;
+use tabled::settings::Style;
+
+/// How a subcommand ended, mapped to the documented exit codes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Outcome {
+    /// 0: success.
+    Success,
+    /// 1: mismatches or unknown outputs.
+    Mismatch,
+    /// 3: everything passed but coverage is short of the requirement.
+    CoverageShort,
+}
+
+impl Outcome {
+    pub fn code(self) -> ExitCode {
+        match self {
+            Outcome::Success => ExitCode::SUCCESS,
+            Outcome::Mismatch => ExitCode::from(1),
+            Outcome::CoverageShort => ExitCode::from(3),
+        }
+    }
+}
+
+/// Reads and validates a spec file.
+pub fn read_spec(path: &Path) -> Result<Spec, Error> {
+    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    Spec::parse(&text, &path.display().to_string())
+}
+
+/// Buffered, locked stdout.
+pub fn out() -> std::io::BufWriter<std::io::StdoutLock<'static>> {
+    std::io::BufWriter::new(std::io::stdout().lock())
+}
+
+/// Wraps a stdout write error (a broken pipe exits quietly in main).
+pub fn stdout_error(e: std::io::Error) -> Error {
+    Error::io(Path::new("<stdout>"), e)
+}
+
+/// A progress bar on stderr for runs long enough to wait on; None when quiet, when stderr is
+/// not a terminal, or when the job is small. No colours, so NO_COLOR holds trivially.
+pub fn progress_bar(total: u64, quiet: bool, unit: &str) -> Option<indicatif::ProgressBar> {
+    if quiet || total < 2_000_000 || !std::io::stderr().is_terminal() {
+        return None;
+    }
+    let bar = indicatif::ProgressBar::new(total);
+    let template = format!(
+        "{{elapsed_precise}} [{{bar:40}}] {{pos}}/{{len}} {unit} ({{per_sec}}, eta {{eta}})"
+    );
+    if let Ok(style) = indicatif::ProgressStyle::with_template(&template) {
+        bar.set_style(style.progress_chars("=> "));
+    }
+    Some(bar)
+}
+
+/// A plain table with a header row.
+pub fn table<const N: usize>(header: &[&str; N], rows: &[[String; N]]) -> String {
+    let mut b = Builder::default();
+    b.push_record(header.iter().map(|h| h.to_string()));
+    for r in rows {
+        b.push_record(r.iter().cloned());
+    }
+    let mut t = b.build();
+    t.with(Style::sharp());
+    t.to_string()
+}
+
+/// Writes `text` to `path` atomically (temporary file, then rename).
+pub fn write_atomic(path: &Path, text: &[u8]) -> Result<(), Error> {
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "out".into());
+    let tmp = dir.join(format!(".{name}.tmp"));
+    let mut f = std::fs::File::create(&tmp).map_err(|e| Error::io(&tmp, e))?;
+    f.write_all(text).map_err(|e| Error::io(&tmp, e))?;
+    f.sync_all().map_err(|e| Error::io(&tmp, e))?;
+    drop(f);
+    std::fs::rename(&tmp, path).map_err(|e| Error::io(path, e))
+}

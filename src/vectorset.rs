@@ -1,0 +1,635 @@
+//! A vector set on disk: `vectors.csv`, `stimulus.hex`, `expected.hex` and `manifest.json`
+//! in one directory, written atomically and read back.
+//!
+//! Writing streams: vectors are produced and formatted in chunks on worker threads and
+//! written in order, so memory stays flat however many vectors there are. Every file goes to
+//! a temporary name first and is renamed into place only when all of them are complete, the
+//! manifest last; an interrupted run leaves the previous set intact. Same spec and seed give
+//! byte-identical files (no dates, no host names, fixed formatting).
+
+use std::fs::File;
+use std::io::{BufRead, BufReader, Write};
+use std::path::{Path, PathBuf};
+use std::sync::mpsc;
+
+use serde::{Deserialize, Serialize};
+use sha2::{Digest, Sha256};
+
+use crate::classes::Hits;
+use crate::error::{Error, Problem, Result};
+use crate::generate::{evaluate_vector, Generator};
+use crate::hexfile::{header, Packer};
+use crate::layout::{Layout, WordLayout};
+use crate::model::{Inputs, Outputs};
+use crate::spec::{Signal, Spec};
+use crate::word::Word;
+
+/// File names inside a vector-set directory.
+pub const VECTORS_CSV: &str = "vectors.csv";
+/// Packed inputs.
+pub const STIMULUS_HEX: &str = "stimulus.hex";
+/// Packed expected outputs.
+pub const EXPECTED_HEX: &str = "expected.hex";
+/// The manifest.
+pub const MANIFEST_JSON: &str = "manifest.json";
+
+/// Which slice of the set to write: shard `index` of `count` (0-based).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Shard {
+    /// This shard, 0-based.
+    pub index: u64,
+    /// Number of shards.
+    pub count: u64,
+}
+
+impl Shard {
+    /// The vector index range of this shard within `total` vectors.
+    pub fn range(&self, total: u64) -> std::ops::Range<u64> {
+        let at = |i: u64| ((total as u128 * i as u128) / self.count as u128) as u64;
+        at(self.index)..at(self.index + 1)
+    }
+}
+
+/// One file's record in the manifest.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct FileRecord {
+    /// File name inside the directory.
+    pub name: String,
+    /// Size in bytes.
+    pub bytes: u64,
+    /// SHA-256, lowercase hex.
+    pub sha256: String,
+}
+
+/// Field position in the manifest's layout.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ManifestField {
+    /// Port name.
+    pub name: String,
+    /// arithvec signal key (`a`, `carry_in`, `result`, ...).
+    pub signal: String,
+    /// Highest bit.
+    pub msb: u32,
+    /// Lowest bit.
+    pub lsb: u32,
+}
+
+/// One packed word's layout in the manifest.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ManifestWord {
+    /// Bits per word.
+    pub width: u32,
+    /// Hex digits per line.
+    pub digits: u32,
+    /// Fields, highest first.
+    pub fields: Vec<ManifestField>,
+}
+
+impl ManifestWord {
+    fn of(layout: &WordLayout) -> ManifestWord {
+        ManifestWord {
+            width: layout.width,
+            digits: layout.hex_digits(),
+            fields: layout
+                .fields
+                .iter()
+                .map(|f| ManifestField {
+                    name: f.name.clone(),
+                    signal: f.signal.key().to_string(),
+                    msb: f.msb,
+                    lsb: f.lsb,
+                })
+                .collect(),
+        }
+    }
+}
+
+/// The manifest's field layouts.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct ManifestLayout {
+    /// `stimulus.hex`.
+    pub stimulus: ManifestWord,
+    /// `expected.hex`.
+    pub expected: ManifestWord,
+}
+
+/// `manifest.json`: what was generated, from what, and the files' hashes.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Manifest {
+    /// Always "arithvec".
+    pub tool: String,
+    /// arithvec's version.
+    pub version: String,
+    /// The unit name.
+    pub unit: String,
+    /// The normalised spec (every default filled in).
+    pub spec: serde_json::Value,
+    /// SHA-256 of the normalised spec without its `[random]` table: the unit's identity.
+    pub spec_sha256: String,
+    /// The seed used.
+    pub seed: u64,
+    /// Directed vectors (indices 0..directed).
+    pub directed: u64,
+    /// Random vectors after them.
+    pub random: u64,
+    /// directed + random.
+    pub total: u64,
+    /// The shard this directory holds, if the run was sharded.
+    pub shard: Option<Shard>,
+    /// First vector index in these files.
+    pub first_index: u64,
+    /// Vectors in these files.
+    pub vectors: u64,
+    /// Field layouts.
+    pub layout: ManifestLayout,
+    /// The files and their hashes.
+    pub files: Vec<FileRecord>,
+}
+
+/// SHA-256 of `bytes` as lowercase hex.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    hex_of(&Sha256::digest(bytes))
+}
+
+fn hex_of(bytes: &[u8]) -> String {
+    bytes.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// The unit identity hash: the normalised spec without `[random]`.
+pub fn spec_identity(spec: &Spec) -> String {
+    let mut v: serde_json::Value = serde_json::from_str(&spec.normalised_json()).expect("json");
+    if let Some(o) = v.as_object_mut() {
+        o.remove("random");
+    }
+    sha256_hex(v.to_string().as_bytes())
+}
+
+/// Options for [`write`].
+#[derive(Default)]
+pub struct WriteOptions<'a> {
+    /// Write only this shard.
+    pub shard: Option<Shard>,
+    /// Called now and then with the number of vectors written so far.
+    pub progress: Option<&'a mut dyn FnMut(u64)>,
+    /// Worker threads (0: as many as the machine has, at most 4).
+    pub threads: usize,
+}
+
+/// Formats vectors into the three files' bytes.
+struct Formatter<'a> {
+    generator: &'a Generator,
+    stimulus: Packer,
+    expected: Packer,
+    inputs: Vec<(Signal, u32)>,
+    outputs: Vec<(Signal, u32)>,
+}
+
+/// The formatted bytes of one chunk.
+#[derive(Default)]
+struct Chunk {
+    csv: Vec<u8>,
+    stimulus: Vec<u8>,
+    expected: Vec<u8>,
+}
+
+impl Formatter<'_> {
+    fn format_range(&self, range: std::ops::Range<u64>, chunk: &mut Chunk) {
+        let cat = self.generator.catalogue();
+        let d = self.generator.directed().len() as u64;
+        let mut hits = Hits::new();
+        let mut classes = String::new();
+        let mut stream = None;
+        for index in range {
+            let inputs = if index < d {
+                self.generator.directed()[index as usize]
+            } else {
+                stream
+                    .get_or_insert_with(|| self.generator.random_stream(index - d))
+                    .next_inputs()
+            };
+            classes.clear();
+            let outputs = evaluate_vector(cat, &inputs, &mut hits, Some(&mut classes));
+            self.push_row(index, &inputs, &outputs, &classes, chunk);
+        }
+    }
+
+    fn push_row(
+        &self,
+        index: u64,
+        inputs: &Inputs,
+        outputs: &Outputs,
+        classes: &str,
+        chunk: &mut Chunk,
+    ) {
+        push_decimal(index, &mut chunk.csv);
+        for &(s, w) in &self.inputs {
+            chunk.csv.push(b',');
+            push_hex(&inputs.get(s), w, &mut chunk.csv);
+        }
+        for &(s, w) in &self.outputs {
+            chunk.csv.push(b',');
+            push_hex(&outputs.get(s), w, &mut chunk.csv);
+        }
+        chunk.csv.push(b',');
+        chunk.csv.extend_from_slice(classes.as_bytes());
+        chunk.csv.push(b'\n');
+        self.stimulus
+            .push_line(|s| inputs.get(s), &mut chunk.stimulus);
+        self.expected
+            .push_line(|s| outputs.get(s), &mut chunk.expected);
+    }
+}
+
+/// The CSV header row (with newline).
+pub fn csv_header(spec: &Spec) -> String {
+    let mut s = String::from("index");
+    for (_, name) in spec.inputs().into_iter().chain(spec.outputs()) {
+        s.push(',');
+        s.push_str(name);
+    }
+    s.push_str(",classes\n");
+    s
+}
+
+/// Formats vector `index` as its CSV row, exactly as in `vectors.csv` (with newline).
+pub fn csv_row(generator: &Generator, spec: &Spec, index: u64, inputs: &Inputs) -> String {
+    let f = formatter(generator, spec);
+    let mut hits = Hits::new();
+    let mut classes = String::new();
+    let outputs = evaluate_vector(generator.catalogue(), inputs, &mut hits, Some(&mut classes));
+    let mut chunk = Chunk::default();
+    f.push_row(index, inputs, &outputs, &classes, &mut chunk);
+    String::from_utf8(chunk.csv).expect("ascii")
+}
+
+fn formatter<'a>(generator: &'a Generator, spec: &Spec) -> Formatter<'a> {
+    let layout = Layout::for_spec(spec);
+    Formatter {
+        generator,
+        stimulus: Packer::new(&layout.stimulus),
+        expected: Packer::new(&layout.expected),
+        inputs: spec
+            .inputs()
+            .iter()
+            .map(|(s, _)| (*s, s.width(spec.width)))
+            .collect(),
+        outputs: spec
+            .outputs()
+            .iter()
+            .map(|(s, _)| (*s, s.width(spec.width)))
+            .collect(),
+    }
+}
+
+fn push_decimal(mut v: u64, out: &mut Vec<u8>) {
+    let mut buf = [0u8; 20];
+    let mut i = buf.len();
+    loop {
+        i -= 1;
+        buf[i] = b'0' + (v % 10) as u8;
+        v /= 10;
+        if v == 0 {
+            break;
+        }
+    }
+    out.extend_from_slice(&buf[i..]);
+}
+
+fn push_hex(w: &Word, width: u32, out: &mut Vec<u8>) {
+    const HEX: &[u8; 16] = b"0123456789abcdef";
+    let digits = width.div_ceil(4);
+    if width <= 64 {
+        let v = w.low_u64();
+        for d in (0..digits).rev() {
+            out.push(HEX[((v >> (d * 4)) & 0xf) as usize]);
+        }
+    } else {
+        let limbs = w.limbs();
+        for d in (0..digits).rev() {
+            out.push(HEX[((limbs[(d / 16) as usize] >> ((d % 16) * 4)) & 0xf) as usize]);
+        }
+    }
+}
+
+/// A file being written under a temporary name, hashing as it goes.
+struct PendingFile {
+    path: PathBuf,
+    tmp: PathBuf,
+    file: std::io::BufWriter<File>,
+    hasher: Sha256,
+    bytes: u64,
+}
+
+impl PendingFile {
+    fn create(dir: &Path, name: &str) -> Result<PendingFile> {
+        let path = dir.join(name);
+        let tmp = dir.join(format!(".{name}.tmp"));
+        let file = File::create(&tmp).map_err(|e| Error::io(&tmp, e))?;
+        Ok(PendingFile {
+            path,
+            tmp,
+            file: std::io::BufWriter::with_capacity(1 << 20, file),
+            hasher: Sha256::new(),
+            bytes: 0,
+        })
+    }
+
+    fn write(&mut self, data: &[u8]) -> Result<()> {
+        self.hasher.update(data);
+        self.bytes += data.len() as u64;
+        self.file
+            .write_all(data)
+            .map_err(|e| Error::io(&self.tmp, e))
+    }
+
+    /// Flushes and syncs; returns the record. The file keeps its temporary name.
+    fn finish(mut self) -> Result<(FileRecord, PathBuf, PathBuf)> {
+        self.file.flush().map_err(|e| Error::io(&self.tmp, e))?;
+        let name = self
+            .path
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        let record = FileRecord {
+            name,
+            bytes: self.bytes,
+            sha256: hex_of(&self.hasher.finalize()),
+        };
+        Ok((record, self.tmp, self.path))
+    }
+}
+
+/// Writes the vector set of `generator` for `spec` into `dir` (created if missing) and
+/// returns its manifest.
+pub fn write(
+    generator: &Generator,
+    spec: &Spec,
+    dir: &Path,
+    mut options: WriteOptions<'_>,
+) -> Result<Manifest> {
+    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    let total = generator.total();
+    let range = options.shard.map(|s| s.range(total)).unwrap_or(0..total);
+    let first_shard = options.shard.is_none_or(|s| s.index == 0);
+    let layout = Layout::for_spec(spec);
+
+    let mut csv = PendingFile::create(dir, VECTORS_CSV)?;
+    let mut stim = PendingFile::create(dir, STIMULUS_HEX)?;
+    let mut exp = PendingFile::create(dir, EXPECTED_HEX)?;
+    let result = (|| -> Result<()> {
+        if first_shard {
+            csv.write(csv_header(spec).as_bytes())?;
+            stim.write(header("stimulus", &spec.name, &layout.stimulus, total).as_bytes())?;
+            exp.write(header("expected outputs", &spec.name, &layout.expected, total).as_bytes())?;
+        }
+        let formatter = formatter(generator, spec);
+        let threads = match options.threads {
+            0 => std::thread::available_parallelism()
+                .map_or(1, |n| n.get())
+                .min(4),
+            n => n,
+        };
+        // Chunks small enough to keep memory flat, large enough to amortise hand-offs.
+        let chunk_len: u64 = if spec.width <= 64 { 16384 } else { 2048 };
+        let chunks = (range.end - range.start).div_ceil(chunk_len);
+        let chunk_range = |c: u64| {
+            let s = range.start + c * chunk_len;
+            s..(s + chunk_len).min(range.end)
+        };
+        // Spent chunks go back to the workers so their buffers are reused.
+        let (return_tx, return_rx) = mpsc::channel::<Chunk>();
+        let return_rx = std::sync::Mutex::new(return_rx);
+        std::thread::scope(|scope| -> Result<()> {
+            let mut receivers = Vec::new();
+            for t in 0..threads as u64 {
+                let (tx, rx) = mpsc::sync_channel::<Chunk>(2);
+                receivers.push(rx);
+                let formatter = &formatter;
+                let return_rx = &return_rx;
+                scope.spawn(move || {
+                    let mut c = t;
+                    while c < chunks {
+                        let mut chunk = return_rx
+                            .lock()
+                            .ok()
+                            .and_then(|r| r.try_recv().ok())
+                            .unwrap_or_default();
+                        chunk.csv.clear();
+                        chunk.stimulus.clear();
+                        chunk.expected.clear();
+                        formatter.format_range(chunk_range(c), &mut chunk);
+                        if tx.send(chunk).is_err() {
+                            return;
+                        }
+                        c += threads as u64;
+                    }
+                });
+            }
+            let mut written = 0;
+            for c in 0..chunks {
+                let rx = &receivers[(c % threads as u64) as usize];
+                let Ok(chunk) = rx.recv() else {
+                    break;
+                };
+                csv.write(&chunk.csv)?;
+                stim.write(&chunk.stimulus)?;
+                exp.write(&chunk.expected)?;
+                written += chunk_range(c).end - chunk_range(c).start;
+                if let Some(p) = options.progress.as_mut() {
+                    p(written);
+                }
+                let _ = return_tx.send(chunk);
+            }
+            drop(receivers);
+            Ok(())
+        })
+    })();
+    let finished = result.and_then(|()| Ok([csv.finish()?, stim.finish()?, exp.finish()?]));
+    let finished = match finished {
+        Ok(f) => f,
+        Err(e) => {
+            for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX] {
+                let _ = std::fs::remove_file(dir.join(format!(".{name}.tmp")));
+            }
+            return Err(e);
+        }
+    };
+    let manifest = Manifest {
+        tool: "arithvec".into(),
+        version: env!("CARGO_PKG_VERSION").into(),
+        unit: spec.name.clone(),
+        spec: serde_json::from_str(&spec.normalised_json()).expect("json"),
+        spec_sha256: spec_identity(spec),
+        seed: generator.seed(),
+        directed: generator.directed().len() as u64,
+        random: generator.random_count(),
+        total,
+        shard: options.shard,
+        first_index: range.start,
+        vectors: range.end - range.start,
+        layout: ManifestLayout {
+            stimulus: ManifestWord::of(&layout.stimulus),
+            expected: ManifestWord::of(&layout.expected),
+        },
+        files: finished.iter().map(|(r, _, _)| r.clone()).collect(),
+    };
+    let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
+    text.push('\n');
+    let mut mf = PendingFile::create(dir, MANIFEST_JSON)?;
+    mf.write(text.as_bytes())?;
+    let (_, mtmp, mpath) = mf.finish()?;
+    for (_, tmp, path) in finished {
+        std::fs::rename(&tmp, &path).map_err(|e| Error::io(&path, e))?;
+    }
+    std::fs::rename(&mtmp, &mpath).map_err(|e| Error::io(&mpath, e))?;
+    Ok(manifest)
+}
+
+/// A vector set read back from disk: the manifest and, per vector, its inputs and expected
+/// outputs as packed in the hex files.
+#[derive(Debug, Clone)]
+pub struct VectorSet {
+    /// The manifest.
+    pub manifest: Manifest,
+    /// Inputs by position (vector index = `manifest.first_index` + position).
+    pub inputs: Vec<Inputs>,
+    /// Expected outputs by position.
+    pub expected: Vec<Outputs>,
+}
+
+/// Reads the manifest of the set in `dir`.
+pub fn read_manifest(dir: &Path) -> Result<Manifest> {
+    let path = dir.join(MANIFEST_JSON);
+    let text = std::fs::read_to_string(&path).map_err(|e| Error::io(&path, e))?;
+    serde_json::from_str(&text).map_err(|e| {
+        Error::problem(
+            Problem::new(
+                path.display().to_string(),
+                format!("not an arithvec manifest: {e}"),
+            )
+            .at_line(e.line()),
+        )
+    })
+}
+
+impl VectorSet {
+    /// Reads the set in `dir`, checking it belongs to `spec` (same unit identity and
+    /// layout) and that the files match their recorded hashes.
+    pub fn read(dir: &Path, spec: &Spec) -> Result<VectorSet> {
+        let manifest = read_manifest(dir)?;
+        let mpath = dir.join(MANIFEST_JSON).display().to_string();
+        if manifest.spec_sha256 != spec_identity(spec) {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    format!(
+                        "this vector set was generated from a different spec (unit \"{}\"); \
+                         regenerate it with `arithvec gen`",
+                        manifest.unit
+                    ),
+                )
+                .field("spec_sha256"),
+            ));
+        }
+        let layout = Layout::for_spec(spec);
+        let mut sets = Vec::new();
+        for (name, word) in [
+            (STIMULUS_HEX, &layout.stimulus),
+            (EXPECTED_HEX, &layout.expected),
+        ] {
+            let path = dir.join(name);
+            let file = File::open(&path).map_err(|e| Error::io(&path, e))?;
+            let mut reader = BufReader::new(file);
+            let packer = Packer::new(word);
+            let mut line = String::new();
+            let mut rows = Vec::with_capacity(manifest.vectors as usize);
+            let mut hasher = Sha256::new();
+            let mut n = 0;
+            loop {
+                line.clear();
+                let got = reader
+                    .read_line(&mut line)
+                    .map_err(|e| Error::io(&path, e))?;
+                if got == 0 {
+                    break;
+                }
+                hasher.update(line.as_bytes());
+                n += 1;
+                let t = line.trim();
+                if t.is_empty() || t.starts_with("//") {
+                    continue;
+                }
+                match packer.unpack(t) {
+                    Some(fields) => rows.push(fields),
+                    None => {
+                        return Err(Error::problem(
+                            Problem::new(
+                                path.display().to_string(),
+                                format!(
+                                    "expected {} hex digits for a {}-bit word, found \"{t}\"",
+                                    word.hex_digits(),
+                                    word.width
+                                ),
+                            )
+                            .at_line(n),
+                        ))
+                    }
+                }
+            }
+            let digest = hex_of(&hasher.finalize());
+            if let Some(rec) = manifest.files.iter().find(|f| f.name == name) {
+                if rec.sha256 != digest {
+                    return Err(Error::problem(Problem::new(
+                        path.display().to_string(),
+                        "the file does not match the SHA-256 in manifest.json (edited or \
+                         truncated?); regenerate the set",
+                    )));
+                }
+            }
+            if rows.len() as u64 != manifest.vectors {
+                return Err(Error::problem(Problem::new(
+                    path.display().to_string(),
+                    format!(
+                        "holds {} words but manifest.json says {}",
+                        rows.len(),
+                        manifest.vectors
+                    ),
+                )));
+            }
+            sets.push(rows);
+        }
+        let expected_rows = sets.pop().unwrap_or_default();
+        let input_rows = sets.pop().unwrap_or_default();
+        let inputs = input_rows
+            .into_iter()
+            .map(|fields| {
+                let mut i = Inputs::default();
+                for (f, v) in layout.stimulus.fields.iter().zip(fields) {
+                    i.set(f.signal, v);
+                }
+                i
+            })
+            .collect();
+        let expected = expected_rows
+            .into_iter()
+            .map(|fields| {
+                let mut o = Outputs::default();
+                for (f, v) in layout.expected.fields.iter().zip(fields) {
+                    o.set(f.signal, v);
+                }
+                o
+            })
+            .collect();
+        Ok(VectorSet {
+            manifest,
+            inputs,
+            expected,
+        })
+    }
+
+    /// The inputs of vector `index`, if the set holds it.
+    pub fn get(&self, index: u64) -> Option<&Inputs> {
+        let pos = index.checked_sub(self.manifest.first_index)?;
+        self.inputs.get(pos as usize)
+    }
+}
