@@ -8,24 +8,35 @@
 #![deny(missing_docs)]
 
 mod bits;
+mod check;
 mod classes;
+mod coverage;
 mod encoding;
 mod error;
 mod generate;
 mod hexfile;
 mod layout;
 mod model;
+mod report;
 mod spec;
 mod vectorset;
 mod word;
 
+pub use check::{
+    merge as merge_reports, CheckOptions, CheckReport, Checker, Failure, FieldValueReport, Gate,
+    LogProblems, Observed, OutOfStep, OutputReport, Verdict, EVIDENCE_NOTE,
+};
 pub use classes::{Catalogue, Class, Hits};
+pub use coverage::{
+    BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
+};
 pub use encoding::Value;
 pub use error::{Error, ErrorKind, Problem, Result};
 pub use generate::{Generator, RandomStream};
 pub use hexfile::Packer;
 pub use layout::{Field, Layout, WordLayout};
 pub use model::{Inputs, Model, Outputs};
+pub use report::{render_junit, render_text, verdict_line, ClassRows};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
     NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,

@@ -439,6 +439,79 @@ impl Spec {
         serde_json::to_string(self).expect("spec serialises")
     }
 
+    /// The normalised spec as TOML that [`Spec::parse`] reads back to an equal spec: every
+    /// key written, conventions only where they have an effect.
+    pub fn to_toml(&self) -> String {
+        let q = |s: &str| format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""));
+        let mut t = format!(
+            "name = {}\noperation = {}\nwidth = {}\nencoding = {}\n\n[ports]\n",
+            q(&self.name),
+            q(self.operation.name()),
+            self.width,
+            q(self.encoding.name())
+        );
+        for sig in Signal::ALL {
+            if let Some(p) = self.ports.get(sig) {
+                t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
+            }
+        }
+        let c = &self.conventions;
+        let mut conv = String::new();
+        if self.subtracts() && self.encoding.is_binary_datapath() && self.has(Signal::CarryOut) {
+            let v = match c.carry_out {
+                CarryOutConvention::Borrow => "borrow",
+                CarryOutConvention::Carry => "carry",
+            };
+            conv.push_str(&format!("carry_out = {}\n", q(v)));
+        }
+        if matches!(self.operation, Operation::Sub | Operation::AddSub) && self.has(Signal::CarryIn) {
+            let v = match c.carry_in {
+                CarryInConvention::Borrow => "borrow",
+                CarryInConvention::Carry => "carry",
+            };
+            conv.push_str(&format!("carry_in = {}\n", q(v)));
+        }
+        if self.encoding.has_negative_zero() && self.operation != Operation::Compare {
+            let v = match c.negative_zero {
+                NegativeZero::Hardware => "hardware",
+                NegativeZero::Positive => "positive",
+                NegativeZero::Either => "either",
+            };
+            conv.push_str(&format!("negative_zero = {}\n", q(v)));
+        }
+        if self.has(Signal::Zero) && self.encoding != Encoding::Offset {
+            let v = match c.zero_flag {
+                ZeroFlag::Value => "value",
+                ZeroFlag::Bits => "bits",
+            };
+            conv.push_str(&format!("zero_flag = {}\n", q(v)));
+        }
+        if !conv.is_empty() {
+            t.push_str("\n[conventions]\n");
+            t.push_str(&conv);
+        }
+        let r = &self.random;
+        t.push_str(&format!("\n[random]\ncount = {}\nseed = {}\n", r.count, r.seed));
+        if r.mix == Mix::Corner {
+            t.push_str(&format!("mix = \"corner\"\ncorner_share = {}\n", r.corner_share));
+        }
+        if let Some(d) = &self.dut {
+            t.push_str(&format!("\n[dut]\nmodule = {}\n", q(&d.module)));
+            if !d.parameters.is_empty() {
+                let list: Vec<String> = d
+                    .parameters
+                    .iter()
+                    .map(|(k, v)| match v {
+                        ParamValue::Int(i) => format!("{k} = {i}"),
+                        ParamValue::Str(s) => format!("{k} = {}", q(s)),
+                    })
+                    .collect();
+                t.push_str(&format!("parameters = {{ {} }}\n", list.join(", ")));
+            }
+        }
+        t
+    }
+
     /// A minimal spec with default ports for `operation` (every signal the operation can have
     /// under `encoding`, named by its key), for tests and examples.
     pub fn with_defaults(operation: Operation, encoding: Encoding, width: u32) -> Spec {
@@ -1137,6 +1210,22 @@ carry_out = "carry"
             err.problems()[0].field.as_deref(),
             Some("conventions.carry_out")
         );
+    }
+
+    #[test]
+    fn normalised_toml_reads_back_equal() {
+        let spec = Spec::parse(GOOD, "unit.toml").unwrap();
+        assert_eq!(Spec::parse(&spec.to_toml(), "again.toml").unwrap(), spec);
+        for op in Operation::ALL {
+            for enc in Encoding::ALL {
+                let mut s = Spec::with_defaults(op, enc, 8);
+                s.dut = Some(Dut {
+                    module: "m".into(),
+                    parameters: [("W".to_string(), ParamValue::Int(8))].into_iter().collect(),
+                });
+                assert_eq!(Spec::parse(&s.to_toml(), "x.toml").unwrap(), s, "{op} {enc}");
+            }
+        }
     }
 
     #[test]
