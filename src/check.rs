@@ -11,7 +11,9 @@
 use serde::{Deserialize, Serialize};
 
 use crate::classes::Hits;
-use crate::coverage::{summarise, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary};
+use crate::coverage::{
+    summarise, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
+};
 use crate::encoding::Value;
 use crate::error::Problem;
 use crate::generate::{Generator, RandomStream};
@@ -341,7 +343,10 @@ impl<'g> Checker<'g> {
             ));
         }
         if !spec.outputs().iter().any(|(s, _)| columns.contains(s)) {
-            return Err(Problem::new("<log>", "the log has no output column to check"));
+            return Err(Problem::new(
+                "<log>",
+                "the log has no output column to check",
+            ));
         }
         Ok(Checker {
             spec: spec.clone(),
@@ -379,7 +384,12 @@ impl<'g> Checker<'g> {
     }
 
     /// Checks one row. `field` gives the observed value of a signal present in the log.
-    pub fn row(&mut self, line: usize, index: Option<u64>, field: impl Fn(Signal) -> Option<Observed>) {
+    pub fn row(
+        &mut self,
+        line: usize,
+        index: Option<u64>,
+        field: impl Fn(Signal) -> Option<Observed>,
+    ) {
         let index = index.unwrap_or(self.position);
         self.position += 1;
         if self.seen.mark(index) {
@@ -544,7 +554,12 @@ impl<'g> Checker<'g> {
             let got_as = if w > 1 && unknown.is_zero() && status == "wrong" {
                 Encoding::ALL
                     .iter()
-                    .map(|&enc| (enc.name().to_string(), Value::decode(&o.bits, w, enc).to_string()))
+                    .map(|&enc| {
+                        (
+                            enc.name().to_string(),
+                            Value::decode(&o.bits, w, enc).to_string(),
+                        )
+                    })
                     .collect()
             } else {
                 Vec::new()
@@ -709,7 +724,11 @@ pub fn merge(
             .field("version"));
         }
         if r.counts.bin_hits.len() != generator.catalogue().bin_count() {
-            return Err(Problem::new(name.clone(), "report's coverage counts do not match this spec's classes").field("counts"));
+            return Err(Problem::new(
+                name.clone(),
+                "report's coverage counts do not match this spec's classes",
+            )
+            .field("counts"));
         }
         match &mut counts {
             Some(c) => c.add(&r.counts),
@@ -726,7 +745,9 @@ pub fn merge(
         }
         let p = &r.log_problems;
         problems.missing += p.missing;
-        problems.missing_first.extend(p.missing_first.iter().copied());
+        problems
+            .missing_first
+            .extend(p.missing_first.iter().copied());
         problems.missing_first.truncate(20);
         problems.duplicate_count += p.duplicate_count;
         problems.duplicates.extend(p.duplicates.iter().copied());

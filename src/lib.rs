@@ -16,6 +16,7 @@ mod error;
 mod generate;
 mod hexfile;
 mod layout;
+mod log;
 mod model;
 mod report;
 mod spec;
@@ -35,6 +36,7 @@ pub use error::{Error, ErrorKind, Problem, Result};
 pub use generate::{Generator, RandomStream};
 pub use hexfile::Packer;
 pub use layout::{Field, Layout, WordLayout};
+pub use log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use model::{Inputs, Model, Outputs};
 pub use report::{render_junit, render_text, verdict_line, ClassRows};
 pub use spec::{

@@ -12,6 +12,7 @@ use arithvec::{
     Spec, Value, WriteOptions,
 };
 
+mod cli_check;
 mod cli_util;
 
 use cli_util::{out, read_spec, Outcome};
@@ -90,6 +91,12 @@ enum Command {
         #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
         format: ReproFormat,
     },
+    /// Check a simulator's result log against the golden model and score coverage.
+    #[command(after_help = cli_check::CHECK_HELP)]
+    Check(cli_check::CheckArgs),
+    /// Combine JSON check reports of several runs or shards of one spec.
+    #[command(after_help = cli_check::MERGE_HELP)]
+    Merge(cli_check::MergeArgs),
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -144,6 +151,8 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             seed,
             format,
         } => repro(&spec, index, seed, format),
+        Command::Check(args) => cli_check::check(args, quiet),
+        Command::Merge(args) => cli_check::merge(args, quiet),
     }
 }
 

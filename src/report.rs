@@ -36,16 +36,30 @@ pub enum ClassRows {
 pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
     let mut s = String::new();
     let c = &r.coverage;
-    s.push_str(&format!("arithvec check of unit {} ({})\n", r.unit, r.logs.join(", ")));
+    s.push_str(&format!(
+        "arithvec check of unit {} ({})\n",
+        r.unit,
+        r.logs.join(", ")
+    ));
     s.push_str(&table(
-        &["vectors", "passed", "failed", "unknown", "classes covered", "bins covered"],
+        &[
+            "vectors",
+            "passed",
+            "failed",
+            "unknown",
+            "classes covered",
+            "bins covered",
+        ],
         vec![vec![
             r.vectors.to_string(),
             r.passed.to_string(),
             r.failed.to_string(),
             r.unknown.to_string(),
             format!("{} / {} ({:.2}%)", c.covered, c.total, c.percent),
-            format!("{} / {} ({:.2}%)", c.bins_covered, c.bins_total, c.bins_percent),
+            format!(
+                "{} / {} ({:.2}%)",
+                c.bins_covered, c.bins_total, c.bins_percent
+            ),
         ]],
     ));
     s.push('\n');
@@ -57,11 +71,18 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
         .map(|k| {
             let status = match k.status {
                 ClassStatus::Covered => "covered".to_string(),
-                ClassStatus::Missed => format!("missed ({} of {} bins)", k.bins_covered, k.bins_total),
+                ClassStatus::Missed => {
+                    format!("missed ({} of {} bins)", k.bins_covered, k.bins_total)
+                }
                 ClassStatus::Failing => "failing".to_string(),
                 ClassStatus::Unreachable => "unreachable".to_string(),
             };
-            vec![k.id.clone(), k.hits.to_string(), k.failures.to_string(), status]
+            vec![
+                k.id.clone(),
+                k.hits.to_string(),
+                k.failures.to_string(),
+                status,
+            ]
         })
         .collect();
     if !class_rows.is_empty() {
@@ -82,7 +103,11 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
             ));
         }
     }
-    let failing: Vec<_> = r.classes.iter().filter(|k| k.status == ClassStatus::Failing).collect();
+    let failing: Vec<_> = r
+        .classes
+        .iter()
+        .filter(|k| k.status == ClassStatus::Failing)
+        .collect();
     if !failing.is_empty() {
         s.push_str("bins where every hit failed point at the bug; failing bins, worst first:\n");
         for k in failing {
@@ -96,7 +121,10 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
         }
     }
     for f in &r.failures {
-        s.push_str(&format!("\n{} at vector {} (log line {})\n", f.kind, f.index, f.line));
+        s.push_str(&format!(
+            "\n{} at vector {} (log line {})\n",
+            f.kind, f.index, f.line
+        ));
         for i in &f.inputs {
             s.push_str(&format!("  {:<10} 0x{}  = {}\n", i.port, i.hex, i.value));
         }
@@ -118,18 +146,27 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
                     s.push_str(&format!("             expected {e}\n             got      {g}\n                      {marks}\n"));
                 }
             } else if !o.differing_bits.is_empty() {
-                s.push_str(&format!("             differing bits: {:?}\n", o.differing_bits));
+                s.push_str(&format!(
+                    "             differing bits: {:?}\n",
+                    o.differing_bits
+                ));
             }
             if !o.got_as.is_empty() {
                 let list: Vec<String> = o.got_as.iter().map(|(e, v)| format!("{e} {v}")).collect();
                 s.push_str(&format!("             got read as: {}\n", list.join(", ")));
             }
         }
-        s.push_str(&format!("  classes: {}\n  reproduce: {}\n", f.classes.join(" "), f.repro));
+        s.push_str(&format!(
+            "  classes: {}\n  reproduce: {}\n",
+            f.classes.join(" "),
+            f.repro
+        ));
     }
     let more = r.failed + r.unknown - r.failures.len() as u64;
     if more > 0 {
-        s.push_str(&format!("... and {more} more failing vectors (raise --max-failures to see them)\n"));
+        s.push_str(&format!(
+            "... and {more} more failing vectors (raise --max-failures to see them)\n"
+        ));
     }
     let p = &r.log_problems;
     if p.missing > 0 {
@@ -159,7 +196,10 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
         ));
     }
     if p.bad_line_count > 0 {
-        s.push_str(&format!("{} unparseable lines skipped (--lenient):\n", p.bad_line_count));
+        s.push_str(&format!(
+            "{} unparseable lines skipped (--lenient):\n",
+            p.bad_line_count
+        ));
         for l in &p.bad_lines {
             s.push_str(&format!("  {l}\n"));
         }
@@ -204,7 +244,10 @@ pub fn render_junit(r: &CheckReport) -> String {
             }
             ClassStatus::Failing => {
                 let mut s = TestCaseStatus::non_success(NonSuccessKind::Failure);
-                s.set_message(format!("{} of {} vectors in this class failed", k.failures, k.hits));
+                s.set_message(format!(
+                    "{} of {} vectors in this class failed",
+                    k.failures, k.hits
+                ));
                 let bins: Vec<String> = k
                     .failing_bins
                     .iter()
@@ -228,7 +271,10 @@ pub fn render_junit(r: &CheckReport) -> String {
         suite.add_test_case(case);
     }
     let p = &r.log_problems;
-    let complete = !(p.missing > 0 || p.duplicate_count > 0 || p.out_of_step.is_some() || !p.out_of_range.is_empty());
+    let complete = !(p.missing > 0
+        || p.duplicate_count > 0
+        || p.out_of_step.is_some()
+        || !p.out_of_range.is_empty());
     let status = if complete {
         TestCaseStatus::success()
     } else {

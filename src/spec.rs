@@ -464,7 +464,8 @@ impl Spec {
             };
             conv.push_str(&format!("carry_out = {}\n", q(v)));
         }
-        if matches!(self.operation, Operation::Sub | Operation::AddSub) && self.has(Signal::CarryIn) {
+        if matches!(self.operation, Operation::Sub | Operation::AddSub) && self.has(Signal::CarryIn)
+        {
             let v = match c.carry_in {
                 CarryInConvention::Borrow => "borrow",
                 CarryInConvention::Carry => "carry",
@@ -491,9 +492,15 @@ impl Spec {
             t.push_str(&conv);
         }
         let r = &self.random;
-        t.push_str(&format!("\n[random]\ncount = {}\nseed = {}\n", r.count, r.seed));
+        t.push_str(&format!(
+            "\n[random]\ncount = {}\nseed = {}\n",
+            r.count, r.seed
+        ));
         if r.mix == Mix::Corner {
-            t.push_str(&format!("mix = \"corner\"\ncorner_share = {}\n", r.corner_share));
+            t.push_str(&format!(
+                "mix = \"corner\"\ncorner_share = {}\n",
+                r.corner_share
+            ));
         }
         if let Some(d) = &self.dut {
             t.push_str(&format!("\n[dut]\nmodule = {}\n", q(&d.module)));
@@ -1221,9 +1228,15 @@ carry_out = "carry"
                 let mut s = Spec::with_defaults(op, enc, 8);
                 s.dut = Some(Dut {
                     module: "m".into(),
-                    parameters: [("W".to_string(), ParamValue::Int(8))].into_iter().collect(),
+                    parameters: [("W".to_string(), ParamValue::Int(8))]
+                        .into_iter()
+                        .collect(),
                 });
-                assert_eq!(Spec::parse(&s.to_toml(), "x.toml").unwrap(), s, "{op} {enc}");
+                assert_eq!(
+                    Spec::parse(&s.to_toml(), "x.toml").unwrap(),
+                    s,
+                    "{op} {enc}"
+                );
             }
         }
     }
