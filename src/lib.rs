@@ -10,6 +10,7 @@
 mod error;
 mod layout;
 mod spec;
+mod testbench;
 mod word;
 
 pub use error::{Error, ErrorKind, Problem, Result};
@@ -17,5 +18,9 @@ pub use layout::{Field, Layout, WordLayout};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
     NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
+};
+pub use testbench::{
+    emit_testbench, testbench_file_name, testbench_name, Hdl, TestbenchOptions,
+    MAX_TESTBENCH_VECTORS,
 };
 pub use word::{hex_digits, Word, MAX_WIDTH};
