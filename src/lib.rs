@@ -20,6 +20,7 @@ mod log;
 mod model;
 mod report;
 mod spec;
+mod testbench;
 mod vectorset;
 mod word;
 
@@ -42,6 +43,10 @@ pub use report::{render_junit, render_text, verdict_line, ClassRows};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
     NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
+};
+pub use testbench::{
+    emit_testbench, testbench_file_name, testbench_name, Hdl, TestbenchOptions,
+    MAX_TESTBENCH_VECTORS,
 };
 pub use vectorset::{
     csv_header, csv_row, read_manifest, sha256_hex, spec_identity, write as write_vector_set,
