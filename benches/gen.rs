@@ -35,9 +35,25 @@ fn bare(dir: &std::path::Path, n: u64) {
         let (d, o1) = a.overflowing_sub(b);
         let (d, o2) = d.overflowing_sub(c);
         let bo = (o1 || o2) as u32;
-        writeln!(csv, "{i},{a:08x},{b:08x},{c},{d:08x},{bo},0,{},{},result.bits chain.length cell.rows", (d == 0) as u32, d >> 31).unwrap();
-        writeln!(stim, "{:017x}", ((a as u128) << 33) | ((b as u128) << 1) | c as u128).unwrap();
-        writeln!(exp, "{:09x}", ((d as u64) << 4) | ((bo as u64) << 3) | ((d >> 31) as u64)).unwrap();
+        writeln!(
+            csv,
+            "{i},{a:08x},{b:08x},{c},{d:08x},{bo},0,{},{},result.bits chain.length cell.rows",
+            (d == 0) as u32,
+            d >> 31
+        )
+        .unwrap();
+        writeln!(
+            stim,
+            "{:017x}",
+            ((a as u128) << 33) | ((b as u128) << 1) | c as u128
+        )
+        .unwrap();
+        writeln!(
+            exp,
+            "{:09x}",
+            ((d as u64) << 4) | ((bo as u64) << 3) | ((d >> 31) as u64)
+        )
+        .unwrap();
     }
 }
 
@@ -67,7 +83,11 @@ fn main() {
         );
         rates.push((count, rate));
     }
-    let one_m = rates.iter().find(|(c, _)| *c == 1_000_000).map(|r| r.1).unwrap_or(0.0);
+    let one_m = rates
+        .iter()
+        .find(|(c, _)| *c == 1_000_000)
+        .map(|r| r.1)
+        .unwrap_or(0.0);
     println!("bare formatter: {:.2} M vectors/s", bare_rate / 1e6);
     println!("arithvec / bare formatter: {:.2}", one_m / bare_rate);
     println!("goal: >= 10 M vectors/s on a 2-core machine");

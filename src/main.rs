@@ -8,8 +8,8 @@ use std::process::ExitCode;
 use clap::{Parser, Subcommand, ValueEnum};
 
 use arithvec::{
-    csv_header, csv_row, write_vector_set, Catalogue, Error, Generator, Problem, Shard, Signal,
-    Spec, Value, WriteOptions,
+    csv_header, csv_row, emit_testbench, testbench_file_name, write_vector_set, Catalogue, Error,
+    Generator, Hdl, Problem, Shard, Signal, Spec, TestbenchOptions, Value, WriteOptions,
 };
 
 mod cli_check;
@@ -91,6 +91,29 @@ enum Command {
         #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
         format: ReproFormat,
     },
+    /// Write a Verilog or VHDL testbench that applies a vector set to the DUT and logs results.
+    #[command(
+        after_help = "Example:\n  arithvec testbench unit.toml --vectors vec/ --hdl verilog -o tb.v\n  iverilog -g2005 -o sim tb.v my_sub.v && vvp sim +stimulus=vec/stimulus.hex +results=results.csv\n  arithvec check unit.toml --log results.csv --vectors vec/ --require 100\n\nThe spec needs a [dut] table naming the module (entity) and its parameters (generics)."
+    )]
+    Testbench {
+        /// The operation spec (TOML) with a [dut] table.
+        spec: PathBuf,
+        /// The vector set to apply (its manifest gives the vector count).
+        #[arg(long)]
+        vectors: PathBuf,
+        /// Hardware description language of the testbench.
+        #[arg(long, value_enum, default_value_t = HdlArg::Verilog)]
+        hdl: HdlArg,
+        /// Output file (default: the testbench's own name in the current directory).
+        #[arg(long, short)]
+        output: Option<PathBuf>,
+        /// Settle time per vector, in time units (ns for VHDL).
+        #[arg(long, default_value_t = 1)]
+        settle: u32,
+        /// Also load expected.hex and count mismatches in the testbench itself.
+        #[arg(long)]
+        self_check: bool,
+    },
     /// Check a simulator's result log against the golden model and score coverage.
     #[command(after_help = cli_check::CHECK_HELP)]
     Check(cli_check::CheckArgs),
@@ -103,6 +126,12 @@ enum Command {
 enum Format {
     Table,
     Json,
+}
+
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum HdlArg {
+    Verilog,
+    Vhdl,
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -151,6 +180,14 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             seed,
             format,
         } => repro(&spec, index, seed, format),
+        Command::Testbench {
+            spec,
+            vectors,
+            hdl,
+            output,
+            settle,
+            self_check,
+        } => testbench(&spec, &vectors, hdl, output, settle, self_check, quiet),
         Command::Check(args) => cli_check::check(args, quiet),
         Command::Merge(args) => cli_check::merge(args, quiet),
     }
@@ -396,6 +433,70 @@ fn repro(
         )
         .map_err(cli_util::stdout_error)?;
         writeln!(o, "  {}", named[..40].join(" ")).map_err(cli_util::stdout_error)?;
+    }
+    Ok(Outcome::Success)
+}
+
+fn testbench(
+    spec_path: &Path,
+    vectors: &Path,
+    hdl: HdlArg,
+    output: Option<PathBuf>,
+    settle: u32,
+    self_check: bool,
+    quiet: bool,
+) -> Result<Outcome, Error> {
+    let spec = read_spec(spec_path)?;
+    let manifest = arithvec::read_manifest(vectors)?;
+    if manifest.spec_sha256 != arithvec::spec_identity(&spec) {
+        return Err(Error::problem(
+            Problem::new(
+                vectors.join(arithvec::MANIFEST_JSON).display().to_string(),
+                "the vector set was generated from a different spec; regenerate it",
+            )
+            .field("spec_sha256"),
+        ));
+    }
+    let hdl = match hdl {
+        HdlArg::Verilog => Hdl::Verilog,
+        HdlArg::Vhdl => Hdl::Vhdl,
+    };
+    let mut options = TestbenchOptions::new(hdl, manifest.vectors);
+    options.settle = settle;
+    options.self_check = self_check;
+    let text = emit_testbench(&spec, &options).map_err(|e| {
+        // Name the spec file in problems the emitter could only attribute to the unit.
+        let problems = e
+            .problems()
+            .iter()
+            .map(|p| Problem {
+                file: spec_path.display().to_string(),
+                ..p.clone()
+            })
+            .collect::<Vec<_>>();
+        if problems.is_empty() {
+            e
+        } else {
+            Error::input(problems)
+        }
+    })?;
+    let path = output.unwrap_or_else(|| PathBuf::from(testbench_file_name(&spec, hdl)));
+    cli_util::write_atomic(&path, text.as_bytes())?;
+    if !quiet {
+        let mut o = out();
+        writeln!(
+            o,
+            "wrote {} testbench {} for {} vectors of unit {}{}; the file's header gives the commands to run it",
+            match hdl {
+                Hdl::Verilog => "Verilog",
+                _ => "VHDL",
+            },
+            path.display(),
+            manifest.vectors,
+            spec.name,
+            if self_check { " (self-checking)" } else { "" }
+        )
+        .map_err(cli_util::stdout_error)?;
     }
     Ok(Outcome::Success)
 }
