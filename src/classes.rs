@@ -96,7 +96,8 @@ impl Special {
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub(crate) enum Kind {
     Special(Operand, Special, Word),
-    Alternating(Operand),
+    /// Watches for ..0101 (this pattern) and ..1010 (its inverse).
+    Alternating(Operand, Word),
     WalkingOne(Operand),
     WalkingZero(Operand),
     ResultZeroFromNonzero,
@@ -388,13 +389,13 @@ impl Catalogue {
             match &class.kind {
                 Kind::Special(operand, _, code) => {
                     let x = if *operand == Operand::A { a } else { b };
-                    if x.to_word() == *code {
+                    if x == B::from_word(code) {
                         bin(hits, 0);
                     }
                 }
-                Kind::Alternating(operand) => {
+                Kind::Alternating(operand, pattern) => {
                     let x = if *operand == Operand::A { a } else { b };
-                    let pattern = alternating::<B>(w);
+                    let pattern = B::from_word(pattern);
                     if x == pattern {
                         bin(hits, 0);
                     } else if x == pattern.not().mask(w) {
@@ -421,7 +422,7 @@ impl Catalogue {
                     }
                 }
                 Kind::ResultPattern(_, code) => {
-                    if t.result.to_word() == *code {
+                    if t.result == B::from_word(code) {
                         bin(hits, 0);
                     }
                 }
@@ -741,7 +742,7 @@ fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) -> Vec<Templa
         out.push((
             format!("{n}.alternating"),
             format!("operand {n} is an alternating pattern ..0101 or ..1010"),
-            Kind::Alternating(x),
+            Kind::Alternating(x, alternating::<Wide>(w).to_word()),
             vec!["0101".into(), "1010".into()],
         ));
         out.push((

@@ -422,7 +422,7 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
                 Operand::B => vec![pair(*code, *code), pair(other, *code)],
             }
         }
-        Kind::Alternating(operand) => {
+        Kind::Alternating(operand, _) => {
             let p = alternating::<Wide>(w).to_word();
             let p = if k == 0 { p } else { p.not(w) };
             match operand {

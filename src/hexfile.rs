@@ -36,7 +36,12 @@ impl Packer {
         if self.layout.width <= 128 {
             let mut packed: u128 = 0;
             for f in &self.layout.fields {
-                packed |= value_of(f.signal).masked(f.width()).low_u128() << f.lsb;
+                let mask = if f.width() >= 128 {
+                    u128::MAX
+                } else {
+                    (1u128 << f.width()) - 1
+                };
+                packed |= (value_of(f.signal).low_u128() & mask) << f.lsb;
             }
             for d in (0..self.digits).rev() {
                 out.push(HEX[((packed >> (d * 4)) & 0xf) as usize]);

@@ -109,8 +109,18 @@ impl Word {
     }
 
     /// This word with every bit at or above `width` cleared.
+    #[inline]
     pub fn masked(&self, width: u32) -> Word {
-        self.and(&Word::ones(width))
+        let mut w = *self;
+        let full = (width / 64) as usize;
+        if full < LIMBS {
+            let rem = width % 64;
+            w.limbs[full] &= if rem == 0 { 0 } else { u64::MAX >> (64 - rem) };
+            for l in w.limbs[full + 1..].iter_mut() {
+                *l = 0;
+            }
+        }
+        w
     }
 
     /// True when no bit is set.
