@@ -1,0 +1,162 @@
+//! Checker throughput: read, check and classify a result log of a 32-bit two's-complement
+//! subtractor with borrow-in (index,a,b,cin,y,co,ovf,zero,neg in hex). The log is produced
+//! lazily by a reader, so the peak resident memory printed at growing line counts shows the
+//! checker's own footprint (it should stay flat). Prints lines/s and the ratio to a bare line
+//! scan with hex parsing over the same bytes.
+//!
+//! Run with `cargo bench --bench check`. Not a test: timings on shared machines are noisy.
+
+use std::io::{BufRead, BufReader, Read};
+use std::time::Instant;
+
+use arithvec::{
+    CheckOptions, Checker, Encoding, Generator, Hits, LogReader, LogRow, Observed, Operation,
+    Radix, Signal, Spec,
+};
+
+fn peak_rss_kib() -> u64 {
+    std::fs::read_to_string("/proc/self/status")
+        .ok()
+        .and_then(|s| {
+            s.lines()
+                .find(|l| l.starts_with("VmHWM:"))
+                .and_then(|l| l.split_whitespace().nth(1).and_then(|v| v.parse().ok()))
+        })
+        .unwrap_or(0)
+}
+
+/// Pre-rendered log lines, repeated with fresh indices: the bytes a testbench writes.
+struct LogSource {
+    lines: Vec<Vec<u8>>,
+    header: Vec<u8>,
+    total: u64,
+    next: u64,
+    buf: Vec<u8>,
+    pos: usize,
+}
+
+impl LogSource {
+    fn new(spec: &Spec, total: u64) -> LogSource {
+        let g = Generator::new(spec, Some(65536), Some(3));
+        let cat = g.catalogue();
+        let mut hits = Hits::new();
+        let mut lines = Vec::new();
+        for i in 0..65536u64 {
+            let v = g.vector(i).expect("vector");
+            let o = cat.evaluate(&v, &mut hits);
+            lines.push(
+                format!(
+                    ",{},{},{},{},{},{},{},{}\n",
+                    v.a.to_hex(32),
+                    v.b.to_hex(32),
+                    v.carry_in as u8,
+                    o.result.to_hex(32),
+                    o.carry_out as u8,
+                    o.overflow as u8,
+                    o.zero as u8,
+                    o.negative as u8
+                )
+                .into_bytes(),
+            );
+        }
+        LogSource {
+            lines,
+            header: b"index,a,b,carry_in,result,carry_out,overflow,zero,negative\n".to_vec(),
+            total,
+            next: 0,
+            buf: Vec::new(),
+            pos: 0,
+        }
+    }
+}
+
+impl Read for LogSource {
+    fn read(&mut self, out: &mut [u8]) -> std::io::Result<usize> {
+        if self.pos == self.buf.len() {
+            self.buf.clear();
+            self.pos = 0;
+            if !self.header.is_empty() {
+                self.buf.append(&mut self.header);
+            }
+            while self.buf.len() < 1 << 16 && self.next < self.total {
+                // Only the first 65536 indices match their operands; the rest reuse lines
+                // with new indices, which is fine for a log checked without --vectors.
+                self.buf.extend_from_slice(self.next.to_string().as_bytes());
+                self.buf.extend_from_slice(&self.lines[(self.next % 65536) as usize]);
+                self.next += 1;
+            }
+        }
+        let n = out.len().min(self.buf.len() - self.pos);
+        out[..n].copy_from_slice(&self.buf[self.pos..self.pos + n]);
+        self.pos += n;
+        Ok(n)
+    }
+}
+
+fn bare_scan(spec: &Spec, lines: u64) -> (f64, u64) {
+    let mut r = BufReader::with_capacity(1 << 20, LogSource::new(spec, lines));
+    let mut line = Vec::new();
+    let mut sum = 0u64;
+    let t = Instant::now();
+    r.read_until(b'\n', &mut line).expect("header");
+    loop {
+        line.clear();
+        if r.read_until(b'\n', &mut line).expect("read") == 0 {
+            break;
+        }
+        for field in line.split(|&c| c == b',').skip(1) {
+            let mut v = 0u64;
+            for &c in field {
+                let d = match c {
+                    b'0'..=b'9' => c - b'0',
+                    b'a'..=b'f' => c - b'a' + 10,
+                    _ => continue,
+                };
+                v = v << 4 | d as u64;
+            }
+            sum = sum.wrapping_add(v);
+        }
+    }
+    (lines as f64 / t.elapsed().as_secs_f64(), sum)
+}
+
+fn main() {
+    let mut spec = Spec::with_defaults(Operation::Sub, Encoding::Twos, 32);
+    spec.name = "bench_sub32".into();
+    let generator = Generator::new(&spec, Some(0), None);
+    let mut one_m = 0.0;
+    for lines in [250_000u64, 1_000_000, 4_000_000] {
+        let source = BufReader::with_capacity(1 << 20, LogSource::new(&spec, lines));
+        let t = Instant::now();
+        let mut reader = LogReader::new(source, "bench.csv", &spec, Radix::Hex).expect("header");
+        let mut checker =
+            Checker::new(&spec, &generator, None, reader.columns(), CheckOptions::default())
+                .expect("checker");
+        let mut row = LogRow::new();
+        while reader.read_row(&mut row).expect("row") {
+            checker.row(row.line, row.index, |s: Signal| {
+                row.get(s).map(|f| Observed {
+                    bits: f.bits,
+                    unknown: f.unknown,
+                })
+            });
+        }
+        let report = checker.finish();
+        let secs = t.elapsed().as_secs_f64();
+        assert_eq!(report.vectors, lines);
+        assert_eq!(report.failed, 0);
+        let rate = lines as f64 / secs;
+        if lines == 1_000_000 {
+            one_m = rate;
+        }
+        println!(
+            "check {lines:>9} lines: {secs:>6.2} s, {:>6.2} M lines/s, peak RSS {} KiB",
+            rate / 1e6,
+            peak_rss_kib()
+        );
+    }
+    let (bare, sum) = bare_scan(&spec, 1_000_000);
+    println!("bare line scan + hex parse: {:.2} M lines/s (checksum {sum:x})", bare / 1e6);
+    println!("arithvec / bare scan: {:.2}", one_m / bare);
+    println!("goal: >= 5 M lines/s on a 2-core machine");
+}
