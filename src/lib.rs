@@ -9,11 +9,13 @@
 
 mod error;
 mod layout;
+mod log;
 mod spec;
 mod word;
 
 pub use error::{Error, ErrorKind, Problem, Result};
 pub use layout::{Field, Layout, WordLayout};
+pub use log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
     NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
