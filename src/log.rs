@@ -26,7 +26,9 @@
 //!   should therefore carry fewer or more digits than `%h` prints (`0x5`, `0x0005`).
 //! - Binary radix: an optional `0b`/`0B` prefix (`b` is never a binary digit, so no ambiguity).
 //! - Decimal radix: no prefix; a leading `-` (as `%0d` prints a signed reg) stands for the
-//!   two's-complement pattern of the column's width and must lie in its range.
+//!   two's-complement pattern of the column's width and must lie in its range. A decimal value
+//!   is unknown only as a whole (below); an x among decimal digits is a problem. Plain `%d`
+//!   pads with spaces, which blank separation absorbs and comma separation trims.
 //! - A Verilog-style literal, `[size]'[s]<base><digits>` with base `h`, `b`, `o` or `d`
 //!   (`16'h00ab`, `1'b0`, `'hff`), is accepted in every radix and its base wins. The value must
 //!   fit both its size and the column; as in IEEE 1364-2005 3.5.1 (from memory), an x or z
@@ -52,6 +54,12 @@
 //!
 //! A parsed value is a [`FieldValue`]: the known bits, a mask of unknown bits (whose `bits` are
 //! 0), and whether any digit was high impedance, so a report can say "z (undriven)".
+//!
+//! Speed: a line is parsed where it lies in the source's buffer (copied only when it straddles
+//! a buffer boundary), and a line of plain digits, the usual case, is read in one pass with
+//! wide hex values taken 8 digits at a time. Any other line is parsed again from its start by
+//! the general parser, which is the reference for every rule above and words the problems;
+//! property tests hold the two paths together.
 
 use std::fmt;
 use std::io::BufRead;
@@ -234,8 +242,23 @@ struct LineFormat {
     comma: bool,
     radix: Radix,
     columns: Vec<Column>,
+    /// The columns as the hot path needs them, in the same order.
+    plain: Vec<PlainColumn>,
     present: u16,
     has_index: bool,
+}
+
+/// One column for [`LineFormat::parse_plain_line`].
+#[derive(Debug, Clone, Copy)]
+struct PlainColumn {
+    /// The value slot, or None for the index.
+    slot: Option<usize>,
+    /// Decimal for the index, the log's radix otherwise.
+    radix: Radix,
+    /// The largest value that fits the column.
+    max: u64,
+    /// True for columns of 16 bits or more, whose hex values are read 8 digits at a time.
+    wide: bool,
 }
 
 /// Reads a result log row by row. See the module documentation for the format.
@@ -399,15 +422,120 @@ enum LineOutcome {
 
 impl LineFormat {
     /// Parses one line (without its LF) into `row`.
+    #[inline]
     fn parse_line(&self, line: &[u8], line_no: usize, file: &str, row: &mut LogRow) -> LineOutcome {
         let line = trim_line_end(line);
         if is_skipped(line) {
             return LineOutcome::Skipped;
         }
+        if !self.parse_plain_line(line, row) {
+            if let Err(problem) = self.parse_fields(line, line_no, file, row) {
+                return LineOutcome::Bad(problem);
+            }
+        }
+        if !self.has_index {
+            row.index = None;
+        }
+        row.line = line_no;
+        row.present = self.present;
+        LineOutcome::Row
+    }
+
+    /// The hot path: a line of plain digits only (no prefix, `_`, unknown digit or literal),
+    /// each value fitting in 64 bits and in its column, with well-formed separators, read in
+    /// one pass. Returns false as soon as anything else turns up; the caller then parses the
+    /// whole line again with [`LineFormat::parse_fields`], which accepts the same lines with
+    /// the same values (a property test holds the two together) and words every problem.
+    #[inline]
+    fn parse_plain_line(&self, line: &[u8], row: &mut LogRow) -> bool {
+        let n = line.len();
+        let mut p = skip_blanks(line, 0);
+        let last = self.plain.len().wrapping_sub(1);
+        for (i, column) in self.plain.iter().enumerate() {
+            let start = p;
+            let mut v: u64 = 0;
+            let max_digits = match column.radix {
+                Radix::Hex => {
+                    // Wide columns take up to 8 digits at once; the byte loop does the rest
+                    // (and stops at once when the field ended within those 8 bytes).
+                    if column.wide && p + 8 <= n {
+                        let mut chunk = [0u8; 8];
+                        chunk.copy_from_slice(&line[p..p + 8]);
+                        let (value, digits) = hex8(chunk);
+                        v = value;
+                        p += digits;
+                    }
+                    while let Some(&c) = line.get(p) {
+                        let d = HEX_VALUE[c as usize];
+                        if d > 15 {
+                            break;
+                        }
+                        v = v << 4 | d as u64;
+                        p += 1;
+                    }
+                    16
+                }
+                Radix::Bin => {
+                    while let Some(&c) = line.get(p) {
+                        let d = c.wrapping_sub(b'0');
+                        if d > 1 {
+                            break;
+                        }
+                        v = v << 1 | d as u64;
+                        p += 1;
+                    }
+                    64
+                }
+                Radix::Dec => {
+                    while let Some(&c) = line.get(p) {
+                        let d = c.wrapping_sub(b'0');
+                        if d > 9 {
+                            break;
+                        }
+                        v = v.wrapping_mul(10).wrapping_add(d as u64);
+                        p += 1;
+                    }
+                    19
+                }
+            };
+            if p == start || p - start > max_digits || v > column.max {
+                return false;
+            }
+            let end = p;
+            p = skip_blanks(line, p);
+            if i == last {
+                if p != n {
+                    return false;
+                }
+            } else if self.comma {
+                if line.get(p) != Some(&b',') {
+                    return false;
+                }
+                p = skip_blanks(line, p + 1);
+            } else if p == end || p == n {
+                return false;
+            }
+            match column.slot {
+                Some(slot) => row.values[slot] = FieldValue::known(Word::from_u64(v)),
+                None => row.index = Some(v),
+            }
+        }
+        true
+    }
+
+    /// The general path: every value form, and a problem naming the field when the line is
+    /// bad. Fills `row`'s columns but not its line number or presence mask.
+    fn parse_fields(
+        &self,
+        line: &[u8],
+        line_no: usize,
+        file: &str,
+        row: &mut LogRow,
+    ) -> std::result::Result<(), Box<Problem>> {
         let mut fields = Fields::new(line, self.comma);
         for (i, column) in self.columns.iter().enumerate() {
             let Some(token) = fields.next() else {
-                return LineOutcome::Bad(self.count_problem(line, i, file, line_no));
+                return Err(self.count_problem(line, i, file, line_no));
             };
             let result = match column.target {
                 Target::Index => parse_index(token).map(|v| row.index = Some(v)),
@@ -419,10 +547,10 @@ impl LineFormat {
                 // A misaligned line shows up as a bad value first; report the real cause.
                 let found = i + 1 + fields.count();
                 if found != self.columns.len() {
-                    return LineOutcome::Bad(self.count_problem(line, found, file, line_no));
+                    return Err(self.count_problem(line, found, file, line_no));
                 }
                 let message = e.message(token, column);
-                return LineOutcome::Bad(Box::new(
+                return Err(Box::new(
                     Problem::new(file, message)
                         .at_line(line_no)
                         .field(column.name.as_str()),
@@ -431,14 +559,9 @@ impl LineFormat {
         }
         if fields.next().is_some() {
             let found = self.columns.len() + 1 + fields.count();
-            return LineOutcome::Bad(self.count_problem(line, found, file, line_no));
+            return Err(self.count_problem(line, found, file, line_no));
         }
-        if !self.has_index {
-            row.index = None;
-        }
-        row.line = line_no;
-        row.present = self.present;
-        LineOutcome::Row
+        Ok(())
     }
 
     fn count_problem(&self, line: &[u8], found: usize, file: &str, line_no: usize) -> Box<Problem> {
@@ -565,10 +688,32 @@ fn parse_header(
     if !problems.is_empty() {
         return Err(Error::input(problems));
     }
+    let plain = columns
+        .iter()
+        .map(|c| match c.target {
+            Target::Index => PlainColumn {
+                slot: None,
+                radix: Radix::Dec,
+                max: u64::MAX,
+                wide: false,
+            },
+            Target::Value { slot, width } => PlainColumn {
+                slot: Some(slot),
+                radix,
+                max: if width >= 64 {
+                    u64::MAX
+                } else {
+                    (1 << width) - 1
+                },
+                wide: width >= 16,
+            },
+        })
+        .collect();
     Ok(LineFormat {
         comma,
         radix,
         columns,
+        plain,
         present,
         has_index,
     })
@@ -582,6 +727,15 @@ fn slot(signal: Signal) -> usize {
 
 fn is_blank(b: u8) -> bool {
     b == b' ' || b == b'\t'
+}
+
+/// The first position at or after `p` that is not a blank.
+#[inline]
+fn skip_blanks(line: &[u8], mut p: usize) -> usize {
+    while line.get(p).is_some_and(|&b| is_blank(b)) {
+        p += 1;
+    }
+    p
 }
 
 /// The line without a trailing CR (and LF, for lines read whole).
@@ -814,6 +968,38 @@ fn classify(c: u8, base: Base, std_logic: bool) -> Digit {
             }
         }
     }
+}
+
+/// Reads the leading hex digits of `chunk` (up to all 8) in a few word operations; returns
+/// their value and count. Equivalent to the byte loop over [`HEX_VALUE`] (a property test
+/// compares the two).
+#[inline]
+fn hex8(chunk: [u8; 8]) -> (u64, usize) {
+    const ONES: u64 = 0x0101_0101_0101_0101;
+    const HIGHS: u64 = 0x8080_8080_8080_8080;
+    const LOW7: u64 = 0x7f7f_7f7f_7f7f_7f7f;
+    let x = u64::from_le_bytes(chunk);
+    // Per byte, with bit 7 cleared first so no lane carries into the next: bit 7 of
+    // `low7 + (0x80 - k)` is set exactly when the byte is >= k.
+    let at_least = |low7: u64, k: u64| (low7 + ONES * (0x80 - k)) & HIGHS;
+    let low7 = x & LOW7;
+    let digit = at_least(low7, b'0' as u64) & !at_least(low7, b'9' as u64 + 1);
+    // Setting bit 5 folds 'A'..='F' onto 'a'..='f' and leaves no other byte in that range.
+    let folded = (x | (ONES * 0x20)) & LOW7;
+    let letter = at_least(folded, b'a' as u64) & !at_least(folded, b'f' as u64 + 1);
+    let valid = (digit | letter) & !x & HIGHS;
+    let count = ((!valid & HIGHS).trailing_zeros() / 8) as usize;
+    if count == 0 {
+        return (0, 0);
+    }
+    // Digit values: the low nibble, plus 9 for letters (bit 6 set).
+    let nibbles = (x & (ONES * 0x0f)) + ((x >> 6) & ONES) * 9;
+    // Keep the `count` digits, last digit in the lowest byte, then pack pairs, quads, octets.
+    let mut y = (nibbles << (8 * (8 - count))).swap_bytes();
+    y = (y | y >> 4) & 0x00ff_00ff_00ff_00ff;
+    y = (y | y >> 8) & 0x0000_ffff_0000_ffff;
+    y = (y | y >> 16) & 0x0000_0000_ffff_ffff;
+    (y, count)
 }
 
 /// Hex digit values by byte; 0xff for anything else.
@@ -1753,6 +1939,175 @@ UUUUUUUUUUUUUUUU ZZZZZZZZZZZZZZZZ U 0001001000XX0100 Z
             );
         }
         assert_eq!(find_newline(b"no newline at all here"), None);
+    }
+
+    #[test]
+    fn fast_path_takes_plain_lines_and_leaves_the_rest() {
+        let spec = spec16();
+        let comma = parse_header(b"index,a,b,cin,y,co", "f.log", 1, &spec, Radix::Hex).unwrap();
+        let blank = parse_header(b"index a b cin y co", "f.log", 1, &spec, Radix::Hex).unwrap();
+        let mut row = LogRow::new();
+        for line in [
+            "0,00ab,0001,0,00aa,0",
+            " 12 , ffff,0 ,1,  8000 ,1  ",
+            "7,A,b,1,C,0",
+        ] {
+            assert!(comma.parse_plain_line(line.as_bytes(), &mut row), "{line}");
+        }
+        assert!(blank.parse_plain_line(b"3\t00ab  0001 0 00aa 0 ", &mut row));
+        assert_eq!(row.index, Some(3));
+        assert_eq!(
+            row.values[slot(Signal::A)],
+            FieldValue::known(Word::from_u64(0xab))
+        );
+        for line in [
+            "0,0x05,0001,0,00aa,0",  // a prefix (or an unknown digit)
+            "0,00ab,0001,0,00aa",    // too few fields
+            "0,00ab,0001,0,00aa,0,", // a trailing comma
+            "0,00ab,0001,2,00aa,0",  // too wide for cin
+            "0,1ffff,0001,0,00aa,0", // too wide for a
+            "0,00_ab,0001,0,00aa,0", // a separator
+            "0,00ab,0001,0,00aa,z",  // an unknown
+            "0,00ab,0001,0,00 aa,0", // a blank inside a field
+            "+0,00ab,0001,0,00aa,0", // a signed index
+        ] {
+            assert!(!comma.parse_plain_line(line.as_bytes(), &mut row), "{line}");
+        }
+        assert!(!blank.parse_plain_line(b"0,00ab 0001 0 00aa 0", &mut row));
+        // The decimal index stops at 'a'; without a blank that is not a field boundary.
+        assert!(!blank.parse_plain_line(b"12ab 0001 0 00aa 0", &mut row));
+    }
+
+    mod fast_path {
+        use super::*;
+        use proptest::prelude::*;
+
+        /// One generated field: a value, how to write it, and now and then an odd token.
+        type FieldSpec = (u64, usize, bool, u8, String, String);
+
+        fn field() -> impl Strategy<Value = FieldSpec> {
+            (
+                any::<u64>(),
+                0usize..3,
+                any::<bool>(),
+                any::<u8>(),
+                "[ \t]{0,2}",
+                "[ \t]{0,2}",
+            )
+        }
+
+        const ODD: [&str; 10] = ["0x5", "x", "1_0", "Z", "'h1", "-1", "", "0b1", "U", "+1"];
+
+        /// A line for `columns` columns of `widths` (None for the index) in `radix`.
+        fn build(
+            widths: &[Option<u32>],
+            radix: Radix,
+            comma: bool,
+            fields: &[FieldSpec],
+            count_change: i8,
+        ) -> String {
+            let mut text = String::new();
+            let n = (widths.len() as isize + count_change as isize).max(1) as usize;
+            for i in 0..n {
+                let (value, zeros, upper, odd, before, after) = &fields[i % fields.len()];
+                let width = widths.get(i).copied().flatten();
+                let token = if odd % 16 == 0 {
+                    ODD[*odd as usize / 16 % ODD.len()].to_string()
+                } else {
+                    // Mostly in range; sometimes one bit too many.
+                    let bits = width.unwrap_or(64).min(64) + (odd % 8 == 1) as u32;
+                    let v = if bits >= 64 {
+                        *value
+                    } else {
+                        value & ((1 << bits) - 1)
+                    };
+                    let digits = match (width, radix) {
+                        (None, _) | (_, Radix::Dec) => v.to_string(),
+                        (_, Radix::Hex) if *upper => format!("{v:X}"),
+                        (_, Radix::Hex) => format!("{v:x}"),
+                        _ => format!("{v:b}"),
+                    };
+                    format!("{}{digits}", "0".repeat(*zeros))
+                };
+                if i > 0 {
+                    text.push_str(if comma { "," } else { " " });
+                }
+                text.push_str(before);
+                text.push_str(&token);
+                text.push_str(after);
+            }
+            text
+        }
+
+        proptest! {
+            #![proptest_config(ProptestConfig::with_cases(3000))]
+
+            /// Whatever the fast path accepts, the general path accepts with the same values.
+            #[test]
+            fn fast_path_agrees_with_the_general_path(
+                fields in proptest::collection::vec(field(), 6),
+                comma in any::<bool>(),
+                count_change in prop_oneof![8 => Just(0i8), 1 => Just(-1), 1 => Just(1)],
+                radix in prop_oneof![Just(Radix::Hex), Just(Radix::Bin), Just(Radix::Dec)],
+                width in prop_oneof![Just(1u32), Just(16), Just(32), Just(64), Just(70)],
+                with_index in any::<bool>(),
+            ) {
+                let spec = spec_of_width(width);
+                let mut names = vec!["a", "b", "cin", "y", "co"];
+                let mut widths = vec![Some(width), Some(width), Some(1), Some(width), Some(1)];
+                if with_index {
+                    names.insert(0, "index");
+                    widths.insert(0, None);
+                }
+                let header = names.join(if comma { "," } else { " " });
+                let format = parse_header(header.as_bytes(), "p.log", 1, &spec, radix).unwrap();
+                let text = build(&widths, radix, comma, &fields, count_change);
+                let mut fast = LogRow::new();
+                let mut general = LogRow::new();
+                let result = format.parse_fields(text.as_bytes(), 2, "p.log", &mut general);
+                if format.parse_plain_line(text.as_bytes(), &mut fast) {
+                    prop_assert!(result.is_ok(), "{:?} refused {:?}", text, result);
+                    prop_assert_eq!(fast.index, general.index, "{:?}", text);
+                    for s in [Signal::A, Signal::B, Signal::CarryIn, Signal::Result, Signal::CarryOut] {
+                        prop_assert_eq!(fast.values[slot(s)], general.values[slot(s)], "{:?}", text);
+                    }
+                } else if result.is_ok() {
+                    // Only forms outside the plain ones may leave the fast path: an odd
+                    // token, or more digits than a u64 loop takes (the index is decimal).
+                    let odd = fields.iter().any(|f| f.3 % 16 == 0);
+                    let limit = match radix {
+                        Radix::Hex => 16,
+                        Radix::Bin => 64,
+                        Radix::Dec => 19,
+                    };
+                    let long = text
+                        .split([',', ' ', '\t'])
+                        .filter(|t| !t.is_empty())
+                        .enumerate()
+                        .any(|(i, t)| t.len() > if with_index && i == 0 { 19 } else { limit });
+                    prop_assert!(odd || long, "plain line {:?} left the fast path", text);
+                }
+            }
+
+            #[test]
+            fn hex8_matches_the_byte_loop(chunk in proptest::array::uniform8(prop_oneof![
+                4 => proptest::sample::select(b"0123456789abcdefABCDEF".to_vec()),
+                1 => proptest::sample::select(b"/:@G`gxX_, \t".to_vec()),
+                1 => any::<u8>(),
+            ])) {
+                let mut value = 0u64;
+                let mut count = 0;
+                for &c in &chunk {
+                    let d = HEX_VALUE[c as usize];
+                    if d > 15 {
+                        break;
+                    }
+                    value = value << 4 | d as u64;
+                    count += 1;
+                }
+                prop_assert_eq!(hex8(chunk), (value, count), "{:?}", chunk);
+            }
+        }
     }
 
     mod round_trip {
