@@ -290,6 +290,9 @@ pub struct Checker<'g> {
     generator: &'g Generator,
     lookup: Option<VectorLookup<'g>>,
     columns: Vec<Signal>,
+    /// The spec's inputs and outputs with their widths, in layout order.
+    input_fields: Vec<(Signal, u32)>,
+    output_fields: Vec<(Signal, u32)>,
     options: CheckOptions,
     logs: Vec<String>,
     coverage: Coverage,
@@ -353,6 +356,16 @@ impl<'g> Checker<'g> {
             generator,
             lookup,
             columns: columns.to_vec(),
+            input_fields: spec
+                .inputs()
+                .iter()
+                .map(|&(s, _)| (s, s.width(spec.width)))
+                .collect(),
+            output_fields: spec
+                .outputs()
+                .iter()
+                .map(|&(s, _)| (s, s.width(spec.width)))
+                .collect(),
             options,
             logs: Vec::new(),
             coverage: Coverage::new(generator.catalogue()),
@@ -417,7 +430,7 @@ impl<'g> Checker<'g> {
         let mut inputs = from_set.unwrap_or_default();
         let mut operand_unknown = false;
         let mut from_log = false;
-        for (sig, _) in self.spec.inputs() {
+        for &(sig, _) in &self.input_fields {
             if let Some(o) = field(sig) {
                 from_log = true;
                 if !o.unknown.is_zero() {
@@ -427,7 +440,7 @@ impl<'g> Checker<'g> {
             }
         }
         if let (Some(set_inputs), true) = (from_set, from_log) {
-            if !operand_unknown && !same_inputs(&self.spec, &set_inputs, &inputs) {
+            if !operand_unknown && !same_inputs(&self.input_fields, &set_inputs, &inputs) {
                 let s = self.out_of_step.get_or_insert(OutOfStep {
                     count: 0,
                     first_index: index,
@@ -444,16 +457,20 @@ impl<'g> Checker<'g> {
         let mut unknown = operand_unknown;
         let judge = |exp: &Outputs| {
             let (mut wrong, mut unknown) = (false, false);
-            for (sig, _) in self.spec.outputs() {
+            for &(sig, w) in &self.output_fields {
                 if let Some(o) = field(sig) {
-                    let w = sig.width(self.spec.width);
-                    let e = exp.get(sig).masked(w);
-                    let diff = o.bits.xor(&e).and(&o.unknown.not(w)).masked(w);
-                    if !diff.is_zero() {
-                        wrong = true;
-                    }
-                    if !o.unknown.masked(w).is_zero() {
-                        unknown = true;
+                    let e = exp.get(sig);
+                    if w <= 64 {
+                        // Fields up to 64 bits: one limb, no masks to build.
+                        let m = u64::MAX >> (64 - w);
+                        let unk = o.unknown.low_u64() & m;
+                        wrong |= (o.bits.low_u64() ^ e.low_u64()) & !unk & m != 0;
+                        unknown |= unk != 0;
+                    } else {
+                        let e = e.masked(w);
+                        let diff = o.bits.xor(&e).and(&o.unknown.not(w)).masked(w);
+                        wrong |= !diff.is_zero();
+                        unknown |= !o.unknown.masked(w).is_zero();
                     }
                 }
             }
@@ -625,11 +642,10 @@ impl<'g> Checker<'g> {
     }
 }
 
-fn same_inputs(spec: &Spec, x: &Inputs, y: &Inputs) -> bool {
-    spec.inputs().iter().all(|(s, _)| {
-        let w = s.width(spec.width);
-        x.get(*s).masked(w) == y.get(*s).masked(w)
-    })
+fn same_inputs(fields: &[(Signal, u32)], x: &Inputs, y: &Inputs) -> bool {
+    fields
+        .iter()
+        .all(|&(s, w)| x.get(s).masked(w) == y.get(s).masked(w))
 }
 
 fn decoded(sig: Signal, v: &Word, width: u32, enc: Encoding) -> String {

@@ -11,38 +11,60 @@ use serde::{Deserialize, Serialize};
 use crate::classes::{Catalogue, Hits};
 use crate::word::{Word, LIMBS};
 
-/// Bit planes per dense counter: exact counts up to 2^48 - 1.
-const PLANES: usize = 48;
+/// Bit planes per dense counter; a carry out of the top plane adds 2^PLANES to an exact
+/// per-bin overflow count, so counts are exact however large.
+const PLANES: usize = 16;
 
 #[derive(Debug, Clone)]
 struct DenseCounter {
     base: u32,
     stride: u32,
-    planes: Vec<[u64; LIMBS]>,
+    /// Limb-major: `planes[limb * PLANES + k]` holds bit k of the counts of that limb's bins.
+    planes: Vec<u64>,
+    /// Per bit position: how many times its plane counter wrapped.
+    wraps: Vec<u64>,
 }
 
 impl DenseCounter {
-    fn add(&mut self, mask: &Word) {
-        for (l, &m) in mask.limbs().iter().enumerate() {
+    fn new(base: u32, stride: u32) -> DenseCounter {
+        DenseCounter {
+            base,
+            stride,
+            planes: vec![0; LIMBS * PLANES],
+            wraps: vec![0; LIMBS * 64],
+        }
+    }
+
+    /// Adds one to the count of every bin whose bit is set in `mask` (low `limbs` limbs).
+    #[inline]
+    fn add(&mut self, mask: &Word, limbs: usize) {
+        for (l, &m) in mask.limbs().iter().enumerate().take(limbs) {
             let mut carry = m;
-            for plane in self.planes.iter_mut() {
+            let planes = &mut self.planes[l * PLANES..(l + 1) * PLANES];
+            for plane in planes.iter_mut() {
                 if carry == 0 {
                     break;
                 }
-                let t = plane[l] & carry;
-                plane[l] ^= carry;
+                let t = *plane & carry;
+                *plane ^= carry;
                 carry = t;
+            }
+            while carry != 0 {
+                let b = carry.trailing_zeros() as usize;
+                self.wraps[l * 64 + b] += 1;
+                carry &= carry - 1;
             }
         }
     }
 
     fn count(&self, bit: u32) -> u64 {
         let (l, b) = ((bit / 64) as usize, bit % 64);
-        self.planes
+        let low: u64 = self.planes[l * PLANES..(l + 1) * PLANES]
             .iter()
             .enumerate()
-            .map(|(k, p)| ((p[l] >> b) & 1) << k)
-            .sum()
+            .map(|(k, p)| ((p >> b) & 1) << k)
+            .sum();
+        low + (self.wraps[bit as usize] << PLANES)
     }
 }
 
@@ -54,7 +76,10 @@ pub struct Coverage {
     class_hits: Vec<u64>,
     class_failures: Vec<u64>,
     dense: Vec<DenseCounter>,
+    /// Per global bin: the dense counter whose base it is, if any.
+    dense_at: Vec<u16>,
     width: u32,
+    limbs: usize,
 }
 
 impl Coverage {
@@ -66,7 +91,9 @@ impl Coverage {
             class_hits: vec![0; catalogue.classes().len()],
             class_failures: vec![0; catalogue.classes().len()],
             dense: Vec::new(),
+            dense_at: vec![u16::MAX; catalogue.bin_count()],
             width: catalogue.model().width(),
+            limbs: catalogue.model().width().div_ceil(64) as usize,
         }
     }
 
@@ -76,22 +103,16 @@ impl Coverage {
             self.bin_hits[b as usize] += 1;
         }
         for d in &hits.dense {
-            let counter = match self
-                .dense
-                .iter_mut()
-                .position(|c| c.base == d.base && c.stride == d.stride)
-            {
-                Some(i) => &mut self.dense[i],
-                None => {
-                    self.dense.push(DenseCounter {
-                        base: d.base,
-                        stride: d.stride,
-                        planes: vec![[0; LIMBS]; PLANES],
-                    });
-                    self.dense.last_mut().expect("just pushed")
-                }
+            let at = self.dense_at[d.base as usize];
+            let i = if at == u16::MAX {
+                self.dense.push(DenseCounter::new(d.base, d.stride));
+                let i = self.dense.len() - 1;
+                self.dense_at[d.base as usize] = i as u16;
+                i
+            } else {
+                at as usize
             };
-            counter.add(&d.mask);
+            self.dense[i].add(&d.mask, self.limbs);
         }
         for &c in &hits.classes {
             self.class_hits[c as usize] += 1;
@@ -311,26 +332,24 @@ mod tests {
 
     #[test]
     fn bit_sliced_counter_counts_exactly() {
-        let mut c = DenseCounter {
-            base: 0,
-            stride: 1,
-            planes: vec![[0; LIMBS]; PLANES],
-        };
+        let mut c = DenseCounter::new(0, 1);
         let mut expect = vec![0u64; 512];
         let mut x: u64 = 0x9e3779b97f4a7c15;
-        for _ in 0..1000 {
+        // Enough additions to wrap the 16 planes several times.
+        for round in 0..200_000 {
             let mut limbs = [0u64; LIMBS];
             for l in limbs.iter_mut() {
                 x ^= x << 13;
                 x ^= x >> 7;
                 x ^= x << 17;
-                *l = x;
+                // Dense masks for some rounds so low bins pass 2^16 hits.
+                *l = if round % 2 == 0 { u64::MAX } else { x };
             }
             let w = Word::from_limbs(limbs);
             for i in w.set_bits() {
                 expect[i as usize] += 1;
             }
-            c.add(&w);
+            c.add(&w, LIMBS);
         }
         for i in 0..512 {
             assert_eq!(c.count(i), expect[i as usize]);

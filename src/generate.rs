@@ -31,6 +31,8 @@ pub struct Generator {
     /// Per global bin: how many directed vectors hit it.
     directed_hits: Vec<u32>,
     random: RandomPlan,
+    /// Special operand patterns for the corner-biased mix.
+    pool: std::sync::Arc<[Word]>,
 }
 
 /// Settings of the random part.
@@ -69,7 +71,9 @@ impl Generator {
         hasher.update(KEY_LABEL);
         hasher.update(seed.to_le_bytes());
         let key: [u8; 32] = hasher.finalize().into();
+        let pool = operand_pool(&catalogue).into();
         Generator {
+            pool,
             catalogue,
             directed,
             directed_hits,
@@ -149,7 +153,7 @@ impl Generator {
         RandomStream {
             rng,
             plan: self.random,
-            pool: operand_pool(&self.catalogue),
+            pool: self.pool.clone(),
         }
     }
 }
@@ -158,7 +162,7 @@ impl Generator {
 pub struct RandomStream {
     rng: ChaCha20Rng,
     plan: RandomPlan,
-    pool: Vec<Word>,
+    pool: std::sync::Arc<[Word]>,
 }
 
 impl RandomStream {
