@@ -85,9 +85,16 @@ pub fn write_atomic(path: &Path, text: &[u8]) -> Result<(), Error> {
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| "out".into());
     let tmp = dir.join(format!(".{name}.tmp"));
-    let mut f = std::fs::File::create(&tmp).map_err(|e| Error::io(&tmp, e))?;
-    f.write_all(text).map_err(|e| Error::io(&tmp, e))?;
-    f.sync_all().map_err(|e| Error::io(&tmp, e))?;
-    drop(f);
-    std::fs::rename(&tmp, path).map_err(|e| Error::io(path, e))
+    let written = (|| {
+        let mut f = std::fs::File::create(&tmp).map_err(|e| Error::io(&tmp, e))?;
+        f.write_all(text).map_err(|e| Error::io(&tmp, e))?;
+        f.sync_all().map_err(|e| Error::io(&tmp, e))?;
+        drop(f);
+        std::fs::rename(&tmp, path).map_err(|e| Error::io(path, e))
+    })();
+    if written.is_err() {
+        // A failed write must not leave the temporary file behind.
+        let _ = std::fs::remove_file(&tmp);
+    }
+    written
 }

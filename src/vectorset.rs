@@ -390,9 +390,20 @@ pub fn write(
     let first_shard = options.shard.is_none_or(|s| s.index == 0);
     let layout = Layout::for_spec(spec);
 
-    let mut csv = PendingFile::create(dir, VECTORS_CSV)?;
-    let mut stim = PendingFile::create(dir, STIMULUS_HEX)?;
-    let mut exp = PendingFile::create(dir, EXPECTED_HEX)?;
+    let created = (|| -> Result<_> {
+        Ok((
+            PendingFile::create(dir, VECTORS_CSV)?,
+            PendingFile::create(dir, STIMULUS_HEX)?,
+            PendingFile::create(dir, EXPECTED_HEX)?,
+        ))
+    })();
+    let (mut csv, mut stim, mut exp) = match created {
+        Ok(files) => files,
+        Err(e) => {
+            remove_temporaries(dir);
+            return Err(e);
+        }
+    };
     let result = (|| -> Result<()> {
         if first_shard {
             csv.write(csv_header(spec).as_bytes())?;
@@ -465,9 +476,7 @@ pub fn write(
     let finished = match finished {
         Ok(f) => f,
         Err(e) => {
-            for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX] {
-                let _ = std::fs::remove_file(dir.join(format!(".{name}.tmp")));
-            }
+            remove_temporaries(dir);
             return Err(e);
         }
     };
@@ -492,14 +501,34 @@ pub fn write(
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
     text.push('\n');
-    let mut mf = PendingFile::create(dir, MANIFEST_JSON)?;
-    mf.write(text.as_bytes())?;
-    let (_, mtmp, mpath) = mf.finish()?;
-    for (_, tmp, path) in finished {
-        std::fs::rename(&tmp, &path).map_err(|e| Error::io(&path, e))?;
+    // Files renamed into place so far; a later failure removes them again, so a failed run
+    // never leaves a set whose files do not belong together.
+    let mut placed: Vec<PathBuf> = Vec::new();
+    let published = (|| -> Result<()> {
+        let mut mf = PendingFile::create(dir, MANIFEST_JSON)?;
+        mf.write(text.as_bytes())?;
+        let (_, mtmp, mpath) = mf.finish()?;
+        for (_, tmp, path) in &finished {
+            std::fs::rename(tmp, path).map_err(|e| Error::io(path, e))?;
+            placed.push(path.clone());
+        }
+        std::fs::rename(&mtmp, &mpath).map_err(|e| Error::io(&mpath, e))
+    })();
+    if let Err(e) = published {
+        for path in &placed {
+            let _ = std::fs::remove_file(path);
+        }
+        remove_temporaries(dir);
+        return Err(e);
     }
-    std::fs::rename(&mtmp, &mpath).map_err(|e| Error::io(&mpath, e))?;
     Ok(manifest)
+}
+
+/// Removes whatever temporary files an unfinished [`write`] left in `dir`.
+fn remove_temporaries(dir: &Path) {
+    for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX, MANIFEST_JSON] {
+        let _ = std::fs::remove_file(dir.join(format!(".{name}.tmp")));
+    }
 }
 
 /// A vector set read back from disk: the manifest and, per vector, its inputs and expected

@@ -1,0 +1,11 @@
+//! End-to-end tests of the `arithvec` binary: each test writes small fixtures into a fresh
+//! temporary directory, runs the real executable, and checks exit codes, files and reports.
+//! One module per subcommand, plus error handling and the shared plumbing in `util`.
+
+mod check;
+mod classes;
+mod errors;
+mod gen;
+mod merge;
+mod repro;
+mod util;
