@@ -82,7 +82,8 @@ impl Read for LogSource {
                 // Only the first 65536 indices match their operands; the rest reuse lines
                 // with new indices, which is fine for a log checked without --vectors.
                 self.buf.extend_from_slice(self.next.to_string().as_bytes());
-                self.buf.extend_from_slice(&self.lines[(self.next % 65536) as usize]);
+                self.buf
+                    .extend_from_slice(&self.lines[(self.next % 65536) as usize]);
                 self.next += 1;
             }
         }
@@ -125,13 +126,23 @@ fn main() {
     spec.name = "bench_sub32".into();
     let generator = Generator::new(&spec, Some(0), None);
     let mut one_m = 0.0;
-    for lines in [250_000u64, 1_000_000, 4_000_000] {
+    // ARITHVEC_BENCH_LINES=N runs one size only (for instruction counting under callgrind).
+    let sizes: Vec<u64> = match std::env::var("ARITHVEC_BENCH_LINES") {
+        Ok(n) => vec![n.parse().expect("ARITHVEC_BENCH_LINES is a number")],
+        Err(_) => vec![250_000, 1_000_000, 4_000_000],
+    };
+    for lines in sizes {
         let source = BufReader::with_capacity(1 << 20, LogSource::new(&spec, lines));
         let t = Instant::now();
         let mut reader = LogReader::new(source, "bench.csv", &spec, Radix::Hex).expect("header");
-        let mut checker =
-            Checker::new(&spec, &generator, None, reader.columns(), CheckOptions::default())
-                .expect("checker");
+        let mut checker = Checker::new(
+            &spec,
+            &generator,
+            None,
+            reader.columns(),
+            CheckOptions::default(),
+        )
+        .expect("checker");
         let mut row = LogRow::new();
         while reader.read_row(&mut row).expect("row") {
             checker.row(row.line, row.index, |s: Signal| {
@@ -155,8 +166,14 @@ fn main() {
             peak_rss_kib()
         );
     }
+    if std::env::var("ARITHVEC_BENCH_LINES").is_ok() {
+        return;
+    }
     let (bare, sum) = bare_scan(&spec, 1_000_000);
-    println!("bare line scan + hex parse: {:.2} M lines/s (checksum {sum:x})", bare / 1e6);
+    println!(
+        "bare line scan + hex parse: {:.2} M lines/s (checksum {sum:x})",
+        bare / 1e6
+    );
     println!("arithvec / bare scan: {:.2}", one_m / bare);
     println!("goal: >= 5 M lines/s on a 2-core machine");
 }

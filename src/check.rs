@@ -482,8 +482,8 @@ impl<'g> Checker<'g> {
             let (w, u) = judge(&expected);
             wrong = w;
             unknown = u;
-            if (w || u) && alternative.is_some() {
-                let (w2, u2) = judge(alternative.as_ref().expect("checked"));
+            if let (true, Some(alt)) = (w || u, alternative.as_ref()) {
+                let (w2, u2) = judge(alt);
                 if !w2 && !u2 {
                     wrong = false;
                     unknown = false;

@@ -207,7 +207,7 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
                     })
                 });
                 n += 1;
-                if n % 262_144 == 0 {
+                if n.is_multiple_of(262_144) {
                     if let Some(b) = &bar {
                         b.set_position(n);
                     }

@@ -316,17 +316,17 @@ impl Datapath {
     }
 
     /// Inputs for roles listed from bit 0 upward (missing top bits: Any) and carry-in c0.
-    fn from_roles(&self, roles: &[Role], c0: bool) -> Option<Inputs> {
+    fn inputs_from_roles(&self, roles: &[Role], c0: bool) -> Option<Inputs> {
         let mut bits = Vec::with_capacity(self.width as usize);
         for i in 0..self.width {
             let role = roles.get(i as usize).copied().unwrap_or(Role::Any);
             bits.push(self.pick(i, role)?);
         }
-        self.from_bits(&bits, c0)
+        self.inputs_from_bits(&bits, c0)
     }
 
     /// Inputs for explicit (x_i, y_i) bits and carry-in c0.
-    fn from_bits(&self, bits: &[(bool, bool)], c0: bool) -> Option<Inputs> {
+    fn inputs_from_bits(&self, bits: &[(bool, bool)], c0: bool) -> Option<Inputs> {
         if !self.c0_allowed(c0) {
             return None;
         }
@@ -379,7 +379,7 @@ impl Datapath {
                 *r = Role::Any;
             }
             // Any carry-in will do; prefer one that is allowed.
-            return Some(if self.c0_allowed(false) { false } else { true });
+            return Some(!self.c0_allowed(false));
         }
         if self.pick(i - 1, Role::Propagate).is_some() {
             roles[(i - 1) as usize] = Role::Propagate;
@@ -416,11 +416,7 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
     let mask = Word::ones(w);
     match &c.kind {
         Kind::Special(operand, _, code) => {
-            let other = if *operand == Operand::A {
-                Special::Zero.code(model).unwrap_or(Word::ZERO)
-            } else {
-                Special::Zero.code(model).unwrap_or(Word::ZERO)
-            };
+            let other = Special::Zero.code(model).unwrap_or(Word::ZERO);
             match operand {
                 Operand::A => vec![pair(*code, *code), pair(*code, other)],
                 Operand::B => vec![pair(*code, *code), pair(other, *code)],
@@ -492,7 +488,7 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
             let k = k as usize;
             let mut out = Vec::new();
             let mut push = |roles: Vec<Role>, c0: bool| {
-                if let Some(v) = dp.from_roles(&roles, c0) {
+                if let Some(v) = dp.inputs_from_roles(&roles, c0) {
                     out.push(v);
                 }
             };
@@ -571,7 +567,7 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
                     None => return Vec::new(),
                 }
             }
-            dp.from_bits(&bits, c0).into_iter().collect()
+            dp.inputs_from_bits(&bits, c0).into_iter().collect()
         }
         Kind::EndAroundCarry => {
             let mut out = Vec::new();
@@ -579,7 +575,7 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
                 // x = 11..1, y = 10..0 in datapath terms: the first pass is 1 01..1 and the
                 // end-around carry ripples through every low bit.
                 let bits: Vec<(bool, bool)> = (0..w).map(|i| (true, i == w - 1)).collect();
-                out.extend(dp.from_bits(&bits, false));
+                out.extend(dp.inputs_from_bits(&bits, false));
             }
             out.extend(solver.pairs(pool));
             out
@@ -853,7 +849,7 @@ fn seed_vectors(dp: &Datapath) -> Vec<Inputs> {
             (y, c)
         };
         let bits: Vec<(bool, bool)> = (0..w).map(|i| (x.bit(i), y.bit(i))).collect();
-        if let Some(v) = dp.from_bits(&bits, c) {
+        if let Some(v) = dp.inputs_from_bits(&bits, c) {
             out.push(v);
         }
     }
@@ -1072,15 +1068,15 @@ mod tests {
                                 }
                             }
                         }
-                        for bin in 0..cat.bin_count() {
-                            if seen[bin] != cat.is_reachable(bin) {
+                        for (bin, &was_seen) in seen.iter().enumerate() {
+                            if was_seen != cat.is_reachable(bin) {
                                 failures.push(format!(
                                     "{} w{w} {:?} cin={}: bin {} hit by enumeration = {}, reachable = {}",
                                     spec.name,
                                     spec.conventions,
                                     spec.has(Signal::CarryIn),
                                     cat.bin_id(bin),
-                                    seen[bin],
+                                    was_seen,
                                     cat.is_reachable(bin)
                                 ));
                             }

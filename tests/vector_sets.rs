@@ -35,7 +35,10 @@ fn specs() -> Vec<PathBuf> {
 #[test]
 fn every_example_set_regenerates_byte_for_byte() {
     let specs = specs();
-    assert!(specs.len() >= 4, "expected the four example units, found {specs:?}");
+    assert!(
+        specs.len() >= 4,
+        "expected the four example units, found {specs:?}"
+    );
     let sums = std::fs::read_to_string(root().join("vector-sets/SHA256SUMS")).expect("SHA256SUMS");
     let tmp = tempfile::tempdir().expect("temp dir");
     for spec in specs {
@@ -50,9 +53,15 @@ fn every_example_set_regenerates_byte_for_byte() {
             .status()
             .expect("run arithvec");
         assert!(status.success(), "gen failed for {}", spec.display());
-        for name in ["vectors.csv", "stimulus.hex", "expected.hex", "manifest.json"] {
+        for name in [
+            "vectors.csv",
+            "stimulus.hex",
+            "expected.hex",
+            "manifest.json",
+        ] {
             let fresh = std::fs::read(out.join(name)).expect("fresh file");
-            let checked_in = std::fs::read(set.join("vectors").join(name)).expect("checked-in file");
+            let checked_in =
+                std::fs::read(set.join("vectors").join(name)).expect("checked-in file");
             assert!(
                 fresh == checked_in,
                 "{unit}/{name} differs from the checked-in file; if the change is deliberate run \
@@ -78,7 +87,12 @@ fn no_stray_files_in_the_sets() {
         names.sort();
         assert_eq!(
             names,
-            ["expected.hex", "manifest.json", "stimulus.hex", "vectors.csv"],
+            [
+                "expected.hex",
+                "manifest.json",
+                "stimulus.hex",
+                "vectors.csv"
+            ],
             "in {}",
             Path::new(&dir).display()
         );
