@@ -418,22 +418,28 @@ fn repro(
     let mut list = String::new();
     cat.class_list(&hits, &mut list);
     writeln!(o, "classes: {list}").map_err(cli_util::stdout_error)?;
+    // Per-bit families (cell rows, result bits) hit a bin at every bit; list the others
+    // and count those.
     let mut bins = Vec::new();
     hits.for_each_bin(|b| bins.push(b));
     bins.sort_unstable();
-    let named: Vec<String> = bins.iter().map(|&b| cat.bin_id(b)).collect();
-    if named.len() <= 40 {
-        writeln!(o, "bins: {}", named.join(" ")).map_err(cli_util::stdout_error)?;
-    } else {
-        writeln!(
-            o,
-            "bins: {} (list with --format csv is not per bin; {} shown)",
-            named.len(),
-            40
-        )
-        .map_err(cli_util::stdout_error)?;
-        writeln!(o, "  {}", named[..40].join(" ")).map_err(cli_util::stdout_error)?;
+    let mut listed = Vec::new();
+    let mut per_bit: Vec<(usize, usize)> = Vec::new();
+    for b in bins {
+        let class = cat.class_of_bin(b);
+        if spec.width > 1 && cat.classes()[class].bin_count() >= 2 * spec.width as usize {
+            match per_bit.iter_mut().find(|(c, _)| *c == class) {
+                Some((_, n)) => *n += 1,
+                None => per_bit.push((class, 1)),
+            }
+        } else {
+            listed.push(cat.bin_id(b));
+        }
     }
+    for (class, n) in per_bit {
+        listed.push(format!("{} ({n} bins)", cat.classes()[class].id()));
+    }
+    writeln!(o, "bins: {}", listed.join(" ")).map_err(cli_util::stdout_error)?;
     Ok(Outcome::Success)
 }
 
