@@ -8,10 +8,13 @@
 #![deny(missing_docs)]
 
 mod error;
+mod fault;
+mod netlist;
 mod spec;
 mod word;
 
 pub use error::{Error, ErrorKind, Problem, Result};
+pub use netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
     NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,

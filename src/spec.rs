@@ -74,9 +74,9 @@ impl Operation {
     pub fn signals(self) -> &'static [Signal] {
         use Signal::*;
         match self {
-            Operation::Add | Operation::Sub => &[
-                A, B, CarryIn, Result, CarryOut, Overflow, Zero, Negative,
-            ],
+            Operation::Add | Operation::Sub => {
+                &[A, B, CarryIn, Result, CarryOut, Overflow, Zero, Negative]
+            }
             Operation::AddSub => &[
                 A, B, CarryIn, Mode, Result, CarryOut, Overflow, Zero, Negative,
             ],
@@ -224,10 +224,7 @@ impl Signal {
 
     /// True for inputs of the unit.
     pub fn is_input(self) -> bool {
-        matches!(
-            self,
-            Signal::A | Signal::B | Signal::CarryIn | Signal::Mode
-        )
+        matches!(self, Signal::A | Signal::B | Signal::CarryIn | Signal::Mode)
     }
 
     /// The signal's width in bits for a unit of operand width `width`.
@@ -560,7 +557,10 @@ impl<'a> Reader<'a> {
     fn get<'t, 'i>(
         table: &'t Table<'i>,
         key: &str,
-    ) -> Option<(&'t Spanned<toml::de::DeString<'i>>, &'t Spanned<DeValue<'i>>)> {
+    ) -> Option<(
+        &'t Spanned<toml::de::DeString<'i>>,
+        &'t Spanned<DeValue<'i>>,
+    )> {
         table.get_key_value(key)
     }
 
@@ -629,7 +629,10 @@ impl<'a> Reader<'a> {
                 self.problem(
                     at..at,
                     &format!("{prefix}{key}"),
-                    format!("unknown value \"{s}\"; expected one of: {}", names.join(", ")),
+                    format!(
+                        "unknown value \"{s}\"; expected one of: {}",
+                        names.join(", ")
+                    ),
                 );
                 None
             }
@@ -722,7 +725,9 @@ impl<'a> Reader<'a> {
         let mut spec = Spec {
             name: name.map(|n| n.0).unwrap_or_default(),
             operation,
-            width: width.map(|w| w.0.clamp(1, MAX_WIDTH as i128) as u32).unwrap_or(8),
+            width: width
+                .map(|w| w.0.clamp(1, MAX_WIDTH as i128) as u32)
+                .unwrap_or(8),
             encoding,
             ports,
             conventions: Conventions::default(),
@@ -793,7 +798,10 @@ impl<'a> Reader<'a> {
                 self.problem(
                     at..at,
                     &key,
-                    format!("port name \"{name}\" is already used by ports.{}", other.key()),
+                    format!(
+                        "port name \"{name}\" is already used by ports.{}",
+                        other.key()
+                    ),
                 );
                 continue;
             }
@@ -820,9 +828,12 @@ impl<'a> Reader<'a> {
         }
         if operation == Operation::AddSub && ports.get(Signal::Mode).is_none() {
             self.problems.push(
-                Problem::new(self.file, "an addsub unit needs a `mode` port (0 = add, 1 = subtract)")
-                    .at_line(line)
-                    .field("ports.mode"),
+                Problem::new(
+                    self.file,
+                    "an addsub unit needs a `mode` port (0 = add, 1 = subtract)",
+                )
+                .at_line(line)
+                .field("ports.mode"),
             );
         }
         if !Signal::ALL
@@ -855,7 +866,9 @@ impl<'a> Reader<'a> {
             ],
         ) {
             spec.conventions.carry_out = v;
-            if !(spec.subtracts() && spec.encoding.is_binary_datapath() && spec.has(Signal::CarryOut))
+            if !(spec.subtracts()
+                && spec.encoding.is_binary_datapath()
+                && spec.has(Signal::CarryOut))
             {
                 self.problem(
                     at..at,
@@ -955,7 +968,11 @@ impl<'a> Reader<'a> {
         }
         if let Some((n, at)) = self.integer(t, "random.", "corner_share") {
             if !(0..=100).contains(&n) {
-                self.problem(at..at, "random.corner_share", "must be a percentage 0..=100");
+                self.problem(
+                    at..at,
+                    "random.corner_share",
+                    "must be a percentage 0..=100",
+                );
             } else {
                 random.corner_share = n as u32;
                 if random.mix != Mix::Corner {
@@ -974,7 +991,11 @@ impl<'a> Reader<'a> {
         let module = self.string(t, "dut.", "module");
         if let Some((m, at)) = &module {
             if !is_identifier(m) {
-                self.problem(*at..*at, "dut.module", format!("\"{m}\" is not a usable module name"));
+                self.problem(
+                    *at..*at,
+                    "dut.module",
+                    format!("\"{m}\" is not a usable module name"),
+                );
             }
         } else if Self::get(t, "module").is_none() {
             self.problems.push(
@@ -1093,7 +1114,9 @@ result = "y"
         assert_eq!(find("colour").unwrap().line, Some(5));
         assert_eq!(find("ports.b").unwrap().line, Some(9));
         assert_eq!(find("ports.mode").unwrap().line, Some(10));
-        assert!(err.to_string().contains("bad.toml:3: width: must be 1..=512"));
+        assert!(err
+            .to_string()
+            .contains("bad.toml:3: width: must be 1..=512"));
     }
 
     #[test]
@@ -1110,7 +1133,10 @@ result = "y"
 carry_out = "carry"
 "#;
         let err = Spec::parse(text, "c.toml").unwrap_err();
-        assert_eq!(err.problems()[0].field.as_deref(), Some("conventions.carry_out"));
+        assert_eq!(
+            err.problems()[0].field.as_deref(),
+            Some("conventions.carry_out")
+        );
     }
 
     #[test]
@@ -1131,7 +1157,11 @@ b = "p"
 result = "index"
 "#;
         let err = Spec::parse(text, "d.toml").unwrap_err();
-        let fields: Vec<_> = err.problems().iter().map(|p| p.field.clone().unwrap()).collect();
+        let fields: Vec<_> = err
+            .problems()
+            .iter()
+            .map(|p| p.field.clone().unwrap())
+            .collect();
         assert!(fields.contains(&"ports.b".to_string()));
         assert!(fields.contains(&"ports.result".to_string()));
     }

@@ -352,7 +352,10 @@ mod tests {
         assert_eq!(wide.to_hex(512), "f".repeat(128));
         assert_eq!(Word::parse_hex(&"f".repeat(128)), Some(wide));
         assert_eq!(Word::parse_hex(&"f".repeat(129)), None);
-        assert_eq!(Word::parse_hex(&format!("0{}", "f".repeat(128))), Some(wide));
+        assert_eq!(
+            Word::parse_hex(&format!("0{}", "f".repeat(128))),
+            Some(wide)
+        );
     }
 
     #[test]
@@ -369,7 +372,10 @@ mod tests {
         // and confirmed by the round trip below).
         let w = Word::bit_mask(128);
         assert_eq!(w.to_decimal(), "340282366920938463463374607431768211456");
-        assert_eq!(Word::parse_decimal("340282366920938463463374607431768211456"), Some(w));
+        assert_eq!(
+            Word::parse_decimal("340282366920938463463374607431768211456"),
+            Some(w)
+        );
         assert_eq!(Word::ZERO.to_decimal(), "0");
         assert_eq!(Word::from_u64(u64::MAX).to_decimal(), u64::MAX.to_string());
     }

@@ -1,0 +1,1 @@
+//! Single stuck-at faults (placeholder while the netlist compiles).
