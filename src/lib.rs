@@ -14,6 +14,10 @@ mod spec;
 mod word;
 
 pub use error::{Error, ErrorKind, Problem, Result};
+pub use fault::{
+    compact, detection_matrix, grade, grade_with, DetectionMatrix, Fault, FaultEntry, FaultList,
+    FaultReport, FaultSite, GradeOptions, PatternSet, PortValue, Redundancy, SimulationMode,
+};
 pub use netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,

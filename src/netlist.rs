@@ -27,6 +27,11 @@ impl NetId {
     pub fn index(self) -> usize {
         self.0 as usize
     }
+
+    /// The net at position `index` of a netlist's net table.
+    pub(crate) fn from_index(index: usize) -> NetId {
+        NetId(index as u32)
+    }
 }
 
 /// The simple gate types a netlist may hold. Pin order is Yosys' (`A`, `B`, `C`, `D`, `S`).
