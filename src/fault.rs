@@ -14,8 +14,7 @@
 //!
 //! A vector detects a fault when some primary output differs from the fault-free circuit.
 
-use std::cmp::Reverse;
-use std::collections::{BinaryHeap, HashMap};
+use std::collections::HashMap;
 
 use serde::Serialize;
 
@@ -694,18 +693,18 @@ pub struct FaultReport {
     pub first_detection: Vec<Option<usize>>,
 }
 
-/// Net-indexed good and faulty values for one block of vectors, with the event queue of the
-/// fault currently simulated.
+/// Faulty values of the fault currently simulated, as an overlay on a block's fault-free
+/// values, plus scratch space for computing fan-out cones.
 struct Engine<'a> {
     nl: &'a Netlist,
     topo: &'a Topology,
-    good: Vec<u64>,
     faulty: Vec<u64>,
     /// `faulty[n]` is valid only when `net_mark[n] == mark`; otherwise the net is fault-free.
     net_mark: Vec<u32>,
-    gate_mark: Vec<u32>,
     mark: u32,
-    queue: BinaryHeap<Reverse<u32>>,
+    gate_seen: Vec<u32>,
+    seen_mark: u32,
+    stack: Vec<NetId>,
 }
 
 impl<'a> Engine<'a> {
@@ -713,107 +712,180 @@ impl<'a> Engine<'a> {
         Engine {
             nl,
             topo,
-            good: nl.initial_values(),
             faulty: vec![0; nl.net_count()],
             net_mark: vec![0; nl.net_count()],
-            gate_mark: vec![0; nl.gates().len()],
             mark: 0,
-            queue: BinaryHeap::new(),
+            gate_seen: vec![0; nl.gates().len()],
+            seen_mark: 0,
+            stack: Vec::new(),
         }
     }
 
-    /// Fault-free simulation of the whole netlist for input words `inputs`.
-    fn simulate_good(&mut self, inputs: &[u64]) {
-        for (net, &v) in self.nl.input_nets().iter().zip(inputs) {
-            self.good[net.index()] = v;
+    /// The gates a fault at `site` can reach, ascending (so in topological order). The gate
+    /// whose input pin is faulted is not included: the injection evaluates it.
+    fn cone_of(&mut self, site: FaultSite, cone: &mut Vec<u32>) {
+        cone.clear();
+        let start = match site {
+            FaultSite::Stem(n) => n,
+            FaultSite::GateInput { gate, .. } => self.nl.gates()[gate].output(),
+            FaultSite::OutputBit { .. } => return,
+        };
+        self.seen_mark = self.seen_mark.wrapping_add(1);
+        if self.seen_mark == 0 {
+            self.gate_seen.fill(0);
+            self.seen_mark = 1;
         }
-        self.nl.eval_gates(&mut self.good);
+        self.stack.clear();
+        self.stack.push(start);
+        let (gates, topo) = (self.nl.gates(), self.topo);
+        while let Some(net) = self.stack.pop() {
+            for &g in &topo.fanout_gates[net.index()] {
+                if self.gate_seen[g as usize] != self.seen_mark {
+                    self.gate_seen[g as usize] = self.seen_mark;
+                    cone.push(g);
+                    self.stack.push(gates[g as usize].output());
+                }
+            }
+        }
+        cone.sort_unstable();
     }
 
-    /// Fault-free simulation of only `gates` (ascending, so topological).
-    fn simulate_good_gates(&mut self, inputs: &[u64], gates: &[u32]) {
-        for (net, &v) in self.nl.input_nets().iter().zip(inputs) {
-            self.good[net.index()] = v;
-        }
-        let all = self.nl.gates();
-        for &g in gates {
-            let gate = &all[g as usize];
-            self.good[gate.output().index()] = crate::netlist::gate_value(gate, &self.good);
-        }
-    }
-
+    /// Records a faulty value for `net` if it differs from the fault-free one in a live lane;
+    /// returns whether it did.
     #[inline]
-    fn value(&self, net: NetId) -> u64 {
+    fn set(&mut self, net: NetId, value: u64, good: &[u64], mask: u64, detected: &mut u64) -> bool {
         let n = net.index();
-        if self.net_mark[n] == self.mark {
-            self.faulty[n]
-        } else {
-            self.good[n]
-        }
-    }
-
-    /// Records a faulty value for `net` and schedules its readers, if it differs from the
-    /// fault-free value in any live lane.
-    #[inline]
-    fn set(&mut self, net: NetId, value: u64, mask: u64, detected: &mut u64) {
-        let n = net.index();
-        let diff = (value ^ self.good[n]) & mask;
+        let diff = (value ^ good[n]) & mask;
         if diff == 0 {
-            return;
+            return false;
         }
         self.faulty[n] = value;
         self.net_mark[n] = self.mark;
-        let topo = self.topo;
-        if topo.observed[n] {
+        if self.topo.observed[n] {
             *detected |= diff;
         }
-        for &g in &topo.fanout_gates[n] {
-            if self.gate_mark[g as usize] != self.mark {
-                self.gate_mark[g as usize] = self.mark;
-                self.queue.push(Reverse(g));
-            }
-        }
+        true
     }
 
-    /// The lanes (within `mask`) in which `fault` makes some primary output differ.
-    /// Only gates whose inputs actually changed are evaluated (event-driven propagation
-    /// through the fault's fan-out cone, in topological order).
-    fn detect(&mut self, fault: &Fault, mask: u64) -> u64 {
+    /// The lanes (within `mask`) in which `fault` makes some primary output differ, given the
+    /// block's fault-free values `good` and the fault's fan-out `cone` from
+    /// [`Engine::cone_of`]. The cone is walked in topological order; a gate is evaluated only
+    /// when one of its inputs carries a fault effect.
+    fn detect(&mut self, fault: &Fault, cone: &[u32], good: &[u64], mask: u64) -> u64 {
         self.mark = self.mark.wrapping_add(1);
         if self.mark == 0 {
             self.net_mark.fill(0);
-            self.gate_mark.fill(0);
             self.mark = 1;
         }
-        self.queue.clear();
         let stuck = if fault.stuck_at { !0u64 } else { 0 };
         let mut detected = 0u64;
         let nl = self.nl;
-        match fault.site {
-            FaultSite::Stem(net) => self.set(net, stuck, mask, &mut detected),
+        let activated = match fault.site {
+            FaultSite::Stem(net) => self.set(net, stuck, good, mask, &mut detected),
             FaultSite::GateInput { gate, pin } => {
                 let g = &nl.gates()[gate];
                 let mut ins = [0u64; 4];
                 for (k, n) in g.inputs().iter().enumerate() {
-                    ins[k] = self.good[n.index()];
+                    ins[k] = good[n.index()];
                 }
                 ins[pin] = stuck;
-                self.set(g.output(), g.kind().eval(ins), mask, &mut detected);
+                self.set(g.output(), g.kind().eval(ins), good, mask, &mut detected)
             }
             FaultSite::OutputBit { port, bit } => {
                 let net = nl.outputs()[port].nets()[bit as usize];
-                return (self.good[net.index()] ^ stuck) & mask;
+                return (good[net.index()] ^ stuck) & mask;
             }
+        };
+        if !activated {
+            return 0;
         }
-        while let Some(Reverse(g)) = self.queue.pop() {
-            let gate = &nl.gates()[g as usize];
+        let gates = nl.gates();
+        for &g in cone {
+            let gate = &gates[g as usize];
             let mut ins = [0u64; 4];
-            for (k, &n) in gate.inputs().iter().enumerate() {
-                ins[k] = self.value(n);
+            let mut touched = false;
+            for (k, n) in gate.inputs().iter().enumerate() {
+                let n = n.index();
+                if self.net_mark[n] == self.mark {
+                    touched = true;
+                    ins[k] = self.faulty[n];
+                } else {
+                    ins[k] = good[n];
+                }
             }
-            self.set(gate.output(), gate.kind().eval(ins), mask, &mut detected);
+            if touched {
+                self.set(
+                    gate.output(),
+                    gate.kind().eval(ins),
+                    good,
+                    mask,
+                    &mut detected,
+                );
+            }
         }
         detected
+    }
+}
+
+/// Fault-free values for a run of consecutive blocks of vectors, so each fault's cone is
+/// computed once per chunk rather than once per block.
+struct Chunk {
+    /// (first vector, vector count) of each block.
+    blocks: Vec<(usize, usize)>,
+    /// Block-major net values: block `k` holds `good[k * nets .. (k + 1) * nets]`.
+    good: Vec<u64>,
+    nets: usize,
+}
+
+impl Chunk {
+    fn good(&self, block: usize) -> &[u64] {
+        &self.good[block * self.nets..(block + 1) * self.nets]
+    }
+}
+
+/// Net values kept per chunk, at most (32 MiB of words): bounds memory on large netlists.
+const CHUNK_WORD_BUDGET: usize = 1 << 22;
+/// Vectors per chunk when memory allows, the same in both modes.
+const CHUNK_VECTORS: usize = 4096;
+
+/// Runs the fault-free simulation chunk by chunk and hands each chunk to `f`; stops early
+/// when `f` returns false.
+fn for_each_chunk(
+    nl: &Netlist,
+    patterns: &PatternSet,
+    lanes: usize,
+    mut f: impl FnMut(&Chunk) -> bool,
+) {
+    let nets = nl.net_count().max(1);
+    let max_blocks = (CHUNK_VECTORS / lanes).min(CHUNK_WORD_BUDGET / nets).max(1);
+    let initial = nl.initial_values();
+    let mut chunk = Chunk {
+        blocks: Vec::with_capacity(max_blocks),
+        good: Vec::new(),
+        nets: nl.net_count(),
+    };
+    for _ in 0..max_blocks.min(patterns.len().div_ceil(lanes)) {
+        chunk.good.extend_from_slice(&initial);
+    }
+    let mut inputs = vec![0u64; nl.input_nets().len()];
+    let mut start = 0;
+    while start < patterns.len() {
+        chunk.blocks.clear();
+        while chunk.blocks.len() < max_blocks && start < patterns.len() {
+            let count = lanes.min(patterns.len() - start);
+            let k = chunk.blocks.len();
+            patterns.load(start, count, &mut inputs);
+            let good = &mut chunk.good[k * chunk.nets..(k + 1) * chunk.nets];
+            for (net, &v) in nl.input_nets().iter().zip(&inputs) {
+                good[net.index()] = v;
+            }
+            nl.eval_gates(good);
+            chunk.blocks.push((start, count));
+            start += count;
+        }
+        if !f(&chunk) {
+            return;
+        }
     }
 }
 
@@ -877,19 +949,19 @@ fn grade_inner(
     let mut first = vec![None; classes];
     let mut remaining: Vec<usize> = (0..classes).collect();
     let mut engine = Engine::new(nl, topo);
-    let mut inputs = vec![0u64; nl.input_nets().len()];
-    for_each_block(patterns.len(), lanes, |start, count| {
-        patterns.load(start, count, &mut inputs);
-        engine.simulate_good(&inputs);
-        let mask = lane_mask(count);
+    let mut cone = Vec::new();
+    for_each_chunk(nl, patterns, lanes, |chunk| {
         remaining.retain(|&c| {
-            let detected = engine.detect(&faults.representative(c), mask);
-            if detected != 0 {
-                first[c] = Some(start + detected.trailing_zeros() as usize);
-                false
-            } else {
-                true
+            let rep = faults.representative(c);
+            engine.cone_of(rep.site, &mut cone);
+            for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
+                let detected = engine.detect(&rep, &cone, chunk.good(k), lane_mask(count));
+                if detected != 0 {
+                    first[c] = Some(start + detected.trailing_zeros() as usize);
+                    return false;
+                }
             }
+            true
         });
         !remaining.is_empty()
     });
@@ -1105,14 +1177,19 @@ fn prove(
         .filter(|&g| in_cone[g as usize])
         .collect();
     let total = 1usize << support_bits;
-    let mut inputs = vec![0u64; nl.input_nets().len()];
+    let mut good = nl.initial_values();
+    let mut cone = Vec::new();
+    engine.cone_of(fault.site, &mut cone);
     let mut found = None;
     for_each_block(total, lanes, |start, count| {
         for (j, &i) in support.iter().enumerate() {
-            inputs[i] = exhaustive_word(j, start as u64, count);
+            good[nl.input_nets()[i].index()] = exhaustive_word(j, start as u64, count);
         }
-        engine.simulate_good_gates(&inputs, &gates);
-        let detected = engine.detect(fault, lane_mask(count));
+        for &g in &gates {
+            let gate = &nl.gates()[g as usize];
+            good[gate.output().index()] = crate::netlist::gate_value(gate, &good);
+        }
+        let detected = engine.detect(fault, &cone, &good, lane_mask(count));
         if detected != 0 {
             found = Some(start + detected.trailing_zeros() as usize);
             return false;
@@ -1225,14 +1302,14 @@ pub fn detection_matrix(
     let mut rows = vec![0u64; classes * words_per_row];
     let reps: Vec<Fault> = (0..classes).map(|c| faults.representative(c)).collect();
     let mut engine = Engine::new(netlist, &topo);
-    let mut inputs = vec![0u64; netlist.input_nets().len()];
-    for_each_block(patterns.len(), mode.lanes(), |start, count| {
-        patterns.load(start, count, &mut inputs);
-        engine.simulate_good(&inputs);
-        let mask = lane_mask(count);
+    let mut cone = Vec::new();
+    for_each_chunk(netlist, patterns, mode.lanes(), |chunk| {
         for (c, rep) in reps.iter().enumerate() {
-            let detected = engine.detect(rep, mask);
-            rows[c * words_per_row + start / 64] |= detected << (start % 64);
+            engine.cone_of(rep.site, &mut cone);
+            for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
+                let detected = engine.detect(rep, &cone, chunk.good(k), lane_mask(count));
+                rows[c * words_per_row + start / 64] |= detected << (start % 64);
+            }
         }
         true
     });
@@ -1429,17 +1506,20 @@ mod tests {
             let vectors = random_vectors(&nl, 100, seed);
             let patterns = PatternSet::from_vectors(&nl, &vectors, "t").unwrap();
             let mut engine = Engine::new(&nl, &topo);
-            let mut inputs = vec![0u64; nl.input_nets().len()];
-            for_each_block(patterns.len(), 64, |start, count| {
-                patterns.load(start, count, &mut inputs);
-                engine.simulate_good(&inputs);
-                for f in faults.faults() {
-                    let mask = lane_mask(count);
-                    assert_eq!(
-                        engine.detect(f, mask),
-                        oracle_detects(&nl, f, &inputs, mask),
-                        "seed {seed} {f:?}"
-                    );
+            let mut cone = Vec::new();
+            for_each_chunk(&nl, &patterns, 64, |chunk| {
+                for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
+                    let mut inputs = vec![0u64; nl.input_nets().len()];
+                    patterns.load(start, count, &mut inputs);
+                    for f in faults.faults() {
+                        engine.cone_of(f.site, &mut cone);
+                        let mask = lane_mask(count);
+                        assert_eq!(
+                            engine.detect(f, &cone, chunk.good(k), mask),
+                            oracle_detects(&nl, f, &inputs, mask),
+                            "seed {seed} {f:?}"
+                        );
+                    }
                 }
                 true
             });
