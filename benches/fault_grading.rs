@@ -26,10 +26,17 @@ impl Rng {
     }
 }
 
-fn timed<T>(f: impl FnOnce() -> T) -> (T, Duration) {
-    let start = Instant::now();
-    let value = f();
-    (value, start.elapsed())
+/// Runs `f` `runs` times and keeps the fastest time: the machine is shared, so the minimum
+/// is the best estimate of the code's own cost.
+fn timed<T>(runs: usize, mut f: impl FnMut() -> T) -> (T, Duration) {
+    let mut best = Duration::MAX;
+    let mut value = None;
+    for _ in 0..runs.max(1) {
+        let start = Instant::now();
+        value = Some(f());
+        best = best.min(start.elapsed());
+    }
+    (value.expect("at least one run"), best)
 }
 
 fn main() {
@@ -58,11 +65,11 @@ fn main() {
     );
 
     // Every collapsed fault against every vector (no dropping): the raw simulation rate.
-    let (parallel, t_par) = timed(|| {
+    let (parallel, t_par) = timed(5, || {
         detection_matrix(&nl, &faults, &patterns, SimulationMode::BitParallel).expect("matrix")
     });
     let (serial, t_ser_subset) =
-        timed(|| detection_matrix(&nl, &faults, &subset, SimulationMode::Serial).expect("matrix"));
+        timed(3, || detection_matrix(&nl, &faults, &subset, SimulationMode::Serial).expect("matrix"));
     for c in 0..classes {
         for v in 0..SERIAL_SUBSET {
             assert_eq!(
@@ -97,13 +104,13 @@ fn main() {
 
     // Grading as the tool runs it: fault dropping, then redundancy proofs (none needed here).
     let (report, t_grade_par) =
-        timed(|| grade_with(&nl, &faults, &patterns, &GradeOptions::default()).expect("grade"));
+        timed(5, || grade_with(&nl, &faults, &patterns, &GradeOptions::default()).expect("grade"));
     let serial_options = GradeOptions {
         mode: SimulationMode::Serial,
         ..GradeOptions::default()
     };
     let (serial_report, t_grade_ser) =
-        timed(|| grade_with(&nl, &faults, &patterns, &serial_options).expect("grade"));
+        timed(3, || grade_with(&nl, &faults, &patterns, &serial_options).expect("grade"));
     assert_eq!(report, serial_report, "modes disagree");
     println!(
         "grading with fault dropping: {} of {} detected ({:.2}%)",
@@ -121,5 +128,8 @@ fn main() {
         "  speed-up:     {:.1}x",
         t_grade_ser.as_secs_f64() / t_grade_par.as_secs_f64()
     );
-    println!("total wall time {:.3} s", total.elapsed().as_secs_f64());
+    println!(
+        "times are the fastest of 5 (bit-parallel) or 3 (serial) runs; total wall time {:.3} s",
+        total.elapsed().as_secs_f64()
+    );
 }

@@ -70,6 +70,19 @@ struct Topology {
     output_pos: Vec<(usize, u32)>,
     /// Flat index of the first bit of each input port.
     input_offsets: Vec<usize>,
+    /// The gates in a compact form for the simulation loops.
+    sim_gates: Vec<SimGate>,
+    /// Per net: the highest-numbered gate reading it (0 when none reads it).
+    last_reader: Vec<u32>,
+}
+
+/// A gate reduced to what simulation needs, kept small so cone walks stay in cache.
+#[derive(Debug, Clone, Copy)]
+struct SimGate {
+    inputs: [u32; 4],
+    output: u32,
+    arity: u8,
+    kind: GateKind,
 }
 
 impl Topology {
@@ -103,12 +116,31 @@ impl Topology {
             input_offsets.push(at);
             at += p.nets().len();
         }
+        let sim_gates = nl
+            .gates()
+            .iter()
+            .map(|g| {
+                let mut inputs = [0u32; 4];
+                for (k, n) in g.inputs().iter().enumerate() {
+                    inputs[k] = n.index() as u32;
+                }
+                SimGate {
+                    inputs,
+                    output: g.output().index() as u32,
+                    arity: g.inputs().len() as u8,
+                    kind: g.kind(),
+                }
+            })
+            .collect();
+        let last_reader = fanout_gates.iter().map(|f| f.last().copied().unwrap_or(0)).collect();
         Topology {
             sinks,
             fanout_gates,
             observed,
             output_pos,
             input_offsets,
+            sim_gates,
+            last_reader,
         }
     }
 
@@ -693,18 +725,26 @@ pub struct FaultReport {
     pub first_detection: Vec<Option<usize>>,
 }
 
+/// A faulty value, valid only while its mark equals the engine's current mark.
+#[derive(Debug, Clone, Copy, Default)]
+struct Slot {
+    value: u64,
+    mark: u32,
+}
+
 /// Faulty values of the fault currently simulated, as an overlay on a block's fault-free
 /// values, plus scratch space for computing fan-out cones.
 struct Engine<'a> {
     nl: &'a Netlist,
     topo: &'a Topology,
-    faulty: Vec<u64>,
-    /// `faulty[n]` is valid only when `net_mark[n] == mark`; otherwise the net is fault-free.
-    net_mark: Vec<u32>,
+    faulty: Vec<Slot>,
     mark: u32,
+    /// The highest gate that reads a net carrying a fault effect: the cone walk stops past
+    /// it, because the effect has died out in every lane.
+    horizon: u32,
     gate_seen: Vec<u32>,
     seen_mark: u32,
-    stack: Vec<NetId>,
+    stack: Vec<u32>,
 }
 
 impl<'a> Engine<'a> {
@@ -712,9 +752,9 @@ impl<'a> Engine<'a> {
         Engine {
             nl,
             topo,
-            faulty: vec![0; nl.net_count()],
-            net_mark: vec![0; nl.net_count()],
+            faulty: vec![Slot::default(); nl.net_count()],
             mark: 0,
+            horizon: 0,
             gate_seen: vec![0; nl.gates().len()],
             seen_mark: 0,
             stack: Vec::new(),
@@ -726,8 +766,8 @@ impl<'a> Engine<'a> {
     fn cone_of(&mut self, site: FaultSite, cone: &mut Vec<u32>) {
         cone.clear();
         let start = match site {
-            FaultSite::Stem(n) => n,
-            FaultSite::GateInput { gate, .. } => self.nl.gates()[gate].output(),
+            FaultSite::Stem(n) => n.index() as u32,
+            FaultSite::GateInput { gate, .. } => self.topo.sim_gates[gate].output,
             FaultSite::OutputBit { .. } => return,
         };
         self.seen_mark = self.seen_mark.wrapping_add(1);
@@ -737,90 +777,91 @@ impl<'a> Engine<'a> {
         }
         self.stack.clear();
         self.stack.push(start);
-        let (gates, topo) = (self.nl.gates(), self.topo);
+        let topo = self.topo;
         while let Some(net) = self.stack.pop() {
-            for &g in &topo.fanout_gates[net.index()] {
+            for &g in &topo.fanout_gates[net as usize] {
                 if self.gate_seen[g as usize] != self.seen_mark {
                     self.gate_seen[g as usize] = self.seen_mark;
                     cone.push(g);
-                    self.stack.push(gates[g as usize].output());
+                    self.stack.push(topo.sim_gates[g as usize].output);
                 }
             }
         }
         cone.sort_unstable();
     }
 
-    /// Records a faulty value for `net` if it differs from the fault-free one in a live lane;
-    /// returns whether it did.
-    #[inline]
-    fn set(&mut self, net: NetId, value: u64, good: &[u64], mask: u64, detected: &mut u64) -> bool {
-        let n = net.index();
+    /// Records a faulty value for net `n` if it differs from the fault-free one in a live
+    /// lane; returns whether it did.
+    #[inline(always)]
+    fn set(&mut self, n: usize, value: u64, good: &[u64], mask: u64, detected: &mut u64) -> bool {
         let diff = (value ^ good[n]) & mask;
         if diff == 0 {
             return false;
         }
-        self.faulty[n] = value;
-        self.net_mark[n] = self.mark;
+        self.faulty[n] = Slot {
+            value,
+            mark: self.mark,
+        };
         if self.topo.observed[n] {
             *detected |= diff;
         }
+        self.horizon = self.horizon.max(self.topo.last_reader[n]);
         true
     }
 
     /// The lanes (within `mask`) in which `fault` makes some primary output differ, given the
     /// block's fault-free values `good` and the fault's fan-out `cone` from
     /// [`Engine::cone_of`]. The cone is walked in topological order; a gate is evaluated only
-    /// when one of its inputs carries a fault effect.
+    /// when one of its inputs carries a fault effect, and the walk ends once no net carrying
+    /// an effect has readers left.
     fn detect(&mut self, fault: &Fault, cone: &[u32], good: &[u64], mask: u64) -> u64 {
         self.mark = self.mark.wrapping_add(1);
         if self.mark == 0 {
-            self.net_mark.fill(0);
+            self.faulty.fill(Slot::default());
             self.mark = 1;
         }
+        self.horizon = 0;
         let stuck = if fault.stuck_at { !0u64 } else { 0 };
         let mut detected = 0u64;
-        let nl = self.nl;
+        let topo = self.topo;
         let activated = match fault.site {
-            FaultSite::Stem(net) => self.set(net, stuck, good, mask, &mut detected),
+            FaultSite::Stem(net) => self.set(net.index(), stuck, good, mask, &mut detected),
             FaultSite::GateInput { gate, pin } => {
-                let g = &nl.gates()[gate];
+                let g = &topo.sim_gates[gate];
                 let mut ins = [0u64; 4];
-                for (k, n) in g.inputs().iter().enumerate() {
-                    ins[k] = good[n.index()];
+                for k in 0..g.arity as usize {
+                    ins[k] = good[g.inputs[k] as usize];
                 }
                 ins[pin] = stuck;
-                self.set(g.output(), g.kind().eval(ins), good, mask, &mut detected)
+                self.set(g.output as usize, g.kind.eval(ins), good, mask, &mut detected)
             }
             FaultSite::OutputBit { port, bit } => {
-                let net = nl.outputs()[port].nets()[bit as usize];
+                let net = self.nl.outputs()[port].nets()[bit as usize];
                 return (good[net.index()] ^ stuck) & mask;
             }
         };
         if !activated {
             return 0;
         }
-        let gates = nl.gates();
         for &g in cone {
-            let gate = &gates[g as usize];
+            if g > self.horizon {
+                break;
+            }
+            let gate = &topo.sim_gates[g as usize];
             let mut ins = [0u64; 4];
             let mut touched = false;
-            for (k, n) in gate.inputs().iter().enumerate() {
-                let n = n.index();
-                if self.net_mark[n] == self.mark {
+            for k in 0..gate.arity as usize {
+                let n = gate.inputs[k] as usize;
+                let slot = self.faulty[n];
+                if slot.mark == self.mark {
                     touched = true;
-                    ins[k] = self.faulty[n];
+                    ins[k] = slot.value;
                 } else {
                     ins[k] = good[n];
                 }
             }
             if touched {
-                self.set(
-                    gate.output(),
-                    gate.kind().eval(ins),
-                    good,
-                    mask,
-                    &mut detected,
-                );
+                self.set(gate.output as usize, gate.kind.eval(ins), good, mask, &mut detected);
             }
         }
         detected
@@ -869,9 +910,12 @@ fn for_each_chunk(
     }
     let mut inputs = vec![0u64; nl.input_nets().len()];
     let mut start = 0;
+    // Chunks start at one block and double: with fault dropping most faults fall in the
+    // first blocks, and no fault-free work is spent on vectors that are never needed.
+    let mut chunk_blocks = 1;
     while start < patterns.len() {
         chunk.blocks.clear();
-        while chunk.blocks.len() < max_blocks && start < patterns.len() {
+        while chunk.blocks.len() < chunk_blocks && start < patterns.len() {
             let count = lanes.min(patterns.len() - start);
             let k = chunk.blocks.len();
             patterns.load(start, count, &mut inputs);
@@ -886,6 +930,7 @@ fn for_each_chunk(
         if !f(&chunk) {
             return;
         }
+        chunk_blocks = (chunk_blocks * 2).min(max_blocks);
     }
 }
 
@@ -1491,7 +1536,7 @@ mod tests {
             nets.push(out);
         }
         let outs: Vec<NetId> = (0..1 + rng.next() % 4)
-            .map(|_| nets[nets.len() - 1 - (rng.next() % 6) as usize])
+            .map(|_| nets[nets.len() - 1 - (rng.next() % 6) as usize % nets.len()])
             .collect();
         b.output("o", &outs);
         b.build().unwrap()

@@ -466,7 +466,7 @@ fn random_netlist(seed: u64) -> Netlist {
         nets.push(b.gate_net(kind, &format!("u{g}"), &ins, "w", Some(g as i64)));
     }
     let outputs: Vec<NetId> = (0..1 + rng.next() % 5)
-        .map(|_| nets[nets.len() - 1 - (rng.next() % 8) as usize])
+        .map(|_| nets[nets.len() - 1 - (rng.next() % 8) as usize % nets.len()])
         .collect();
     b.output("r", &outputs);
     b.build().unwrap()
