@@ -43,7 +43,7 @@ fn main() {
     let total = Instant::now();
     let nl = Netlist::ripple_adder(WIDTH, true).expect("built-in adder");
     let faults = FaultList::new(&nl);
-    let mut rng = Rng(0x5eed_0f_a11);
+    let mut rng = Rng(0x0005_eed0_fa11);
     let vectors: Vec<Vec<Word>> = (0..VECTORS)
         .map(|_| {
             vec![
@@ -68,8 +68,9 @@ fn main() {
     let (parallel, t_par) = timed(5, || {
         detection_matrix(&nl, &faults, &patterns, SimulationMode::BitParallel).expect("matrix")
     });
-    let (serial, t_ser_subset) =
-        timed(3, || detection_matrix(&nl, &faults, &subset, SimulationMode::Serial).expect("matrix"));
+    let (serial, t_ser_subset) = timed(3, || {
+        detection_matrix(&nl, &faults, &subset, SimulationMode::Serial).expect("matrix")
+    });
     for c in 0..classes {
         for v in 0..SERIAL_SUBSET {
             assert_eq!(
@@ -103,14 +104,16 @@ fn main() {
     );
 
     // Grading as the tool runs it: fault dropping, then redundancy proofs (none needed here).
-    let (report, t_grade_par) =
-        timed(5, || grade_with(&nl, &faults, &patterns, &GradeOptions::default()).expect("grade"));
+    let (report, t_grade_par) = timed(5, || {
+        grade_with(&nl, &faults, &patterns, &GradeOptions::default()).expect("grade")
+    });
     let serial_options = GradeOptions {
         mode: SimulationMode::Serial,
         ..GradeOptions::default()
     };
-    let (serial_report, t_grade_ser) =
-        timed(3, || grade_with(&nl, &faults, &patterns, &serial_options).expect("grade"));
+    let (serial_report, t_grade_ser) = timed(3, || {
+        grade_with(&nl, &faults, &patterns, &serial_options).expect("grade")
+    });
     assert_eq!(report, serial_report, "modes disagree");
     println!(
         "grading with fault dropping: {} of {} detected ({:.2}%)",

@@ -120,7 +120,9 @@ impl Topology {
             .gates()
             .iter()
             .map(|g| {
-                let mut inputs = [0u32; 4];
+                // Unused pins repeat pin A, so the simulation loops can always read four
+                // inputs: the extra reads are real nets, and `GateKind::eval` ignores them.
+                let mut inputs = [g.inputs()[0].index() as u32; 4];
                 for (k, n) in g.inputs().iter().enumerate() {
                     inputs[k] = n.index() as u32;
                 }
@@ -132,7 +134,10 @@ impl Topology {
                 }
             })
             .collect();
-        let last_reader = fanout_gates.iter().map(|f| f.last().copied().unwrap_or(0)).collect();
+        let last_reader = fanout_gates
+            .iter()
+            .map(|f| f.last().copied().unwrap_or(0))
+            .collect();
         Topology {
             sinks,
             fanout_gates,
@@ -352,18 +357,19 @@ impl FaultList {
                 }
             }
         }
-        let mut class_of = vec![usize::MAX; faults.len()];
         let mut classes: Vec<Vec<usize>> = Vec::new();
         let mut class_of_root: HashMap<usize, usize> = HashMap::new();
-        for i in 0..faults.len() {
-            let r = root(&mut parent, i);
-            let c = *class_of_root.entry(r).or_insert_with(|| {
-                classes.push(Vec::new());
-                classes.len() - 1
-            });
-            class_of[i] = c;
-            classes[c].push(i);
-        }
+        let class_of: Vec<usize> = (0..faults.len())
+            .map(|i| {
+                let r = root(&mut parent, i);
+                let c = *class_of_root.entry(r).or_insert_with(|| {
+                    classes.push(Vec::new());
+                    classes.len() - 1
+                });
+                classes[c].push(i);
+                c
+            })
+            .collect();
         // Prefer a stem fault as the representative: it names a net the way a designer
         // thinks of it, and it is the gate output of an AND/OR-style class.
         for members in &mut classes {
@@ -833,7 +839,13 @@ impl<'a> Engine<'a> {
                     ins[k] = good[g.inputs[k] as usize];
                 }
                 ins[pin] = stuck;
-                self.set(g.output as usize, g.kind.eval(ins), good, mask, &mut detected)
+                self.set(
+                    g.output as usize,
+                    g.kind.eval(ins),
+                    good,
+                    mask,
+                    &mut detected,
+                )
             }
             FaultSite::OutputBit { port, bit } => {
                 let net = self.nl.outputs()[port].nets()[bit as usize];
@@ -850,21 +862,59 @@ impl<'a> Engine<'a> {
             let gate = &topo.sim_gates[g as usize];
             let mut ins = [0u64; 4];
             let mut touched = false;
-            for k in 0..gate.arity as usize {
-                let n = gate.inputs[k] as usize;
-                let slot = self.faulty[n];
-                if slot.mark == self.mark {
-                    touched = true;
-                    ins[k] = slot.value;
-                } else {
-                    ins[k] = good[n];
-                }
+            for (k, &n) in gate.inputs.iter().enumerate() {
+                let slot = self.faulty[n as usize];
+                let hit = slot.mark == self.mark;
+                touched |= hit;
+                ins[k] = if hit { slot.value } else { good[n as usize] };
             }
             if touched {
-                self.set(gate.output as usize, gate.kind.eval(ins), good, mask, &mut detected);
+                self.set(
+                    gate.output as usize,
+                    gate.kind.eval(ins),
+                    good,
+                    mask,
+                    &mut detected,
+                );
             }
         }
         detected
+    }
+}
+
+/// Fan-out cones of the representative faults, kept between chunks while they fit a memory
+/// budget (cones of long chains grow with the square of the netlist), recomputed otherwise.
+struct ConeCache {
+    cones: Vec<Option<Box<[u32]>>>,
+    words: usize,
+    scratch: Vec<u32>,
+}
+
+/// Cone entries kept in a [`ConeCache`], at most (32 MiB).
+const CONE_WORD_BUDGET: usize = 1 << 23;
+
+impl ConeCache {
+    fn new(classes: usize) -> ConeCache {
+        ConeCache {
+            cones: vec![None; classes],
+            words: 0,
+            scratch: Vec::new(),
+        }
+    }
+
+    fn get(&mut self, engine: &mut Engine, class: usize, site: FaultSite) -> &[u32] {
+        if self.cones[class].is_none() {
+            engine.cone_of(site, &mut self.scratch);
+            if self.words + self.scratch.len() > CONE_WORD_BUDGET {
+                return &self.scratch;
+            }
+            self.words += self.scratch.len();
+            self.cones[class] = Some(self.scratch.as_slice().into());
+        }
+        match &self.cones[class] {
+            Some(cone) => cone,
+            None => &self.scratch,
+        }
     }
 }
 
@@ -886,8 +936,10 @@ impl Chunk {
 
 /// Net values kept per chunk, at most (32 MiB of words): bounds memory on large netlists.
 const CHUNK_WORD_BUDGET: usize = 1 << 22;
-/// Vectors per chunk when memory allows, the same in both modes.
-const CHUNK_VECTORS: usize = 4096;
+/// Blocks per chunk when memory allows. Counting blocks rather than vectors gives both
+/// modes the same memory footprint, so the serial reference is not slowed by cache misses
+/// the bit-parallel run avoids.
+const CHUNK_BLOCKS: usize = 64;
 
 /// Runs the fault-free simulation chunk by chunk and hands each chunk to `f`; stops early
 /// when `f` returns false.
@@ -898,7 +950,7 @@ fn for_each_chunk(
     mut f: impl FnMut(&Chunk) -> bool,
 ) {
     let nets = nl.net_count().max(1);
-    let max_blocks = (CHUNK_VECTORS / lanes).min(CHUNK_WORD_BUDGET / nets).max(1);
+    let max_blocks = CHUNK_BLOCKS.min(CHUNK_WORD_BUDGET / nets).max(1);
     let initial = nl.initial_values();
     let mut chunk = Chunk {
         blocks: Vec::with_capacity(max_blocks),
@@ -994,13 +1046,13 @@ fn grade_inner(
     let mut first = vec![None; classes];
     let mut remaining: Vec<usize> = (0..classes).collect();
     let mut engine = Engine::new(nl, topo);
-    let mut cone = Vec::new();
+    let mut cones = ConeCache::new(classes);
     for_each_chunk(nl, patterns, lanes, |chunk| {
         remaining.retain(|&c| {
             let rep = faults.representative(c);
-            engine.cone_of(rep.site, &mut cone);
+            let cone = cones.get(&mut engine, c, rep.site);
             for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
-                let detected = engine.detect(&rep, &cone, chunk.good(k), lane_mask(count));
+                let detected = engine.detect(&rep, cone, chunk.good(k), lane_mask(count));
                 if detected != 0 {
                     first[c] = Some(start + detected.trailing_zeros() as usize);
                     return false;
@@ -1347,12 +1399,12 @@ pub fn detection_matrix(
     let mut rows = vec![0u64; classes * words_per_row];
     let reps: Vec<Fault> = (0..classes).map(|c| faults.representative(c)).collect();
     let mut engine = Engine::new(netlist, &topo);
-    let mut cone = Vec::new();
+    let mut cones = ConeCache::new(classes);
     for_each_chunk(netlist, patterns, mode.lanes(), |chunk| {
         for (c, rep) in reps.iter().enumerate() {
-            engine.cone_of(rep.site, &mut cone);
+            let cone = cones.get(&mut engine, c, rep.site);
             for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
-                let detected = engine.detect(rep, &cone, chunk.good(k), lane_mask(count));
+                let detected = engine.detect(rep, cone, chunk.good(k), lane_mask(count));
                 rows[c * words_per_row + start / 64] |= detected << (start % 64);
             }
         }
@@ -1413,17 +1465,16 @@ pub fn compact(matrix: &DetectionMatrix, must_cover: &[Vec<usize>]) -> Result<Ve
     let mut count: Vec<usize> = by_vector.iter().map(Vec::len).collect();
     let mut covered = vec![false; requirements.len()];
     let mut kept = Vec::new();
-    loop {
-        let Some((best, &n)) = count
+    // The vector covering the most uncovered requirements, the lowest index on ties.
+    let best_vector = |count: &[usize]| {
+        count
             .iter()
             .enumerate()
             .max_by(|a, b| a.1.cmp(b.1).then(b.0.cmp(&a.0)))
-        else {
-            break;
-        };
-        if n == 0 {
-            break;
-        }
+            .filter(|(_, &n)| n > 0)
+            .map(|(v, _)| v)
+    };
+    while let Some(best) = best_vector(&count) {
         kept.push(best);
         for &r in &by_vector[best] {
             let r = r as usize;

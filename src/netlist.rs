@@ -1533,6 +1533,13 @@ impl Netlist {
 mod tests {
     use super::*;
 
+    /// Finds a net by its human name (linear; tests only).
+    fn net_named(nl: &Netlist, name: &str) -> Option<NetId> {
+        (0..nl.net_count())
+            .map(NetId::from_index)
+            .find(|&n| nl.net_name(n) == name)
+    }
+
     /// Exhaustive check of the built-in units against integer arithmetic at small widths.
     #[test]
     fn builtin_units_compute_their_arithmetic() {
@@ -1625,7 +1632,7 @@ mod tests {
         assert_eq!(nl.net_name(y2), "y[2]");
         let co = nl.outputs()[1].nets()[0];
         assert_eq!(nl.net_name(co), "co");
-        let Driver::Gate(g) = nl.driver(nl.net_name_lookup("carry[2]").unwrap()) else {
+        let Driver::Gate(g) = nl.driver(net_named(&nl, "carry[2]").unwrap()) else {
             panic!("carry[2] should be driven by a gate");
         };
         assert_eq!(nl.gates()[g].cell_name(), "fa[1].or_carry");
@@ -1696,8 +1703,8 @@ mod tests {
         // Pattern k: a = k & 3, b = k >> 2 & 3 over 16 lanes.
         let mut inputs = [0u64; 4];
         for k in 0..16u64 {
-            for bit in 0..4 {
-                inputs[bit] |= (k >> bit & 1) << k;
+            for (bit, word) in inputs.iter_mut().enumerate() {
+                *word |= (k >> bit & 1) << k;
             }
         }
         nl.eval_parallel(&inputs, &mut out).unwrap();
@@ -1776,15 +1783,5 @@ mod tests {
             err.to_string().contains("no connection for pin `B`"),
             "{err}"
         );
-    }
-}
-
-#[cfg(test)]
-impl Netlist {
-    /// Finds a net by its human name (tests only; linear).
-    pub(crate) fn net_name_lookup(&self, name: &str) -> Option<NetId> {
-        (0..self.nets.len() as u32)
-            .map(NetId)
-            .find(|&n| self.net_name(n) == name)
     }
 }
