@@ -1064,17 +1064,14 @@ fn grade_inner(
     });
 
     let limit = options.proof_limit.min(PROOF_LIMIT_CAP);
-    let mut cones = Cones::new(nl);
+    let reps: Vec<Fault> = remaining
+        .iter()
+        .map(|&c| faults.representative(c))
+        .collect();
+    let verdicts = classify(&mut engine, &reps, limit, lanes);
     let mut undetected = Vec::new();
     let mut redundant = Vec::new();
-    for &c in &remaining {
-        let verdict = prove(
-            &mut engine,
-            &mut cones,
-            &faults.representative(c),
-            limit,
-            lanes,
-        );
+    for (&c, verdict) in remaining.iter().zip(verdicts) {
         let entry = describe(nl, faults, c, verdict);
         if matches!(entry.redundancy, Redundancy::Proven { .. }) {
             redundant.push(entry);
@@ -1238,90 +1235,126 @@ fn exhaustive_word(j: usize, start: u64, count: usize) -> u64 {
     (0..count).fold(0, |w, l| w | ((start + l as u64) >> j & 1) << l)
 }
 
-/// Decides whether an undetected fault is redundant by exhaustive simulation over the
-/// support of every output it reaches; other inputs are held at 0, which is sound because
-/// neither the fault-free nor the faulty value of those outputs depends on them.
-fn prove(
-    engine: &mut Engine,
-    cones: &mut Cones,
-    fault: &Fault,
-    limit: u32,
-    lanes: usize,
-) -> Redundancy {
+/// Decides for each undetected fault whether it is redundant, by exhaustive simulation over
+/// the support of every output it reaches. Other inputs are held at 0, which is sound because
+/// neither the fault-free nor the faulty value of those outputs depends on them. Faults with
+/// the same support share one enumeration (and its fault-free simulation); each is dropped
+/// from it as soon as a detecting input is found.
+fn classify(engine: &mut Engine, faults: &[Fault], limit: u32, lanes: usize) -> Vec<Redundancy> {
     let nl = engine.nl;
     let topo = engine.topo;
-    let outputs = reached_outputs(nl, topo, fault.site);
-    let mut in_support = vec![false; nl.input_nets().len()];
-    let mut in_cone = vec![false; nl.gates().len()];
-    for &o in &outputs {
-        let (inputs, gates) = cones.cone(nl, topo, o);
-        for &i in inputs {
-            in_support[i as usize] = true;
+    let mut cones = Cones::new(nl);
+    let mut verdicts: Vec<Option<Redundancy>> = vec![None; faults.len()];
+    // Support (sorted input bits) -> (faults, gates feeding the outputs those faults reach).
+    let mut groups: std::collections::BTreeMap<Vec<usize>, (Vec<usize>, Vec<bool>)> =
+        Default::default();
+    for (i, fault) in faults.iter().enumerate() {
+        let outputs = reached_outputs(nl, topo, fault.site);
+        let mut in_support = vec![false; nl.input_nets().len()];
+        for &o in &outputs {
+            for &input in &cones.cone(nl, topo, o).0 {
+                in_support[input as usize] = true;
+            }
         }
-        for &g in gates {
-            in_cone[g as usize] = true;
+        let support: Vec<usize> = (0..in_support.len()).filter(|&i| in_support[i]).collect();
+        if support.len() > limit as usize {
+            verdicts[i] = Some(Redundancy::NotProven {
+                support_bits: support.len(),
+                limit,
+            });
+            continue;
+        }
+        let (members, in_cone) = groups
+            .entry(support)
+            .or_insert_with(|| (Vec::new(), vec![false; nl.gates().len()]));
+        members.push(i);
+        for &o in &outputs {
+            for &g in &cones.cone(nl, topo, o).1 {
+                in_cone[g as usize] = true;
+            }
         }
     }
-    let support: Vec<usize> = (0..in_support.len()).filter(|&i| in_support[i]).collect();
-    let support_bits = support.len();
-    if support_bits > limit as usize {
-        return Redundancy::NotProven {
-            support_bits,
-            limit,
-        };
-    }
-    let gates: Vec<u32> = (0..in_cone.len() as u32)
-        .filter(|&g| in_cone[g as usize])
-        .collect();
-    let total = 1usize << support_bits;
     let mut good = nl.initial_values();
-    let mut cone = Vec::new();
-    engine.cone_of(fault.site, &mut cone);
-    let mut found = None;
-    for_each_block(total, lanes, |start, count| {
-        for (j, &i) in support.iter().enumerate() {
-            good[nl.input_nets()[i].index()] = exhaustive_word(j, start as u64, count);
-        }
-        for &g in &gates {
-            let gate = &nl.gates()[g as usize];
-            good[gate.output().index()] = crate::netlist::gate_value(gate, &good);
-        }
-        let detected = engine.detect(fault, &cone, &good, lane_mask(count));
-        if detected != 0 {
-            found = Some(start + detected.trailing_zeros() as usize);
-            return false;
-        }
-        true
-    });
-    match found {
-        None => Redundancy::Proven { support_bits },
-        Some(v) => {
-            let mut values: Vec<Word> = vec![Word::ZERO; nl.inputs().len()];
+    for (support, (members, in_cone)) in groups {
+        let gates: Vec<u32> = (0..in_cone.len() as u32)
+            .filter(|&g| in_cone[g as usize])
+            .collect();
+        let fault_cones: Vec<Vec<u32>> = members
+            .iter()
+            .map(|&i| {
+                let mut cone = Vec::new();
+                engine.cone_of(faults[i].site, &mut cone);
+                cone
+            })
+            .collect();
+        let mut open: Vec<usize> = (0..members.len()).collect();
+        for_each_block(1usize << support.len(), lanes, |start, count| {
             for (j, &i) in support.iter().enumerate() {
-                if v >> j & 1 == 1 {
-                    let port = topo
-                        .input_offsets
-                        .iter()
-                        .rposition(|&o| o <= i)
-                        .unwrap_or(0);
-                    values[port].set_bit((i - topo.input_offsets[port]) as u32, true);
+                good[nl.input_nets()[i].index()] = exhaustive_word(j, start as u64, count);
+            }
+            for &g in &gates {
+                let gate = &nl.gates()[g as usize];
+                good[gate.output().index()] = crate::netlist::gate_value(gate, &good);
+            }
+            open.retain(|&m| {
+                let i = members[m];
+                let detected = engine.detect(&faults[i], &fault_cones[m], &good, lane_mask(count));
+                if detected == 0 {
+                    return true;
                 }
-            }
-            let example = nl
-                .inputs()
-                .iter()
-                .zip(values)
-                .map(|(p, w)| PortValue {
-                    port: p.name().to_string(),
-                    hex: w.to_hex(p.width()),
-                })
-                .collect();
-            Redundancy::Testable {
-                support_bits,
-                example,
-            }
+                let vector = start + detected.trailing_zeros() as usize;
+                verdicts[i] = Some(Redundancy::Testable {
+                    support_bits: support.len(),
+                    example: example_vector(nl, topo, &support, vector),
+                });
+                false
+            });
+            !open.is_empty()
+        });
+        for m in open {
+            verdicts[members[m]] = Some(Redundancy::Proven {
+                support_bits: support.len(),
+            });
         }
     }
+    verdicts
+        .into_iter()
+        .map(|v| {
+            v.unwrap_or(Redundancy::NotProven {
+                support_bits: 0,
+                limit,
+            })
+        })
+        .collect()
+}
+
+/// The input vector number `vector` of an exhaustive enumeration of `support` (bit `j` of
+/// `vector` drives input bit `support[j]`; other inputs 0), as port values.
+fn example_vector(
+    nl: &Netlist,
+    topo: &Topology,
+    support: &[usize],
+    vector: usize,
+) -> Vec<PortValue> {
+    let mut values: Vec<Word> = vec![Word::ZERO; nl.inputs().len()];
+    for (j, &i) in support.iter().enumerate() {
+        if vector >> j & 1 == 1 {
+            let port = topo
+                .input_offsets
+                .iter()
+                .rposition(|&o| o <= i)
+                .unwrap_or(0);
+            values[port].set_bit((i - topo.input_offsets[port]) as u32, true);
+        }
+    }
+    nl.inputs()
+        .iter()
+        .zip(values)
+        .map(|(p, w)| PortValue {
+            port: p.name().to_string(),
+            hex: w.to_hex(p.width()),
+        })
+        .collect()
 }
 
 /// Which vectors detect which collapsed faults: one bit per (class, vector), without fault
@@ -1708,6 +1741,60 @@ mod tests {
         assert_eq!(report.detected + report.redundant.len(), report.collapsed);
         assert!(report.coverage_percent < 100.0);
         assert_eq!(report.testable_coverage_percent, 100.0);
+    }
+
+    #[test]
+    fn consensus_term_is_proven_redundant_and_unproven_above_the_limit() {
+        // f = a&b | ~a&c | b&c: by the consensus theorem (common practice) the b&c term never
+        // decides f, so its AND output stuck-at-0 (with the equivalent input faults) is
+        // undetectable, and nothing else is.
+        let mut b = NetlistBuilder::new("t", "consensus");
+        let a = b.input("a", 1)[0];
+        let bb = b.input("b", 1)[0];
+        let c = b.input("c", 1)[0];
+        let na = b.gate_net(GateKind::Not, "not_a", &[a], "na", None);
+        let ab = b.gate_net(GateKind::And, "and_ab", &[a, bb], "ab", None);
+        let nac = b.gate_net(GateKind::And, "and_nac", &[na, c], "nac", None);
+        let bc = b.gate_net(GateKind::And, "and_bc", &[bb, c], "bc", None);
+        let t = b.gate_net(GateKind::Or, "or_t", &[ab, nac], "t", None);
+        let f = b.gate_net(GateKind::Or, "or_f", &[t, bc], "f", None);
+        b.output("f", &[f]);
+        let nl = b.build().unwrap();
+        let all: Vec<Vec<Word>> = (0..8u64)
+            .map(|v| (0..3).map(|i| Word::from_u64(v >> i & 1)).collect())
+            .collect();
+        let patterns = PatternSet::from_vectors(&nl, &all, "t").unwrap();
+        let report = grade(&nl, &patterns).unwrap();
+        assert!(report.undetected.is_empty(), "{:?}", report.undetected);
+        assert_eq!(report.redundant.len(), 1, "{:?}", report.redundant);
+        let e = &report.redundant[0];
+        assert_eq!(
+            (e.net.as_str(), e.stuck_at, e.site.as_str()),
+            ("bc", 0, "stem")
+        );
+        assert_eq!(e.driver_cell.as_deref(), Some("and_bc"));
+        assert_eq!(e.driver_type, "$_AND_");
+        assert_eq!(e.equivalent_faults, 3);
+        assert_eq!(e.redundancy, Redundancy::Proven { support_bits: 3 });
+        assert_eq!(report.detected + 1, report.collapsed);
+
+        // Below the support size nothing is claimed, and the fault stays undetected.
+        let faults = FaultList::new(&nl);
+        let options = GradeOptions {
+            proof_limit: 2,
+            ..GradeOptions::default()
+        };
+        let report = grade_with(&nl, &faults, &patterns, &options).unwrap();
+        assert!(report.redundant.is_empty());
+        assert_eq!(report.undetected.len(), 1);
+        assert_eq!(
+            report.undetected[0].redundancy,
+            Redundancy::NotProven {
+                support_bits: 3,
+                limit: 2
+            }
+        );
+        assert_eq!(report.coverage_percent, report.testable_coverage_percent);
     }
 
     #[test]
