@@ -129,8 +129,7 @@ impl Topology {
             .gates()
             .iter()
             .map(|g| {
-                // Unused pins repeat pin A, so the simulation loops can always read four
-                // inputs: the extra reads are real nets, and `GateKind::eval` ignores them.
+                // Unused pins repeat pin A, so they always name a real net.
                 let mut inputs = [g.inputs()[0].index() as u32; 4];
                 for (k, n) in g.inputs().iter().enumerate() {
                     inputs[k] = n.index() as u32;
@@ -871,11 +870,15 @@ impl<'a> Engine<'a> {
             let gate = &topo.sim_gates[g as usize];
             let mut ins = [0u64; 4];
             let mut touched = false;
-            for (k, &n) in gate.inputs.iter().enumerate() {
-                let slot = self.faulty[n as usize];
-                let hit = slot.mark == self.mark;
-                touched |= hit;
-                ins[k] = if hit { slot.value } else { good[n as usize] };
+            for k in 0..gate.arity as usize {
+                let n = gate.inputs[k] as usize;
+                let slot = self.faulty[n];
+                if slot.mark == self.mark {
+                    touched = true;
+                    ins[k] = slot.value;
+                } else {
+                    ins[k] = good[n];
+                }
             }
             if touched {
                 self.set(
