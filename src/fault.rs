@@ -870,14 +870,13 @@ impl<'a> Engine<'a> {
             let gate = &topo.sim_gates[g as usize];
             let mut ins = [0u64; 4];
             let mut touched = false;
-            for k in 0..gate.arity as usize {
-                let n = gate.inputs[k] as usize;
-                let slot = self.faulty[n];
+            for (value, &n) in ins.iter_mut().zip(&gate.inputs[..gate.arity as usize]) {
+                let slot = self.faulty[n as usize];
                 if slot.mark == self.mark {
                     touched = true;
-                    ins[k] = slot.value;
+                    *value = slot.value;
                 } else {
-                    ins[k] = good[n];
+                    *value = good[n as usize];
                 }
             }
             if touched {
