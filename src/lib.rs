@@ -13,11 +13,13 @@ mod classes;
 mod coverage;
 mod encoding;
 mod error;
+mod fault;
 mod generate;
 mod hexfile;
 mod layout;
 mod log;
 mod model;
+mod netlist;
 mod report;
 mod spec;
 mod testbench;
@@ -34,11 +36,16 @@ pub use coverage::{
 };
 pub use encoding::Value;
 pub use error::{Error, ErrorKind, Problem, Result};
+pub use fault::{
+    compact, detection_matrix, grade, grade_with, DetectionMatrix, Fault, FaultEntry, FaultList,
+    FaultReport, FaultSite, GradeOptions, PatternSet, PortValue, Redundancy, SimulationMode,
+};
 pub use generate::{Generator, RandomStream};
 pub use hexfile::Packer;
 pub use layout::{Field, Layout, WordLayout};
 pub use log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use model::{Inputs, Model, Outputs};
+pub use netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
 pub use report::{render_junit, render_text, verdict_line, ClassRows};
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
