@@ -156,7 +156,7 @@ impl LogProblems {
 
 /// The gate.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct Gate {
+pub struct CoverageGate {
     /// Required class coverage, percent.
     pub require: Option<f64>,
     /// Whether it was met.
@@ -207,7 +207,7 @@ pub struct CheckReport {
     /// Log completeness.
     pub log_problems: LogProblems,
     /// The gate.
-    pub gate: Gate,
+    pub gate: CoverageGate,
     /// Verdict.
     pub verdict: Verdict,
     /// The evidence-not-proof statement.
@@ -693,7 +693,7 @@ fn build_report(
         classes,
         failures,
         log_problems: problems,
-        gate: Gate {
+        gate: CoverageGate {
             require: options.require,
             met,
         },

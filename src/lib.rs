@@ -27,8 +27,8 @@ mod vectorset;
 mod word;
 
 pub use check::{
-    merge as merge_reports, CheckOptions, CheckReport, Checker, Failure, FieldValueReport, Gate,
-    LogProblems, Observed, OutOfStep, OutputReport, Verdict, EVIDENCE_NOTE,
+    merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,
+    FieldValueReport, LogProblems, Observed, OutOfStep, OutputReport, Verdict, EVIDENCE_NOTE,
 };
 pub use classes::{Catalogue, Class, Hits};
 pub use coverage::{
