@@ -221,6 +221,8 @@ struct VectorLookup<'g> {
     generator: &'g Generator,
     first: u64,
     count: u64,
+    /// For a selected set: position -> source index.
+    selection: Option<Vec<u64>>,
     stream: Option<(u64, RandomStream)>,
 }
 
@@ -229,6 +231,10 @@ impl VectorLookup<'_> {
         if index < self.first || index >= self.first + self.count {
             return None;
         }
+        let index = match &self.selection {
+            Some(map) => *map.get(index as usize)?,
+            None => index,
+        };
         let d = self.generator.directed().len() as u64;
         if index < d {
             return self.generator.directed().get(index as usize).copied();
@@ -326,6 +332,7 @@ impl<'g> Checker<'g> {
             generator,
             first: m.first_index,
             count: m.vectors,
+            selection: m.selection.as_ref().map(|s| s.indices.clone()),
             stream: None,
         });
         let has_all_inputs = spec.inputs().iter().all(|(s, _)| columns.contains(s));

@@ -114,7 +114,7 @@ fn outcome(r: &CheckReport) -> Outcome {
 }
 
 /// Reads the vector set's manifest and checks it belongs to this spec and this version.
-fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error> {
+pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error> {
     let manifest = read_manifest(dir)?;
     let mpath = dir.join(arithvec::MANIFEST_JSON).display().to_string();
     if manifest.spec_sha256 != arithvec::spec_identity(spec) {
@@ -143,8 +143,13 @@ fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error>
             .field("version"),
         ));
     }
-    let generator = Generator::new(spec, Some(manifest.random), Some(manifest.seed));
-    if generator.directed().len() as u64 != manifest.directed {
+    // A selected (compacted) set regenerates its source set and maps positions to indices.
+    let (random, directed) = match &manifest.selection {
+        Some(s) => (s.source_random, s.source_directed),
+        None => (manifest.random, manifest.directed),
+    };
+    let generator = Generator::new(spec, Some(random), Some(manifest.seed));
+    if generator.directed().len() as u64 != directed {
         return Err(Error::problem(
             Problem::new(
                 mpath,

@@ -595,7 +595,7 @@ impl PatternSet {
         let n = self.input_bits;
         let block = start / 64;
         let row = &self.words[block * n..(block + 1) * n];
-        if start % 64 == 0 {
+        if start.is_multiple_of(64) {
             // Whole or final partial block: lanes beyond `count` are masked off by callers.
             out.copy_from_slice(row);
         } else {
@@ -1237,7 +1237,7 @@ fn exhaustive_word(j: usize, start: u64, count: usize) -> u64 {
         0xffff_0000_ffff_0000,
         0xffff_ffff_0000_0000,
     ];
-    if start % 64 == 0 {
+    if start.is_multiple_of(64) {
         if j < 6 {
             return LANES[j];
         }
@@ -1619,7 +1619,7 @@ mod tests {
         let mut b = NetlistBuilder::new("<random>", "random");
         let mut nets = b.input("i", 1 + (rng.next() % 6) as u32);
         nets.extend(b.input("j", 1 + (rng.next() % 3) as u32));
-        if rng.next() % 4 == 0 {
+        if rng.next().is_multiple_of(4) {
             let c = b.constant(rng.next() & 1 == 1);
             nets.push(c);
         }

@@ -15,6 +15,7 @@ mod encoding;
 mod error;
 mod fault;
 mod generate;
+mod grade;
 mod hexfile;
 mod layout;
 mod log;
@@ -41,6 +42,7 @@ pub use fault::{
     FaultReport, FaultSite, GradeOptions, PatternSet, PortValue, Redundancy, SimulationMode,
 };
 pub use generate::{Generator, RandomStream};
+pub use grade::{write_selection, BuiltinModel, GradeOutcome, Grader, NetlistMismatch};
 pub use hexfile::Packer;
 pub use layout::{Field, Layout, WordLayout};
 pub use log::{FieldValue, LogReader, LogRow, Radix, RowError};
@@ -57,7 +59,7 @@ pub use testbench::{
 };
 pub use vectorset::{
     csv_header, csv_row, read_manifest, sha256_hex, spec_identity, write as write_vector_set,
-    FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord, Shard, VectorSet,
+    FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord, Selection, Shard, VectorSet,
     WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 pub use word::{hex_digits, Word, MAX_WIDTH};

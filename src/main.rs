@@ -13,6 +13,7 @@ use arithvec::{
 };
 
 mod cli_check;
+mod cli_grade;
 mod cli_util;
 
 use cli_util::{out, read_spec, Outcome};
@@ -120,6 +121,9 @@ enum Command {
     /// Combine JSON check reports of several runs or shards of one spec.
     #[command(after_help = cli_check::MERGE_HELP)]
     Merge(cli_check::MergeArgs),
+    /// Grade the single stuck-at fault coverage of a vector set on a gate netlist.
+    #[command(after_help = cli_grade::GRADE_HELP)]
+    Grade(cli_grade::GradeArgs),
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -190,6 +194,7 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
         } => testbench(&spec, &vectors, hdl, output, settle, self_check, quiet),
         Command::Check(args) => cli_check::check(args, quiet),
         Command::Merge(args) => cli_check::merge(args, quiet),
+        Command::Grade(args) => cli_grade::grade(args, quiet),
     }
 }
 

@@ -86,7 +86,7 @@ pub struct ManifestWord {
 }
 
 impl ManifestWord {
-    fn of(layout: &WordLayout) -> ManifestWord {
+    pub(crate) fn of(layout: &WordLayout) -> ManifestWord {
         ManifestWord {
             width: layout.width,
             digits: layout.hex_digits(),
@@ -144,6 +144,21 @@ pub struct Manifest {
     pub layout: ManifestLayout,
     /// The files and their hashes.
     pub files: Vec<FileRecord>,
+    /// For a set chosen from a larger one (`grade --compact`): which vectors of the source
+    /// set these are, in file order. Vector p of these files is source vector `indices[p]`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub selection: Option<Selection>,
+}
+
+/// The provenance of a selected (compacted) vector set.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Selection {
+    /// Directed vectors of the source set.
+    pub source_directed: u64,
+    /// Random vectors of the source set.
+    pub source_random: u64,
+    /// Source indices, in file order.
+    pub indices: Vec<u64>,
 }
 
 /// SHA-256 of `bytes` as lowercase hex.
@@ -498,6 +513,7 @@ pub fn write(
             expected: ManifestWord::of(&layout.expected),
         },
         files: finished.iter().map(|(r, _, _)| r.clone()).collect(),
+        selection: None,
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
     text.push('\n');

@@ -478,7 +478,7 @@ fn random_netlist(seed: u64) -> Netlist {
     let mut b = NetlistBuilder::new("<random>", "random");
     let mut nets: Vec<NetId> = b.input("p", 1 + (rng.next() % 5) as u32);
     nets.extend(b.input("q", 1 + (rng.next() % 4) as u32));
-    if rng.next() % 3 == 0 {
+    if rng.next().is_multiple_of(3) {
         nets.push(b.constant(rng.next() & 1 == 1));
     }
     let gates = 2 + rng.next() % 40;

@@ -1,0 +1,424 @@
+//! Fault grading of a vector set against a gate netlist, and compaction.
+//!
+//! This module ties the spec and its vectors to `netlist` and `fault`: it matches the
+//! netlist's ports to the spec's `[ports]`, confirms the fault-free netlist reproduces the
+//! golden model on every vector (otherwise the netlist is not the spec and grading stops),
+//! grades single stuck-at faults, and chooses a smaller subset that keeps both the class
+//! coverage and the fault coverage (greedy set cover: small, not proven minimum). Writing the
+//! compacted set is here too, because its manifest records where each vector came from.
+
+use std::path::Path;
+
+use crate::classes::Hits;
+use crate::error::{Error, Problem, Result};
+use crate::fault::{
+    compact, detection_matrix, grade_with, FaultList, FaultReport, GradeOptions, PatternSet,
+    SimulationMode,
+};
+use crate::generate::Generator;
+use crate::hexfile::{header, Packer};
+use crate::layout::Layout;
+use crate::model::{Inputs, Outputs};
+use crate::netlist::Netlist;
+use crate::spec::{Encoding, Operation, Signal, Spec};
+use crate::vectorset::{
+    csv_header, csv_row, sha256_hex, spec_identity, FileRecord, Manifest, ManifestLayout,
+    ManifestWord, Selection, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
+};
+use crate::word::Word;
+
+/// The structural models arithvec can grade without a netlist file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum BuiltinModel {
+    /// Ripple-carry adder of full-adder cells (add).
+    RippleAdder,
+    /// Ripple-borrow subtractor of full-subtractor cells (sub).
+    RippleSubtractor,
+    /// Adder with b XOR mode and mode as carry-in (addsub).
+    AddSubUnit,
+}
+
+impl BuiltinModel {
+    /// The built-in model matching the spec's operation.
+    pub fn for_spec(spec: &Spec) -> Result<BuiltinModel> {
+        let ok_encoding = matches!(spec.encoding, Encoding::Unsigned | Encoding::Twos);
+        let model = match spec.operation {
+            Operation::Add if ok_encoding => BuiltinModel::RippleAdder,
+            Operation::Sub if ok_encoding => BuiltinModel::RippleSubtractor,
+            Operation::AddSub if ok_encoding && !spec.has(Signal::CarryIn) => {
+                BuiltinModel::AddSubUnit
+            }
+            _ => {
+                return Err(Error::problem(
+                    Problem::new(
+                        "--builtin",
+                        format!(
+                            "there is no built-in structural model for {} in {} encoding{}; \
+                             built-ins cover add and sub (unsigned or twos) and addsub without a \
+                             carry_in port; pass --netlist with a Yosys JSON netlist instead",
+                            spec.operation,
+                            spec.encoding,
+                            if spec.operation == Operation::AddSub {
+                                " with these ports"
+                            } else {
+                                ""
+                            }
+                        ),
+                    )
+                    .field("builtin"),
+                ))
+            }
+        };
+        Ok(model)
+    }
+
+    /// Builds the model at the spec's width, with the spec's port names.
+    pub fn build(self, spec: &Spec) -> Result<Netlist> {
+        let w = spec.width;
+        let mut n = match self {
+            BuiltinModel::RippleAdder => Netlist::ripple_adder(w, spec.has(Signal::CarryIn))?,
+            BuiltinModel::RippleSubtractor => {
+                Netlist::ripple_subtractor(w, spec.has(Signal::CarryIn))?
+            }
+            BuiltinModel::AddSubUnit => Netlist::addsub_unit(w)?,
+        };
+        let pairs = [
+            ("a", Signal::A),
+            ("b", Signal::B),
+            ("cin", Signal::CarryIn),
+            ("mode", Signal::Mode),
+            ("y", Signal::Result),
+            ("co", Signal::CarryOut),
+            ("ovf", Signal::Overflow),
+        ];
+        let renames: Vec<(&str, &str)> = pairs
+            .iter()
+            .filter(|(old, _)| n.input_port(old).is_some() || n.output_port(old).is_some())
+            .filter_map(|(old, sig)| spec.ports.get(*sig).map(|new| (*old, new)))
+            .collect();
+        n.rename_ports(&renames)?;
+        Ok(n)
+    }
+}
+
+/// How the netlist's ports line up with the spec's signals.
+#[derive(Debug, Clone)]
+struct PortMap {
+    /// Per netlist input port: the spec signal feeding it.
+    inputs: Vec<Signal>,
+    /// Per netlist output port: the spec signal it must equal, if the spec has it.
+    outputs: Vec<Option<Signal>>,
+}
+
+fn match_ports(spec: &Spec, netlist: &Netlist) -> Result<PortMap> {
+    let src = netlist.source().to_string();
+    let mut problems = Vec::new();
+    let by_name = |name: &str| {
+        spec.inputs()
+            .into_iter()
+            .chain(spec.outputs())
+            .find(|(_, p)| *p == name)
+            .map(|(s, _)| s)
+    };
+    let mut inputs = Vec::new();
+    for port in netlist.inputs() {
+        match by_name(port.name()).filter(|s| s.is_input()) {
+            Some(sig) => {
+                let w = sig.width(spec.width);
+                if port.width() != w {
+                    problems.push(
+                        Problem::new(
+                            &src,
+                            format!(
+                                "input port is {} bits wide; the spec's {} is {w}",
+                                port.width(),
+                                sig.key()
+                            ),
+                        )
+                        .field(format!("port {}", port.name())),
+                    );
+                }
+                inputs.push(sig);
+            }
+            None => problems.push(
+                Problem::new(
+                    &src,
+                    "input port is not one of the spec's [ports] inputs; the vectors cannot \
+                     drive it",
+                )
+                .field(format!("port {}", port.name())),
+            ),
+        }
+    }
+    for (sig, name) in spec.inputs() {
+        if netlist.input_port(name).is_none() {
+            problems.push(
+                Problem::new(
+                    &src,
+                    format!(
+                        "module `{}` has no input port \"{name}\" (the spec's {})",
+                        netlist.module(),
+                        sig.key()
+                    ),
+                )
+                .field(format!("port {name}")),
+            );
+        }
+    }
+    let mut outputs = Vec::new();
+    for port in netlist.outputs() {
+        let sig = by_name(port.name()).filter(|s| !s.is_input());
+        if let Some(s) = sig {
+            if port.width() != s.width(spec.width) {
+                problems.push(
+                    Problem::new(
+                        &src,
+                        format!(
+                            "output port is {} bits wide; the spec's {} is {}",
+                            port.width(),
+                            s.key(),
+                            s.width(spec.width)
+                        ),
+                    )
+                    .field(format!("port {}", port.name())),
+                );
+            }
+        }
+        outputs.push(sig);
+    }
+    if !outputs.iter().any(Option::is_some) {
+        problems.push(Problem::new(
+            &src,
+            format!(
+                "module `{}` has no output port named in the spec's [ports]",
+                netlist.module()
+            ),
+        ));
+    }
+    if problems.is_empty() {
+        Ok(PortMap { inputs, outputs })
+    } else {
+        Err(Error::input(problems))
+    }
+}
+
+/// The fault-free netlist disagreed with the golden model.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct NetlistMismatch {
+    /// Position in the vector set.
+    pub position: usize,
+    /// The output port.
+    pub port: String,
+    /// Golden value, hex.
+    pub expected: String,
+    /// Netlist value, hex.
+    pub got: String,
+}
+
+/// What grading found.
+#[derive(Debug)]
+pub enum GradeOutcome {
+    /// The netlist reproduces the golden model; here is the fault report.
+    Graded(Box<FaultReport>),
+    /// The fault-free netlist is not the spec: the first disagreements (at most 10).
+    NotTheSpec(Vec<NetlistMismatch>),
+}
+
+/// A netlist prepared for grading one spec's vectors.
+pub struct Grader<'a> {
+    spec: &'a Spec,
+    netlist: &'a Netlist,
+    ports: PortMap,
+    faults: FaultList,
+}
+
+impl<'a> Grader<'a> {
+    /// Matches the netlist to the spec and builds its fault list.
+    pub fn new(spec: &'a Spec, netlist: &'a Netlist) -> Result<Grader<'a>> {
+        let ports = match_ports(spec, netlist)?;
+        Ok(Grader {
+            spec,
+            netlist,
+            ports,
+            faults: FaultList::new(netlist),
+        })
+    }
+
+    fn patterns(&self, vectors: &[Inputs]) -> Result<PatternSet> {
+        let rows: Vec<Vec<Word>> = vectors
+            .iter()
+            .map(|v| self.ports.inputs.iter().map(|&s| v.get(s)).collect())
+            .collect();
+        PatternSet::from_vectors(self.netlist, &rows, "vector set")
+    }
+
+    /// Simulates the fault-free netlist on every vector and compares with `expected`.
+    pub fn fault_free_mismatches(
+        &self,
+        vectors: &[Inputs],
+        expected: &[Outputs],
+    ) -> Result<Vec<NetlistMismatch>> {
+        let mut out = Vec::new();
+        for (p, (v, e)) in vectors.iter().zip(expected).enumerate() {
+            let values: Vec<Word> = self.ports.inputs.iter().map(|&s| v.get(s)).collect();
+            let got = self.netlist.eval(&values)?;
+            for ((port, sig), g) in self
+                .netlist
+                .outputs()
+                .iter()
+                .zip(&self.ports.outputs)
+                .zip(got)
+            {
+                let Some(sig) = sig else { continue };
+                let w = sig.width(self.spec.width);
+                let want = e.get(*sig).masked(w);
+                if g.masked(w) != want {
+                    out.push(NetlistMismatch {
+                        position: p,
+                        port: port.name().to_string(),
+                        expected: want.to_hex(w),
+                        got: g.masked(w).to_hex(w),
+                    });
+                    if out.len() >= 10 {
+                        return Ok(out);
+                    }
+                }
+            }
+        }
+        Ok(out)
+    }
+
+    /// Grades the vectors (after the fault-free check).
+    pub fn grade(&self, vectors: &[Inputs], expected: &[Outputs]) -> Result<GradeOutcome> {
+        let bad = self.fault_free_mismatches(vectors, expected)?;
+        if !bad.is_empty() {
+            return Ok(GradeOutcome::NotTheSpec(bad));
+        }
+        let patterns = self.patterns(vectors)?;
+        let report = grade_with(
+            self.netlist,
+            &self.faults,
+            &patterns,
+            &GradeOptions::default(),
+        )?;
+        Ok(GradeOutcome::Graded(Box::new(report)))
+    }
+
+    /// Positions of a subset of `vectors` that keeps every fault the whole set detects
+    /// detected and every bin the whole set hits hit (greedy set cover; not proven minimum).
+    pub fn compact(&self, generator: &Generator, vectors: &[Inputs]) -> Result<Vec<usize>> {
+        let patterns = self.patterns(vectors)?;
+        let matrix = detection_matrix(
+            self.netlist,
+            &self.faults,
+            &patterns,
+            SimulationMode::BitParallel,
+        )?;
+        let cat = generator.catalogue();
+        let mut by_bin: Vec<Vec<usize>> = vec![Vec::new(); cat.bin_count()];
+        let mut hits = Hits::new();
+        for (p, v) in vectors.iter().enumerate() {
+            cat.evaluate(v, &mut hits);
+            hits.for_each_bin(|b| {
+                if cat.is_reachable(b) {
+                    by_bin[b].push(p);
+                }
+            });
+        }
+        let must: Vec<Vec<usize>> = by_bin.into_iter().filter(|s| !s.is_empty()).collect();
+        let mut chosen = compact(&matrix, &must)?;
+        chosen.sort_unstable();
+        Ok(chosen)
+    }
+}
+
+/// Writes the vectors at `source_indices` of `generator`'s set (in that order) as a new
+/// vector set in `dir`, with a manifest recording the selection. Files are written to
+/// temporary names and renamed into place.
+pub fn write_selection(
+    generator: &Generator,
+    spec: &Spec,
+    dir: &Path,
+    source_indices: &[u64],
+) -> Result<Manifest> {
+    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    let layout = Layout::for_spec(spec);
+    let stim = Packer::new(&layout.stimulus);
+    let exp = Packer::new(&layout.expected);
+    let n = source_indices.len() as u64;
+    let mut csv = csv_header(spec).into_bytes();
+    let mut s = header("stimulus", &spec.name, &layout.stimulus, n).into_bytes();
+    let mut e = header("expected outputs", &spec.name, &layout.expected, n).into_bytes();
+    let mut hits = Hits::new();
+    let mut directed = 0;
+    for (p, &i) in source_indices.iter().enumerate() {
+        let inputs = generator.vector(i).ok_or_else(|| {
+            Error::problem(Problem::new(
+                "compaction",
+                format!("vector {i} is not in the set"),
+            ))
+        })?;
+        if i < generator.directed().len() as u64 {
+            directed += 1;
+        }
+        let outputs = generator.catalogue().evaluate(&inputs, &mut hits);
+        csv.extend_from_slice(csv_row(generator, spec, p as u64, &inputs).as_bytes());
+        stim.push_line(|sig| inputs.get(sig), &mut s);
+        exp.push_line(|sig| outputs.get(sig), &mut e);
+    }
+    let files = [(VECTORS_CSV, csv), (STIMULUS_HEX, s), (EXPECTED_HEX, e)];
+    let records: Vec<FileRecord> = files
+        .iter()
+        .map(|(name, bytes)| FileRecord {
+            name: name.to_string(),
+            bytes: bytes.len() as u64,
+            sha256: sha256_hex(bytes),
+        })
+        .collect();
+    let manifest = Manifest {
+        tool: "arithvec".into(),
+        version: env!("CARGO_PKG_VERSION").into(),
+        unit: spec.name.clone(),
+        spec: serde_json::from_str(&spec.normalised_json()).expect("json"),
+        spec_sha256: spec_identity(spec),
+        seed: generator.seed(),
+        directed,
+        random: n - directed,
+        total: n,
+        shard: None,
+        first_index: 0,
+        vectors: n,
+        layout: ManifestLayout {
+            stimulus: ManifestWord::of(&layout.stimulus),
+            expected: ManifestWord::of(&layout.expected),
+        },
+        files: records,
+        selection: Some(Selection {
+            source_directed: generator.directed().len() as u64,
+            source_random: generator.random_count(),
+            indices: source_indices.to_vec(),
+        }),
+    };
+    let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
+    text.push('\n');
+    let all = files
+        .into_iter()
+        .chain(std::iter::once((MANIFEST_JSON, text.into_bytes())));
+    let mut tmps = Vec::new();
+    for (name, bytes) in all {
+        let tmp = dir.join(format!(".{name}.tmp"));
+        if let Err(err) = std::fs::write(&tmp, &bytes) {
+            for (t, _) in &tmps {
+                let _ = std::fs::remove_file(t);
+            }
+            let _ = std::fs::remove_file(&tmp);
+            return Err(Error::io(&tmp, err));
+        }
+        tmps.push((tmp, dir.join(name)));
+    }
+    for (tmp, path) in &tmps {
+        std::fs::rename(tmp, path).map_err(|e| Error::io(path, e))?;
+    }
+    Ok(manifest)
+}
