@@ -612,6 +612,13 @@ impl<'g> Checker<'g> {
             Some(_) => format!(" --seed {}", self.generator.seed()),
             None => String::new(),
         };
+        // In a selected (compacted) set, position `index` is vector `source` of the source set.
+        let source = self
+            .lookup
+            .as_ref()
+            .and_then(|l| l.selection.as_ref())
+            .and_then(|s| s.get(index as usize).copied())
+            .unwrap_or(index);
         Failure {
             index,
             line,
@@ -619,7 +626,7 @@ impl<'g> Checker<'g> {
             inputs: inputs_report,
             outputs,
             classes,
-            repro: format!("{} --index {index}{seed_part}", self.options.repro_command),
+            repro: format!("{} --index {source}{seed_part}", self.options.repro_command),
         }
     }
 
