@@ -986,6 +986,47 @@ mod tests {
         assert_eq!(g.vector(d + 100), None);
     }
 
+    /// With corner_share = 100 every random operand lies within 2 of a special pattern; with
+    /// the uniform mix at 32 bits that happens essentially never (about 40 * 5 / 2^32 per
+    /// operand, simple counting).
+    #[test]
+    fn corner_mix_draws_from_the_specials() {
+        let near_special = |g: &Generator, w: Word| {
+            let x = Wide::from_word(&w);
+            g.pool.iter().any(|p| {
+                let d = x.sub(Wide::from_word(p)).mask(32);
+                d.to_word().low_u64() <= 2 || d.to_word().low_u64() >= (1 << 32) - 2
+            })
+        };
+        let mut spec = Spec::with_defaults(Operation::Add, Encoding::Twos, 32);
+        spec.random.mix = Mix::Corner;
+        spec.random.corner_share = 100;
+        let g = Generator::new(&spec, Some(2000), Some(5));
+        let mut s = g.random_stream(0);
+        for _ in 0..2000 {
+            let v = s.next_inputs();
+            assert!(near_special(&g, v.a) && near_special(&g, v.b), "{v:?}");
+        }
+        spec.random.mix = Mix::Uniform;
+        let g = Generator::new(&spec, Some(2000), Some(5));
+        let mut s = g.random_stream(0);
+        let near = (0..2000)
+            .filter(|_| near_special(&g, s.next_inputs().a))
+            .count();
+        assert!(
+            near < 5,
+            "{near} of 2000 uniform operands were near a special value"
+        );
+        spec.random.mix = Mix::Corner;
+        spec.random.corner_share = 25;
+        let g = Generator::new(&spec, Some(4000), Some(5));
+        let mut s = g.random_stream(0);
+        let near = (0..4000)
+            .filter(|_| near_special(&g, s.next_inputs().a))
+            .count();
+        assert!((800..1200).contains(&near), "{near} of 4000 at a 25% share");
+    }
+
     #[test]
     fn directed_set_hits_every_reachable_bin() {
         for op in Operation::ALL {
