@@ -7,6 +7,7 @@
 //          every position is NOT the borrow there (common practice).
 //   zero = all result bits are 0
 //   neg  = result MSB
+// The borrows are per-bit scalar wires chained by name (see ripple_add.v for why).
 module ripple_sub #(
     parameter W = 16
 ) (
@@ -19,25 +20,28 @@ module ripple_sub #(
     output wire         zero,
     output wire         neg
 );
-    // borrow[i] is the borrow into bit i; borrow[W] is the borrow out of the word.
-    wire [W:0] borrow;
-    assign borrow[0] = cin;
-
     genvar i;
     generate
         for (i = 0; i < W; i = i + 1) begin : g_bit
+            wire borrow_in;   // borrow into bit i
+            wire borrow_out;  // borrow out of bit i
+            if (i == 0) begin : g_first
+                assign borrow_in = cin;
+            end else begin : g_chain
+                assign borrow_in = g_bit[i-1].borrow_out;
+            end
             full_subtractor u_cell (
                 .a   (a[i]),
                 .b   (b[i]),
-                .bin (borrow[i]),
+                .bin (borrow_in),
                 .d   (y[i]),
-                .bout(borrow[i+1])
+                .bout(borrow_out)
             );
         end
     endgenerate
 
-    assign co   = borrow[W];
-    assign ovf  = borrow[W-1] ^ borrow[W];
+    assign co   = g_bit[W-1].borrow_out;
+    assign ovf  = g_bit[W-1].borrow_in ^ g_bit[W-1].borrow_out;
     assign zero = ~|y;
     assign neg  = y[W-1];
 endmodule

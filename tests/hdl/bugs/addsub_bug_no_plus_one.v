@@ -15,6 +15,7 @@
 //   ovf  = carry into the MSB xor carry out of the MSB
 //   zero = all result bits are 0
 //   neg  = result MSB
+// The carries are per-bit scalar wires chained by name (see ripple_add.v for why).
 module addsub_bug_no_plus_one #(
     parameter W = 16
 ) (
@@ -27,25 +28,29 @@ module addsub_bug_no_plus_one #(
     output wire         zero,
     output wire         neg
 );
-    wire [W-1:0] b_eff = b ^ {W{mode}};
-    wire [W:0]   carry;
-    assign carry[0] = 1'b0;  // the bug: should be mode
-
     genvar i;
     generate
         for (i = 0; i < W; i = i + 1) begin : g_bit
+            wire b_eff = b[i] ^ mode;  // b, or ~b when subtracting
+            wire carry_in;             // carry into bit i
+            wire carry_out;            // carry out of bit i
+            if (i == 0) begin : g_first
+                assign carry_in = 1'b0;  // the bug: should be mode
+            end else begin : g_chain
+                assign carry_in = g_bit[i-1].carry_out;
+            end
             full_adder u_cell (
                 .a   (a[i]),
-                .b   (b_eff[i]),
-                .cin (carry[i]),
+                .b   (b_eff),
+                .cin (carry_in),
                 .s   (y[i]),
-                .cout(carry[i+1])
+                .cout(carry_out)
             );
         end
     endgenerate
 
-    assign co   = carry[W];
-    assign ovf  = carry[W-1] ^ carry[W];
+    assign co   = g_bit[W-1].carry_out;
+    assign ovf  = g_bit[W-1].carry_in ^ g_bit[W-1].carry_out;
     assign zero = ~|y;
     assign neg  = y[W-1];
 endmodule

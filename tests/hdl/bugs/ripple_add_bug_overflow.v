@@ -15,6 +15,9 @@
 //          common practice; at W = 1 the carry into the MSB is cin itself)
 //   zero = all result bits are 0 (the only two's-complement zero)
 //   neg  = result MSB
+// Each bit's carries are scalar wires inside its generate block, chained by name, rather
+// than one (W+1)-bit vector: Icarus 11 re-evaluates every reader of a vector net when any
+// bit of it changes, which made a 64-bit ripple about 12 times slower to simulate (observed).
 module ripple_add_bug_overflow #(
     parameter W = 16
 ) (
@@ -27,25 +30,29 @@ module ripple_add_bug_overflow #(
     output wire         zero,
     output wire         neg
 );
-    // carry[i] is the carry into bit i; carry[W] is the carry out of the word.
-    wire [W:0] carry;
-    assign carry[0] = cin;
-
     genvar i;
     generate
         for (i = 0; i < W; i = i + 1) begin : g_bit
+            wire carry_in;   // carry into bit i
+            wire carry_out;  // carry out of bit i
+            if (i == 0) begin : g_first
+                assign carry_in = cin;
+            end else begin : g_chain
+                assign carry_in = g_bit[i-1].carry_out;
+            end
             full_adder u_cell (
                 .a   (a[i]),
                 .b   (b[i]),
-                .cin (carry[i]),
+                .cin (carry_in),
                 .s   (y[i]),
-                .cout(carry[i+1])
+                .cout(carry_out)
             );
         end
     endgenerate
 
-    assign co   = carry[W];
-    assign ovf  = carry[W];  // the bug: should be carry[W-1] ^ carry[W]
+    assign co   = g_bit[W-1].carry_out;
+    // The bug: should be g_bit[W-1].carry_in ^ g_bit[W-1].carry_out.
+    assign ovf  = g_bit[W-1].carry_out;
     assign zero = ~|y;
     assign neg  = y[W-1];
 endmodule

@@ -16,6 +16,9 @@
 //          common practice; at W = 1 the carry into the MSB is cin itself)
 //   zero = all result bits are 0 (the only two's-complement zero)
 //   neg  = result MSB
+// Each bit's carries are scalar wires inside its generate block, chained by name, rather
+// than one (W+1)-bit vector: Icarus 11 re-evaluates every reader of a vector net when any
+// bit of it changes, which made a 64-bit ripple about 12 times slower to simulate (observed).
 module ripple_add_bug_stuck #(
     parameter W = 16
 ) (
@@ -30,34 +33,37 @@ module ripple_add_bug_stuck #(
 );
     localparam STUCK = (W - 1) / 2;
 
-    // carry[i] is the carry into bit i; carry[W] is the carry out of the word.
-    wire [W:0] carry;
-    // sum[STUCK] is the cell output cut off by the stuck-at fault.
-    /* verilator lint_off UNUSEDSIGNAL */
-    wire [W-1:0] sum;
-    /* verilator lint_on UNUSEDSIGNAL */
-    assign carry[0] = cin;
-
     genvar i;
     generate
         for (i = 0; i < W; i = i + 1) begin : g_bit
+            wire carry_in;   // carry into bit i
+            wire carry_out;  // carry out of bit i
+            // The stuck bit's cell output is cut off from y and feeds nothing.
+            /* verilator lint_off UNUSEDSIGNAL */
+            wire sum;        // the cell's sum output
+            /* verilator lint_on UNUSEDSIGNAL */
+            if (i == 0) begin : g_first
+                assign carry_in = cin;
+            end else begin : g_chain
+                assign carry_in = g_bit[i-1].carry_out;
+            end
             full_adder u_cell (
                 .a   (a[i]),
                 .b   (b[i]),
-                .cin (carry[i]),
-                .s   (sum[i]),
-                .cout(carry[i+1])
+                .cin (carry_in),
+                .s   (sum),
+                .cout(carry_out)
             );
             if (i == STUCK) begin : g_stuck
-                assign y[i] = 1'b0;  // the bug: should be sum[i]
+                assign y[i] = 1'b0;  // the bug: should be sum
             end else begin : g_ok
-                assign y[i] = sum[i];
+                assign y[i] = sum;
             end
         end
     endgenerate
 
-    assign co   = carry[W];
-    assign ovf  = carry[W-1] ^ carry[W];
+    assign co   = g_bit[W-1].carry_out;
+    assign ovf  = g_bit[W-1].carry_in ^ g_bit[W-1].carry_out;
     assign zero = ~|y;
     assign neg  = y[W-1];
 endmodule
