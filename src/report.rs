@@ -108,8 +108,25 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
         .iter()
         .filter(|k| k.status == ClassStatus::Failing)
         .collect();
+    let mut telling: Vec<&crate::coverage::BinFailures> = failing
+        .iter()
+        .flat_map(|k| k.failing_bins.iter())
+        .filter(|b| b.failures == b.hits && b.hits > 1)
+        .collect();
+    telling.sort_by(|x, y| y.hits.cmp(&x.hits).then(x.bin.cmp(&y.bin)));
+    if !telling.is_empty() {
+        let list: Vec<String> = telling
+            .iter()
+            .take(8)
+            .map(|b| format!("{} ({}/{})", b.bin, b.failures, b.hits))
+            .collect();
+        s.push_str(&format!(
+            "strongest pointers (bins where every hit failed, most hits first): {}\n",
+            list.join(", ")
+        ));
+    }
     if !failing.is_empty() {
-        s.push_str("bins where every hit failed point at the bug; failing bins, worst first:\n");
+        s.push_str("failing bins per class, worst first (failures/hits):\n");
         for k in failing {
             let list: Vec<String> = k
                 .failing_bins
