@@ -255,15 +255,23 @@ impl VectorLookup<'_> {
     }
 }
 
-/// A bitmap of seen indices that grows as needed.
+/// Seen indices: a bitmap that grows as needed for indices below [`Seen::DENSE`] (32 MiB at
+/// most), and a set for the rare larger ones, so a stray huge index in a log cannot make the
+/// checker allocate without bound.
 #[derive(Default)]
 struct Seen {
     words: Vec<u64>,
+    sparse: std::collections::BTreeSet<u64>,
 }
 
 impl Seen {
+    const DENSE: u64 = 1 << 28;
+
     /// Marks `i`; returns true when it was already marked.
     fn mark(&mut self, i: u64) -> bool {
+        if i >= Self::DENSE {
+            return !self.sparse.insert(i);
+        }
         let w = (i / 64) as usize;
         if w >= self.words.len() {
             self.words.resize(w + 1, 0);
@@ -275,6 +283,9 @@ impl Seen {
     }
 
     fn contains(&self, i: u64) -> bool {
+        if i >= Self::DENSE {
+            return self.sparse.contains(&i);
+        }
         self.words
             .get((i / 64) as usize)
             .is_some_and(|w| w & (1 << (i % 64)) != 0)
