@@ -4,6 +4,39 @@
 //!
 //! The library is the whole tool; the `arithvec` binary only parses arguments and calls it.
 //! Modules are private; their public types are re-exported here.
+//!
+//! ```
+//! use arithvec::{Generator, Inputs, Spec, Word};
+//!
+//! let spec = Spec::parse(
+//!     r#"
+//!     name = "level_delta"
+//!     operation = "sub"
+//!     width = 8
+//!     encoding = "twos"
+//!     [ports]
+//!     a = "a"
+//!     b = "b"
+//!     result = "y"
+//!     carry_out = "co"
+//!     overflow = "ovf"
+//!     "#,
+//!     "unit.toml",
+//! )?;
+//! let generator = Generator::new(&spec, Some(100), Some(1));
+//! // 0x80 - 0x01 = 0x7f: -128 - 1 overflows two's complement, and needs no borrow.
+//! let out = generator.catalogue().model().evaluate(&Inputs {
+//!     a: Word::from_u64(0x80),
+//!     b: Word::from_u64(0x01),
+//!     ..Inputs::default()
+//! });
+//! assert_eq!(out.result, Word::from_u64(0x7f));
+//! assert!(out.overflow && !out.carry_out);
+//! // Random vector j is a pure function of (spec, seed, j).
+//! let j = generator.directed().len() as u64 + 42;
+//! assert_eq!(generator.vector(j), Generator::new(&spec, Some(100), Some(1)).vector(j));
+//! # Ok::<(), arithvec::Error>(())
+//! ```
 
 #![deny(missing_docs)]
 
