@@ -4,7 +4,8 @@ module chk_compare #(
     parameter W = 4,
     parameter SIGNED = 1,
     parameter NRAND = 2000,
-    parameter EXH_BITS = 14
+    parameter EXH_BITS = 14,
+    parameter DIRECTED = 1
 );
 `include "common.vh"
     reg  [W-1:0] a, b;

@@ -9,7 +9,8 @@ module chk_ones_add #(
     parameter W = 4,
     parameter SIGNED = 1,
     parameter NRAND = 2000,
-    parameter EXH_BITS = 14
+    parameter EXH_BITS = 14,
+    parameter DIRECTED = 1
 );
 `include "common.vh"
     localparam signed [BW-1:0] MODULUS = TWO_W - BIG_ONE;

@@ -8,7 +8,8 @@ module chk_signmag_add #(
     parameter W = 4,
     parameter SIGNED = 1,
     parameter NRAND = 2000,
-    parameter EXH_BITS = 14
+    parameter EXH_BITS = 14,
+    parameter DIRECTED = 1
 );
 `include "common.vh"
     reg  [W-1:0] a, b;

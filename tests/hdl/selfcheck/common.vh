@@ -1,12 +1,11 @@
 // common.vh: shared helpers for the self-check testbenches, included inside each checker
-// module body after its parameters (W, SIGNED, NRAND, EXH_BITS). The golden answers are
-// computed from the decoded VALUES of the operands with plain integer arithmetic in
-// (W+4)-bit signed registers, as DEVELOPERS.md "Golden model rules" defines them; nothing
-// here reuses the units' structure or the behavioural models' expressions.
-
-// DIRECTED = 0 turns the checkers' directed corner vectors and biased picks off, leaving
-// uniform random operands only (used to show which bugs uniform vectors miss).
-parameter DIRECTED = 1;
+// module body after its parameters: W (width), SIGNED (1 = two's complement, 0 = unsigned,
+// where the unit has both), NRAND (random vectors when not exhaustive), EXH_BITS (exhaustive
+// when the input bits fit), DIRECTED (0 turns the directed corners and biased picks off,
+// leaving uniform random operands only, to show which bugs such vectors miss).
+// The golden answers are computed from the decoded VALUES of the operands with plain integer
+// arithmetic in (W+4)-bit signed registers, as DEVELOPERS.md "Golden model rules" defines
+// them; nothing here reuses the units' structure or the behavioural models' expressions.
 
 // How the checker instantiates the DUT: a synthesized netlist has no parameters, a
 // behavioural model also takes SIGNED.
@@ -120,6 +119,6 @@ task report(input exhaustive);
         $display("RESULT %s W=%0d SIGNED=%0d: %0d passed, %0d failed (exhaustive)", `DUTNAME, W,
                  SIGNED, passed, failed);
     else
-        $display("RESULT %s W=%0d SIGNED=%0d: %0d passed, %0d failed (directed+random)",
+        $display("RESULT %s W=%0d SIGNED=%0d: %0d passed, %0d failed (sampled)",
                  `DUTNAME, W, SIGNED, passed, failed);
 endtask

@@ -9,10 +9,12 @@ module top;
     parameter SIGNED = 1;
     parameter NRAND = 2000;
     parameter EXH_BITS = 14;
+    parameter DIRECTED = 1;
     genvar w;
     generate
         for (w = WMIN; w <= WMAX; w = w + 1) begin : g_width
-            `CHK #(.W(w), .SIGNED(SIGNED), .NRAND(NRAND), .EXH_BITS(EXH_BITS)) u_chk ();
+            `CHK #(.W(w), .SIGNED(SIGNED), .NRAND(NRAND), .EXH_BITS(EXH_BITS),
+                   .DIRECTED(DIRECTED)) u_chk ();
         end
     endgenerate
 endmodule
