@@ -1,0 +1,151 @@
+//! What a missing simulator means: under CI (the `CI` environment variable is set) it is an
+//! error, because a suite that silently skips proves nothing; on a developer's machine it is
+//! a loud `*** SKIPPED: <tool> not found ***` line on stderr and the test returns early.
+//!
+//! The decision is a pure function (`decide`) tested for every input, and `require_tool` is
+//! also run for real in a child process of this test binary with a PATH that lacks the tool.
+
+use std::io::Write as _;
+use std::process::{Command, Stdio};
+
+/// What a test does about one tool.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ToolDecision {
+    /// The tool is there: run the test.
+    Run,
+    /// The tool is missing on a developer's machine: say so loudly and skip.
+    Skip,
+    /// The tool is missing under CI: fail the test.
+    Fail,
+}
+
+/// The decision for a tool that was or was not `found`, with or without `ci` set.
+pub fn decide(found: bool, ci: bool) -> ToolDecision {
+    match (found, ci) {
+        (true, _) => ToolDecision::Run,
+        (false, true) => ToolDecision::Fail,
+        (false, false) => ToolDecision::Skip,
+    }
+}
+
+/// True when `name` can be started from PATH. Icarus' tools take `-V` for their version,
+/// the others `--version`; only whether the program starts matters.
+pub fn tool_found(name: &str) -> bool {
+    let flag = if name == "iverilog" || name == "vvp" {
+        "-V"
+    } else {
+        "--version"
+    };
+    Command::new(name)
+        .arg(flag)
+        .stdin(Stdio::null())
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .status()
+        .is_ok()
+}
+
+/// The panic message for a tool missing under CI; the child-process test looks for it.
+fn missing_under_ci(name: &str) -> String {
+    format!("{name} not found on PATH and CI is set: the simulator end-to-end tests must run in CI")
+}
+
+/// True when `name` is available. A missing tool panics when `CI` is set and otherwise prints
+/// `*** SKIPPED: <name> not found ***` to stderr and returns false.
+pub fn require_tool(name: &str) -> bool {
+    match decide(tool_found(name), std::env::var_os("CI").is_some()) {
+        ToolDecision::Run => true,
+        ToolDecision::Fail => panic!("{}", missing_under_ci(name)),
+        ToolDecision::Skip => {
+            // Written to the stderr handle rather than with eprintln!, which the test harness
+            // captures and shows only for failing tests.
+            let _ = writeln!(std::io::stderr(), "\n*** SKIPPED: {name} not found ***\n");
+            false
+        }
+    }
+}
+
+/// True when every tool in `names` is available (each missing one is reported).
+pub fn require_tools(names: &[&str]) -> bool {
+    // Every tool is asked before deciding, so each missing one gets its own line.
+    let found: Vec<bool> = names.iter().map(|name| require_tool(name)).collect();
+    found.into_iter().all(|ok| ok)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The environment variable that tells `probe_require_tool` which tool to look for.
+    const PROBE_TOOL: &str = "SIM_E2E_PROBE_TOOL";
+
+    #[test]
+    fn decision_for_every_input() {
+        assert_eq!(decide(true, true), ToolDecision::Run);
+        assert_eq!(decide(true, false), ToolDecision::Run);
+        assert_eq!(decide(false, true), ToolDecision::Fail);
+        assert_eq!(decide(false, false), ToolDecision::Skip);
+    }
+
+    /// Not a test of its own: `missing_simulator_is_an_error_under_ci` runs it in a child
+    /// process with a PATH lacking the tool. Run by hand it checks that `require_tool`
+    /// agrees with `tool_found` for the tool named by `SIM_E2E_PROBE_TOOL` (default iverilog).
+    #[test]
+    #[ignore = "run as a child process by missing_simulator_is_an_error_under_ci"]
+    fn probe_require_tool() {
+        let tool = std::env::var(PROBE_TOOL).unwrap_or_else(|_| "iverilog".into());
+        let ran = require_tool(&tool);
+        let _ = writeln!(std::io::stderr(), "probe result: {tool} ran={ran}");
+        assert_eq!(ran, tool_found(&tool));
+    }
+
+    /// Runs `probe_require_tool` in a child of this test binary with PATH pointing at an
+    /// empty directory, with and without CI, and returns (succeeded, stdout + stderr).
+    fn probe_without_tool(tool: &str, ci: bool) -> (bool, String) {
+        let empty = tempfile::tempdir().unwrap();
+        let mut child = Command::new(std::env::current_exe().unwrap());
+        child
+            .args([
+                "tools::tests::probe_require_tool",
+                "--exact",
+                "--ignored",
+                "--nocapture",
+                "--test-threads=1",
+            ])
+            .env("PATH", empty.path())
+            .env(PROBE_TOOL, tool);
+        if ci {
+            child.env("CI", "true");
+        } else {
+            child.env_remove("CI");
+        }
+        let output = child.output().unwrap();
+        let text = format!(
+            "{}{}",
+            String::from_utf8_lossy(&output.stdout),
+            String::from_utf8_lossy(&output.stderr)
+        );
+        (output.status.success(), text)
+    }
+
+    #[test]
+    fn missing_simulator_is_an_error_under_ci() {
+        let (ok, text) = probe_without_tool("iverilog", true);
+        assert!(
+            !ok,
+            "the probe passed although iverilog was missing under CI:\n{text}"
+        );
+        assert!(text.contains("1 failed"), "the probe did not run:\n{text}");
+        assert!(text.contains(&missing_under_ci("iverilog")), "{text}");
+        assert!(!text.contains("SKIPPED"), "{text}");
+    }
+
+    #[test]
+    fn missing_simulator_is_a_loud_skip_without_ci() {
+        let (ok, text) = probe_without_tool("ghdl", false);
+        assert!(ok, "the probe failed without CI:\n{text}");
+        assert!(text.contains("1 passed"), "the probe did not run:\n{text}");
+        assert!(text.contains("*** SKIPPED: ghdl not found ***"), "{text}");
+        assert!(text.contains("probe result: ghdl ran=false"), "{text}");
+    }
+}
