@@ -87,11 +87,10 @@ mod tests {
         assert_eq!(decide(false, false), ToolDecision::Skip);
     }
 
-    /// Not a test of its own: `missing_simulator_is_an_error_under_ci` runs it in a child
-    /// process with a PATH lacking the tool. Run by hand it checks that `require_tool`
-    /// agrees with `tool_found` for the tool named by `SIM_E2E_PROBE_TOOL` (default iverilog).
+    /// `require_tool` agrees with `tool_found` for the tool named by `SIM_E2E_PROBE_TOOL`
+    /// (default iverilog). In the normal run the tool is present; `missing_simulator_is_an_error_under_ci`
+    /// also runs it in a child process with a PATH lacking the tool.
     #[test]
-    #[ignore = "run as a child process by missing_simulator_is_an_error_under_ci"]
     fn probe_require_tool() {
         let tool = std::env::var(PROBE_TOOL).unwrap_or_else(|_| "iverilog".into());
         let ran = require_tool(&tool);
@@ -108,7 +107,6 @@ mod tests {
             .args([
                 "tools::tests::probe_require_tool",
                 "--exact",
-                "--ignored",
                 "--nocapture",
                 "--test-threads=1",
             ])
