@@ -13,8 +13,8 @@ use std::path::Path;
 use crate::classes::Hits;
 use crate::error::{Error, Problem, Result};
 use crate::fault::{
-    compact, detection_matrix, grade_with, FaultList, FaultReport, GradeOptions, PatternSet,
-    SimulationMode,
+    compact, detection_matrix, grade_with, DetectionMatrix, FaultList, FaultReport, GradeOptions,
+    PatternSet, SimulationMode,
 };
 use crate::generate::Generator;
 use crate::hexfile::{header, Packer};
@@ -355,16 +355,22 @@ impl<'a> Grader<'a> {
         Ok(GradeOutcome::Graded(Box::new(report)))
     }
 
-    /// Positions of a subset of `vectors` that keeps every fault the whole set detects
-    /// detected and every bin the whole set hits hit (greedy set cover; not proven minimum).
-    pub fn compact(&self, generator: &Generator, vectors: &[Inputs]) -> Result<Vec<usize>> {
+    /// Which of `vectors` detect which collapsed faults of [`Grader::faults`] (no fault
+    /// dropping); no fault-free check is made here.
+    pub fn detection_matrix(&self, vectors: &[Inputs]) -> Result<DetectionMatrix> {
         let patterns = self.patterns(vectors)?;
-        let matrix = detection_matrix(
+        detection_matrix(
             &self.netlist,
             &self.faults,
             &patterns,
             SimulationMode::BitParallel,
-        )?;
+        )
+    }
+
+    /// Positions of a subset of `vectors` that keeps every fault the whole set detects
+    /// detected and every bin the whole set hits hit (greedy set cover; not proven minimum).
+    pub fn compact(&self, generator: &Generator, vectors: &[Inputs]) -> Result<Vec<usize>> {
+        let matrix = self.detection_matrix(vectors)?;
         let cat = generator.catalogue();
         let mut by_bin: Vec<Vec<usize>> = vec![Vec::new(); cat.bin_count()];
         let mut hits = Hits::new();

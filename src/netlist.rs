@@ -1498,10 +1498,20 @@ impl Netlist {
             }
         }
 
+        // A netlist that skipped synthesis has one unsupported cell per operator, often
+        // thousands; the first few are listed and the rest summed up by type.
+        const LISTED_UNSUPPORTED: usize = 10;
+        let mut unsupported = 0usize;
+        let mut unlisted: BTreeMap<&str, usize> = BTreeMap::new();
         for (name, cell) in &m.cells.0 {
             let field = format!("cells.{name}");
             let located = |p: Problem| at_key(cells_at, name, p);
             let Some(kind) = GateKind::from_yosys_type(&cell.cell_type) else {
+                unsupported += 1;
+                if unsupported > LISTED_UNSUPPORTED {
+                    *unlisted.entry(cell.cell_type.as_str()).or_default() += 1;
+                    continue;
+                }
                 problems.push(located(
                     Problem::new(
                         file,
@@ -1587,6 +1597,23 @@ impl Netlist {
             if let (true, Some(output)) = (ok, output) {
                 b.gate(kind, name, &inputs, output);
             }
+        }
+        if !unlisted.is_empty() {
+            let types: Vec<String> = unlisted
+                .iter()
+                .map(|(t, n)| format!("`{t}` x {n}"))
+                .collect();
+            problems.push(
+                Problem::new(
+                    file,
+                    format!(
+                        "{} more cells cannot be graded ({}); the same synthesis steps fix them",
+                        unsupported - LISTED_UNSUPPORTED,
+                        types.join(", ")
+                    ),
+                )
+                .field("cells"),
+            );
         }
         if !problems.is_empty() {
             problems.append(&mut b.problems);
