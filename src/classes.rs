@@ -103,6 +103,7 @@ pub(crate) enum Kind {
     ResultZeroFromNonzero,
     ResultPattern(Special, Word),
     ResultBits,
+    ResultWalkingOne,
     OverflowBoundary,
     UnsignedEdge,
     ChainLength,
@@ -440,6 +441,11 @@ impl Catalogue {
                         });
                     } else {
                         hit_any = true;
+                    }
+                }
+                Kind::ResultWalkingOne => {
+                    if t.result.count_ones() == 1 {
+                        bin(hits, t.result.not().trailing_ones());
                     }
                 }
                 Kind::OverflowBoundary => {
@@ -833,6 +839,20 @@ fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) -> Vec<Templa
             .flat_map(|i| [format!("bit{i}=0"), format!("bit{i}=1")])
             .collect(),
     ));
+    if spec.has(Signal::Zero) {
+        // A zero flag is a NOR over the result bits however synthesis builds it; each of its
+        // inputs stuck at 0 shows only when that result bit is the sole 1. All-zero plus
+        // every one-hot pattern is the complete single stuck-at test of a fan-out-free OR
+        // tree (common practice, no source); all-zero results are already in the set.
+        out.push((
+            "result.walking_one".into(),
+            "the result has exactly one 1 bit, at each position (each input of the zero \
+             flag's detector alone at 1)"
+                .into(),
+            Kind::ResultWalkingOne,
+            bits(&|i| format!("bit{i}")),
+        ));
+    }
     let cin_name = if subtracting { "bin" } else { "cin" };
     out.push((
         "overflow.boundary".into(),

@@ -145,6 +145,37 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             &rows,
         );
         writeln!(o, "{t}").map_err(stdout_error)?;
+        if !report.unchecked_outputs.is_empty() {
+            writeln!(
+                o,
+                "not observed: output{} {} (not in the spec's [ports], so no test compares {}); \
+                 {} gate{} feeding only {} {} not graded",
+                if report.unchecked_outputs.len() == 1 {
+                    ""
+                } else {
+                    "s"
+                },
+                report.unchecked_outputs.join(", "),
+                if report.unchecked_outputs.len() == 1 {
+                    "it"
+                } else {
+                    "them"
+                },
+                report.ungraded_gates,
+                if report.ungraded_gates == 1 { "" } else { "s" },
+                if report.unchecked_outputs.len() == 1 {
+                    "it"
+                } else {
+                    "them"
+                },
+                if report.ungraded_gates == 1 {
+                    "is"
+                } else {
+                    "are"
+                },
+            )
+            .map_err(stdout_error)?;
+        }
         if !report.undetected.is_empty() {
             let rows: Vec<[String; 5]> = report
                 .undetected

@@ -734,6 +734,12 @@ pub struct FaultReport {
     pub undetected: Vec<FaultEntry>,
     /// Collapsed faults proven redundant.
     pub redundant: Vec<FaultEntry>,
+    /// Output ports of the netlist that were not observed (the spec does not check them),
+    /// in port order. Empty when [`grade_with`] grades the netlist as given; the spec-level
+    /// grader fills it in.
+    pub unchecked_outputs: Vec<String>,
+    /// Gates left out of the fault list because they feed only unchecked outputs.
+    pub ungraded_gates: usize,
     /// For each collapsed class, the index of the first vector that detects it.
     #[serde(skip)]
     pub first_detection: Vec<Option<usize>>,
@@ -1108,6 +1114,8 @@ fn grade_inner(
         testable_coverage_percent: percent(detected, classes - redundant.len()),
         undetected,
         redundant,
+        unchecked_outputs: Vec::new(),
+        ungraded_gates: 0,
         first_detection: first,
     })
 }

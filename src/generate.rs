@@ -5,8 +5,9 @@
 //! constructor (an operand equation, a role template for the carry chain, a carry solver for
 //! cell rows, or a short fixed list of special operand pairs), and a candidate is kept only
 //! when the catalogue's own predicate confirms it hits the bin. Bins no constructor can reach
-//! are marked unreachable. The set starts from the eight-vector cell-exercising seed set and
-//! adds a vector only for bins not yet hit, then drops vectors that became redundant.
+//! are marked unreachable. The set starts from the seed set (eight cell-exercising vectors
+//! and four that give adjacent cells every pair of carry roles), adds a vector only for bins
+//! not yet hit, then drops vectors that became redundant.
 //!
 //! Random vector j is a pure function of (spec, seed, j): ChaCha20 keyed from the seed, read
 //! from word position j * K where K is the fixed number of 32-bit words one vector consumes.
@@ -461,6 +462,7 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
             });
             out
         }
+        Kind::ResultWalkingOne => solver.for_result(Word::bit_mask(k), false),
         Kind::OverflowBoundary => {
             let (target, cin) = if has_cin {
                 (k / 2, k % 2 == 1)
@@ -817,6 +819,15 @@ fn sar1(v: Wide) -> Wide {
 /// derived and checked by exhaustive stuck-at simulation (not from the literature); a
 /// subtractor cell is an adder cell with y and the carries inverted, so it takes the same
 /// set with y and c0 inverted.
+///
+/// Then four vectors whose cells alternate generate/propagate and kill/propagate, starting
+/// with either role at bit 0. With them every pair of adjacent cells sees all nine
+/// combinations of (generate, propagate, kill) roles: the eight alone give only the five
+/// pairs gg, kk, pp, gk and kg. That matters once synthesis restructures the chain across
+/// cell boundaries: Yosys 0.23 with abc, for a 4-bit ripple adder, builds the carry into
+/// the top bit twice, and one copy feeds only the carry-out, so a stuck-at-1 on the branch of
+/// bit 2's generate into that copy shows only when bit 2 generates and bit 3 propagates
+/// (observed with `arithvec grade` and confirmed with Icarus Verilog; tests/grade).
 fn seed_vectors(dp: &Datapath) -> Vec<Inputs> {
     let w = dp.width;
     let ones = Word::ones(w);
@@ -853,6 +864,20 @@ fn seed_vectors(dp: &Datapath) -> Vec<Inputs> {
             out.push(v);
         }
     }
+    let c0 = !dp.c0_allowed(false);
+    for (even, odd) in [
+        (Role::Generate, Role::Propagate),
+        (Role::Propagate, Role::Generate),
+        (Role::Kill, Role::Propagate),
+        (Role::Propagate, Role::Kill),
+    ] {
+        let roles: Vec<Role> = (0..w)
+            .map(|i| if i % 2 == 0 { even } else { odd })
+            .collect();
+        if let Some(v) = dp.inputs_from_roles(&roles, c0) {
+            out.push(v);
+        }
+    }
     out
 }
 
@@ -871,7 +896,8 @@ fn build_directed(spec: &Spec, cat: &mut Catalogue) -> (Vec<Inputs>, Vec<u32>) {
     };
 
     // Seeds first (kept through pruning): they give every cell all eight rows together
-    // with observable carries, which class coverage alone does not demand.
+    // with observable carries, and adjacent cells every pair of carry roles, which class
+    // coverage alone does not demand.
     let modes: Vec<Option<bool>> = if spec.operation == Operation::AddSub {
         vec![Some(false), Some(true)]
     } else {

@@ -7,13 +7,14 @@
 //! coverage and the fault coverage (greedy set cover: small, not proven minimum). Writing the
 //! compacted set is here too, because its manifest records where each vector came from.
 
+use std::borrow::Cow;
 use std::path::Path;
 
 use crate::classes::Hits;
 use crate::error::{Error, Problem, Result};
 use crate::fault::{
-    compact, detection_matrix, grade_with, FaultList, FaultReport, GradeOptions, PatternSet,
-    SimulationMode,
+    compact, detection_matrix, grade_with, DetectionMatrix, FaultList, FaultReport, GradeOptions,
+    PatternSet, SimulationMode,
 };
 use crate::generate::Generator;
 use crate::hexfile::{header, Packer};
@@ -226,23 +227,70 @@ pub enum GradeOutcome {
 }
 
 /// A netlist prepared for grading one spec's vectors.
+///
+/// Only the output ports the spec names are observed: the vectors carry expected values for
+/// those alone, and a testbench made from the spec compares nothing else, so a fault that
+/// shows only on another output (a zero flag the spec leaves out, say) would escape every
+/// check. Such outputs, and the gates feeding only them, are left out of grading and listed
+/// in the report.
 pub struct Grader<'a> {
     spec: &'a Spec,
-    netlist: &'a Netlist,
+    netlist: Cow<'a, Netlist>,
     ports: PortMap,
     faults: FaultList,
+    unchecked_outputs: Vec<String>,
+    ungraded_gates: usize,
 }
 
 impl<'a> Grader<'a> {
-    /// Matches the netlist to the spec and builds its fault list.
+    /// Matches the netlist to the spec and builds its fault list over the logic the spec's
+    /// outputs observe.
     pub fn new(spec: &'a Spec, netlist: &'a Netlist) -> Result<Grader<'a>> {
         let ports = match_ports(spec, netlist)?;
+        let checked: Vec<usize> = (0..ports.outputs.len())
+            .filter(|&o| ports.outputs[o].is_some())
+            .collect();
+        let unchecked_outputs: Vec<String> = netlist
+            .outputs()
+            .iter()
+            .zip(&ports.outputs)
+            .filter(|(_, sig)| sig.is_none())
+            .map(|(p, _)| p.name().to_string())
+            .collect();
+        let (graded, ports) = if unchecked_outputs.is_empty() {
+            (Cow::Borrowed(netlist), ports)
+        } else {
+            let ports = PortMap {
+                inputs: ports.inputs,
+                outputs: ports.outputs.into_iter().filter(Option::is_some).collect(),
+            };
+            (Cow::Owned(netlist.restricted_to_outputs(&checked)), ports)
+        };
+        let ungraded_gates = netlist.gates().len() - graded.gates().len();
+        let faults = FaultList::new(&graded);
         Ok(Grader {
             spec,
-            netlist,
+            netlist: graded,
             ports,
-            faults: FaultList::new(netlist),
+            faults,
+            unchecked_outputs,
+            ungraded_gates,
         })
+    }
+
+    /// The netlist as graded: only the outputs the spec checks and the gates feeding them.
+    pub fn graded_netlist(&self) -> &Netlist {
+        &self.netlist
+    }
+
+    /// The netlist's output ports the spec does not check (not observed when grading).
+    pub fn unchecked_outputs(&self) -> &[String] {
+        &self.unchecked_outputs
+    }
+
+    /// The fault list of the graded netlist.
+    pub fn faults(&self) -> &FaultList {
+        &self.faults
     }
 
     fn patterns(&self, vectors: &[Inputs]) -> Result<PatternSet> {
@@ -250,7 +298,7 @@ impl<'a> Grader<'a> {
             .iter()
             .map(|v| self.ports.inputs.iter().map(|&s| v.get(s)).collect())
             .collect();
-        PatternSet::from_vectors(self.netlist, &rows, "vector set")
+        PatternSet::from_vectors(&self.netlist, &rows, "vector set")
     }
 
     /// Simulates the fault-free netlist on every vector and compares with `expected`.
@@ -296,25 +344,33 @@ impl<'a> Grader<'a> {
             return Ok(GradeOutcome::NotTheSpec(bad));
         }
         let patterns = self.patterns(vectors)?;
-        let report = grade_with(
-            self.netlist,
+        let mut report = grade_with(
+            &self.netlist,
             &self.faults,
             &patterns,
             &GradeOptions::default(),
         )?;
+        report.unchecked_outputs = self.unchecked_outputs.clone();
+        report.ungraded_gates = self.ungraded_gates;
         Ok(GradeOutcome::Graded(Box::new(report)))
+    }
+
+    /// Which of `vectors` detect which collapsed faults of [`Grader::faults`] (no fault
+    /// dropping); no fault-free check is made here.
+    pub fn detection_matrix(&self, vectors: &[Inputs]) -> Result<DetectionMatrix> {
+        let patterns = self.patterns(vectors)?;
+        detection_matrix(
+            &self.netlist,
+            &self.faults,
+            &patterns,
+            SimulationMode::BitParallel,
+        )
     }
 
     /// Positions of a subset of `vectors` that keeps every fault the whole set detects
     /// detected and every bin the whole set hits hit (greedy set cover; not proven minimum).
     pub fn compact(&self, generator: &Generator, vectors: &[Inputs]) -> Result<Vec<usize>> {
-        let patterns = self.patterns(vectors)?;
-        let matrix = detection_matrix(
-            self.netlist,
-            &self.faults,
-            &patterns,
-            SimulationMode::BitParallel,
-        )?;
+        let matrix = self.detection_matrix(vectors)?;
         let cat = generator.catalogue();
         let mut by_bin: Vec<Vec<usize>> = vec![Vec::new(); cat.bin_count()];
         let mut hits = Hits::new();

@@ -454,6 +454,73 @@ impl Netlist {
         Ok(())
     }
 
+    /// A copy that keeps only the output ports whose indices are in `ports` and drops every
+    /// gate that then reaches no output. The nets those gates drove stay in the net table,
+    /// unread and tied to 0, so net ids and names do not change; inputs all stay. Used to
+    /// grade only the outputs a spec checks: logic seen only by other outputs cannot show a
+    /// fault to a test that never compares those outputs.
+    pub fn restricted_to_outputs(&self, ports: &[usize]) -> Netlist {
+        let outputs: Vec<Port> = self
+            .outputs
+            .iter()
+            .enumerate()
+            .filter(|(i, _)| ports.contains(i))
+            .map(|(_, p)| p.clone())
+            .collect();
+        let mut live = vec![false; self.nets.len()];
+        for p in &outputs {
+            for n in &p.nets {
+                live[n.index()] = true;
+            }
+        }
+        // Gates are in topological order, so walking backwards visits every reader of a
+        // net before the gate driving it.
+        let mut kept = vec![false; self.gates.len()];
+        for (g, gate) in self.gates.iter().enumerate().rev() {
+            if live[gate.output.index()] {
+                kept[g] = true;
+                for n in gate.inputs() {
+                    live[n.index()] = true;
+                }
+            }
+        }
+        let mut new_index = vec![usize::MAX; self.gates.len()];
+        let mut gates = Vec::new();
+        for (g, gate) in self.gates.iter().enumerate() {
+            if kept[g] {
+                new_index[g] = gates.len();
+                gates.push(gate.clone());
+            }
+        }
+        let nets = self
+            .nets
+            .iter()
+            .map(|n| NetInfo {
+                name: n.name,
+                driver: match n.driver {
+                    Driver::Gate(g) if kept[g] => Driver::Gate(new_index[g]),
+                    Driver::Gate(_) => Driver::Constant(false),
+                    d => d,
+                },
+            })
+            .collect();
+        let output_nets = outputs
+            .iter()
+            .flat_map(|p| p.nets.iter().copied())
+            .collect();
+        Netlist {
+            source: self.source.clone(),
+            module: self.module.clone(),
+            names: self.names.clone(),
+            nets,
+            inputs: self.inputs.clone(),
+            outputs,
+            gates,
+            input_nets: self.input_nets.clone(),
+            output_nets,
+        }
+    }
+
     /// Evaluates the netlist on 64 patterns at once. `inputs` holds one word per primary
     /// input bit in [`Netlist::input_nets`] order (bit `k` of each word is pattern `k`);
     /// `outputs` receives one word per primary output bit in [`Netlist::output_nets`] order.
@@ -1431,10 +1498,20 @@ impl Netlist {
             }
         }
 
+        // A netlist that skipped synthesis has one unsupported cell per operator, often
+        // thousands; the first few are listed and the rest summed up by type.
+        const LISTED_UNSUPPORTED: usize = 10;
+        let mut unsupported = 0usize;
+        let mut unlisted: BTreeMap<&str, usize> = BTreeMap::new();
         for (name, cell) in &m.cells.0 {
             let field = format!("cells.{name}");
             let located = |p: Problem| at_key(cells_at, name, p);
             let Some(kind) = GateKind::from_yosys_type(&cell.cell_type) else {
+                unsupported += 1;
+                if unsupported > LISTED_UNSUPPORTED {
+                    *unlisted.entry(cell.cell_type.as_str()).or_default() += 1;
+                    continue;
+                }
                 problems.push(located(
                     Problem::new(
                         file,
@@ -1520,6 +1597,23 @@ impl Netlist {
             if let (true, Some(output)) = (ok, output) {
                 b.gate(kind, name, &inputs, output);
             }
+        }
+        if !unlisted.is_empty() {
+            let types: Vec<String> = unlisted
+                .iter()
+                .map(|(t, n)| format!("`{t}` x {n}"))
+                .collect();
+            problems.push(
+                Problem::new(
+                    file,
+                    format!(
+                        "{} more cells cannot be graded ({}); the same synthesis steps fix them",
+                        unsupported - LISTED_UNSUPPORTED,
+                        types.join(", ")
+                    ),
+                )
+                .field("cells"),
+            );
         }
         if !problems.is_empty() {
             problems.append(&mut b.problems);

@@ -206,6 +206,8 @@ fn report_serializes_with_the_documented_fields() {
         "undetected",
         "coverage_percent",
         "redundant",
+        "unchecked_outputs",
+        "ungraded_gates",
     ] {
         assert!(json.get(key).is_some(), "missing {key}: {json}");
     }
