@@ -4,15 +4,36 @@
 //! checker's own footprint (it should stay flat). Prints lines/s and the ratio to a bare line
 //! scan with hex parsing over the same bytes.
 //!
+//! Each size runs with the default thread count (one worker per core) and, at 1,000,000
+//! lines, also sequentially (`threads = 1`); the CPU time printed beside the wall time shows
+//! how much of the machine the check used (CPU / wall = cores busy).
+//!
 //! Run with `cargo bench --bench check`. Not a test: timings on shared machines are noisy.
+//! `ARITHVEC_BENCH_LINES=N` runs one size only (for instruction counting under callgrind) and
+//! `ARITHVEC_BENCH_THREADS=T` sets the thread count.
 
 use std::io::{BufRead, BufReader, Read};
 use std::time::Instant;
 
 use arithvec::{
-    CheckOptions, Checker, Encoding, Generator, Hits, LogReader, LogRow, Observed, Operation,
-    Radix, Signal, Spec,
+    CheckOptions, Checker, Encoding, Generator, Hits, LogReader, Operation, Radix, Spec,
 };
+
+/// CPU seconds (user + system) this process has used so far, all threads.
+fn cpu_seconds() -> f64 {
+    let stat = std::fs::read_to_string("/proc/self/stat").unwrap_or_default();
+    // Fields after the parenthesised command name; utime and stime are the 12th and 13th,
+    // in clock ticks (100 per second on Linux; proc(5)).
+    let rest = stat.rsplit(')').next().unwrap_or("");
+    let f: Vec<u64> = rest
+        .split_whitespace()
+        .map(|v| v.parse().unwrap_or(0))
+        .collect();
+    if f.len() < 13 {
+        return 0.0;
+    }
+    (f[11] + f[12]) as f64 / 100.0
+}
 
 fn peak_rss_kib() -> u64 {
     std::fs::read_to_string("/proc/self/status")
@@ -127,41 +148,49 @@ fn main() {
     let generator = Generator::new(&spec, Some(0), None);
     let mut one_m = 0.0;
     // ARITHVEC_BENCH_LINES=N runs one size only (for instruction counting under callgrind).
-    let sizes: Vec<u64> = match std::env::var("ARITHVEC_BENCH_LINES") {
-        Ok(n) => vec![n.parse().expect("ARITHVEC_BENCH_LINES is a number")],
-        Err(_) => vec![250_000, 1_000_000, 4_000_000],
+    let single = std::env::var("ARITHVEC_BENCH_LINES").ok();
+    let sizes: Vec<u64> = match &single {
+        Some(n) => vec![n.parse().expect("ARITHVEC_BENCH_LINES is a number")],
+        None => vec![250_000, 1_000_000, 4_000_000],
     };
-    for lines in sizes {
+    let threads: usize = std::env::var("ARITHVEC_BENCH_THREADS")
+        .map(|t| t.parse().expect("ARITHVEC_BENCH_THREADS is a number"))
+        .unwrap_or(0);
+    let mut runs: Vec<(u64, usize)> = sizes.iter().map(|&n| (n, threads)).collect();
+    if single.is_none() && threads != 1 {
+        runs.push((1_000_000, 1));
+    }
+    for (lines, threads) in runs {
         let source = BufReader::with_capacity(1 << 20, LogSource::new(&spec, lines));
+        let cpu = cpu_seconds();
         let t = Instant::now();
         let mut reader = LogReader::new(source, "bench.csv", &spec, Radix::Hex).expect("header");
-        let mut checker = Checker::new(
-            &spec,
-            &generator,
-            None,
-            reader.columns(),
-            CheckOptions::default(),
-        )
-        .expect("checker");
-        let mut row = LogRow::new();
-        while reader.read_row(&mut row).expect("row") {
-            checker.row(row.line, row.index, |s: Signal| {
-                row.get(s).map(|f| Observed {
-                    bits: f.bits,
-                    unknown: f.unknown,
-                })
-            });
-        }
+        let options = CheckOptions {
+            threads,
+            ..CheckOptions::default()
+        };
+        let mut checker =
+            Checker::new(&spec, &generator, None, reader.columns(), options).expect("checker");
+        let bad = checker.check_log(&mut reader, false, |_| {}).expect("read");
+        assert!(bad.is_empty());
         let report = checker.finish();
         let secs = t.elapsed().as_secs_f64();
+        let cpu = cpu_seconds() - cpu;
         assert_eq!(report.vectors, lines);
         assert_eq!(report.failed, 0);
         let rate = lines as f64 / secs;
-        if lines == 1_000_000 {
+        if lines == 1_000_000 && threads != 1 {
             one_m = rate;
         }
+        let mode = if threads == 1 {
+            "1 thread".to_string()
+        } else {
+            format!("threads={threads}")
+        };
         println!(
-            "check {lines:>9} lines: {secs:>6.2} s, {:>6.2} M lines/s, peak RSS {} KiB",
+            "check {lines:>9} lines ({mode}): {secs:>6.2} s wall, {cpu:>5.2} s CPU \
+             ({:.2} cores busy), {:>6.2} M lines/s, peak RSS {} KiB",
+            cpu / secs,
             rate / 1e6,
             peak_rss_kib()
         );

@@ -33,6 +33,8 @@ pub(crate) trait Bits: Copy + Eq + std::fmt::Debug {
     fn slt(&self, o: &Self) -> bool;
     fn trailing_ones(&self) -> u32;
     fn count_ones(&self) -> u32;
+    /// 64-bit limb `i` (little-endian; zero past the capacity).
+    fn limb(&self, i: usize) -> u64;
 
     fn neg(self) -> Self {
         Self::zero().sub(self)
@@ -144,6 +146,14 @@ impl Bits for u128 {
     #[inline]
     fn count_ones(&self) -> u32 {
         u128::count_ones(*self)
+    }
+    #[inline]
+    fn limb(&self, i: usize) -> u64 {
+        if i < 2 {
+            (*self >> (64 * i)) as u64
+        } else {
+            0
+        }
     }
 }
 
@@ -293,6 +303,9 @@ impl Bits for Wide {
     }
     fn count_ones(&self) -> u32 {
         self.0.iter().map(|l| l.count_ones()).sum()
+    }
+    fn limb(&self, i: usize) -> u64 {
+        self.0.get(i).copied().unwrap_or(0)
     }
 }
 

@@ -8,6 +8,10 @@
 //! never passing. The checker holds no rows: memory is the coverage counters, a bitmap of
 //! seen indices and the first few failures. It reads nothing itself; the caller feeds rows.
 
+use std::collections::BTreeMap;
+use std::io::BufRead;
+use std::sync::{mpsc, Arc, Mutex};
+
 use serde::{Deserialize, Serialize};
 
 use crate::classes::Hits;
@@ -15,12 +19,14 @@ use crate::coverage::{
     summarise, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
 };
 use crate::encoding::Value;
+use crate::error::Error;
 use crate::error::Problem;
 use crate::generate::{Generator, RandomStream};
+use crate::log::{find_newline, LineFormat, LineOutcome, LogReader, LogRow};
 use crate::model::{Inputs, Outputs};
 use crate::spec::{Encoding, Signal, Spec};
 use crate::vectorset::{spec_identity, Manifest};
-use crate::word::Word;
+use crate::word::{Word, LIMBS};
 
 /// The plain statement every report carries.
 pub const EVIDENCE_NOTE: &str = "Coverage of corner classes is evidence, not proof of \
@@ -38,6 +44,9 @@ pub struct CheckOptions {
     pub require: Option<f64>,
     /// The command that reproduces a vector, up to the index (e.g. `arithvec repro unit.toml`).
     pub repro_command: String,
+    /// Threads judging and classifying rows (0: one per core, at most 8; 1: all on the
+    /// calling thread). The report is the same for every value.
+    pub threads: usize,
 }
 
 impl Default for CheckOptions {
@@ -47,6 +56,7 @@ impl Default for CheckOptions {
             at_least: 1,
             require: None,
             repro_command: "arithvec repro SPEC".into(),
+            threads: 0,
         }
     }
 }
@@ -216,28 +226,18 @@ pub struct CheckReport {
     pub counts: CoverageCounts,
 }
 
-/// Where the checker gets a vector's inputs by index.
-struct VectorLookup<'g> {
-    generator: &'g Generator,
-    first: u64,
-    count: u64,
-    /// For a selected set: position -> source index.
-    selection: Option<Vec<u64>>,
+/// Where a worker gets a vector's inputs by index: the directed list, or the random stream,
+/// which is read sequentially while the indices run in order (the usual case).
+#[derive(Default)]
+struct VectorLookup {
     stream: Option<(u64, RandomStream)>,
 }
 
-impl VectorLookup<'_> {
-    fn get(&mut self, index: u64) -> Option<Inputs> {
-        if index < self.first || index >= self.first + self.count {
-            return None;
-        }
-        let index = match &self.selection {
-            Some(map) => *map.get(index as usize)?,
-            None => index,
-        };
-        let d = self.generator.directed().len() as u64;
+impl VectorLookup {
+    fn get(&mut self, generator: &Generator, index: u64) -> Option<Inputs> {
+        let d = generator.directed().len() as u64;
         if index < d {
-            return self.generator.directed().get(index as usize).copied();
+            return generator.directed().get(index as usize).copied();
         }
         let j = index - d;
         match &mut self.stream {
@@ -246,7 +246,7 @@ impl VectorLookup<'_> {
                 Some(s.next_inputs())
             }
             _ => {
-                let mut s = self.generator.random_stream(j);
+                let mut s = generator.random_stream(j);
                 let v = s.next_inputs();
                 self.stream = Some((j + 1, s));
                 Some(v)
@@ -301,30 +301,520 @@ pub struct Observed {
     pub unknown: Word,
 }
 
-/// Streams rows and accumulates the verdict.
-pub struct Checker<'g> {
+/// What every worker reads and nobody changes during a check.
+struct Shared {
     spec: Spec,
-    generator: &'g Generator,
-    lookup: Option<VectorLookup<'g>>,
-    columns: Vec<Signal>,
-    /// The spec's inputs and outputs with their widths, in layout order.
-    input_fields: Vec<(Signal, u32)>,
-    output_fields: Vec<(Signal, u32)>,
+    generator: Generator,
+    /// The vector set's range (first index, count), when a set was given.
+    set: Option<(u64, u64)>,
+    /// For a selected (compacted) set: position -> source index.
+    selection: Option<Vec<u64>>,
+    /// The spec's inputs, then its outputs, with their widths, in layout order. A staged row
+    /// holds one value per entry.
+    fields: Vec<(Signal, u32)>,
+    /// How many of `fields` are inputs.
+    inputs: usize,
     options: CheckOptions,
-    logs: Vec<String>,
-    coverage: Coverage,
-    hits: Hits,
-    seen: Seen,
-    max_index_seen: Option<u64>,
-    position: u64,
+    /// 64-bit limbs stored per value (the unit's width in limbs).
+    limbs: usize,
+}
+
+impl Shared {
+    /// The index in the source set of vector `index` of this set (they differ only for a
+    /// selected set).
+    fn source_index(&self, index: u64) -> Option<u64> {
+        match &self.selection {
+            Some(map) => map.get(index as usize).copied(),
+            None => Some(index),
+        }
+    }
+
+    /// u64 entries one staged row takes: bits and unknown mask per field.
+    fn row_stride(&self) -> usize {
+        self.fields.len() * 2 * self.limbs
+    }
+
+    /// The observed value of field `k` of a staged row.
+    fn observed(&self, values: &[u64], k: usize) -> Observed {
+        let l = self.limbs;
+        let mut bits = [0u64; LIMBS];
+        let mut unknown = [0u64; LIMBS];
+        bits[..l].copy_from_slice(&values[k * 2 * l..k * 2 * l + l]);
+        unknown[..l].copy_from_slice(&values[k * 2 * l + l..(k + 1) * 2 * l]);
+        Observed {
+            bits: Word::from_limbs(bits),
+            unknown: Word::from_limbs(unknown),
+        }
+    }
+}
+
+/// One row waiting to be judged; its field values are in the batch's `values`.
+#[derive(Clone, Copy)]
+struct Staged {
+    line: usize,
+    index: u64,
+    /// The log gave the index (else it is the row's position, set on admission).
+    given: bool,
+    /// Bit k: field k of [`Shared::fields`] was in the log.
+    present: u16,
+}
+
+/// Rows handed to a worker together, in log order.
+#[derive(Default)]
+struct Batch {
+    seq: u64,
+    rows: Vec<Staged>,
+    values: Vec<u64>,
+}
+
+/// What a worker found in one batch; merged in batch order.
+#[derive(Default)]
+struct Verdicts {
+    seq: u64,
     vectors: u64,
     passed: u64,
     failed: u64,
     unknown: u64,
+    /// The batch's first failures (at most `max_failures`), in log order.
     failures: Vec<Failure>,
-    problems: LogProblems,
-    /// Out-of-step rows, first index, first line.
     out_of_step: Option<OutOfStep>,
+}
+
+/// A worker's own state: its coverage share and scratch space.
+struct Worker {
+    coverage: Coverage,
+    hits: Hits,
+    lookup: VectorLookup,
+    /// Scratch row for parsing.
+    row: LogRow,
+    /// A spent batch to parse into (sequential checks).
+    spare_batch: Batch,
+}
+
+impl Worker {
+    fn new(shared: &Shared) -> Worker {
+        Worker {
+            coverage: Coverage::new(shared.generator.catalogue()),
+            hits: Hits::new(),
+            lookup: VectorLookup::default(),
+            row: LogRow::new(),
+            spare_batch: Batch::default(),
+        }
+    }
+
+    /// Judges and classifies every row of `batch`.
+    fn run(&mut self, shared: &Shared, batch: &Batch) -> Verdicts {
+        let mut v = Verdicts {
+            seq: batch.seq,
+            ..Verdicts::default()
+        };
+        let stride = shared.row_stride();
+        for (r, row) in batch.rows.iter().enumerate() {
+            let values = &batch.values[r * stride..(r + 1) * stride];
+            self.row(shared, row, values, &mut v);
+        }
+        v
+    }
+
+    fn row(&mut self, shared: &Shared, row: &Staged, values: &[u64], v: &mut Verdicts) {
+        let (index, line) = (row.index, row.line);
+        let present = |k: usize| row.present >> k & 1 == 1;
+        let narrow = shared.limbs == 1;
+        let from_set = match shared.set {
+            Some(_) => shared
+                .source_index(index)
+                .and_then(|i| self.lookup.get(&shared.generator, i)),
+            None => None,
+        };
+        // Operands: the log's own where present, else the set's.
+        let mut inputs = from_set.unwrap_or_default();
+        let mut operand_unknown = false;
+        let mut from_log = false;
+        for (k, &(sig, _)) in shared.fields[..shared.inputs].iter().enumerate() {
+            if present(k) {
+                from_log = true;
+                if narrow {
+                    operand_unknown |= values[k * 2 + 1] != 0;
+                    inputs.set(sig, Word::from_u64(values[k * 2]));
+                } else {
+                    let o = shared.observed(values, k);
+                    operand_unknown |= !o.unknown.is_zero();
+                    inputs.set(sig, o.bits);
+                }
+            }
+        }
+        if let (Some(set_inputs), true) = (from_set, from_log) {
+            let input_fields = &shared.fields[..shared.inputs];
+            if !operand_unknown && !same_inputs(input_fields, &set_inputs, &inputs) {
+                let s = v.out_of_step.get_or_insert(OutOfStep {
+                    count: 0,
+                    first_index: index,
+                    first_line: line,
+                });
+                s.count += 1;
+            }
+        }
+        v.vectors += 1;
+        let cat = shared.generator.catalogue();
+        let expected = cat.evaluate(&inputs, &mut self.hits);
+        let mut wrong = false;
+        let mut unknown = operand_unknown;
+        let judge = |exp: &Outputs| {
+            let (mut wrong, mut unknown) = (false, false);
+            for (k, &(sig, w)) in shared.fields.iter().enumerate().skip(shared.inputs) {
+                if !present(k) {
+                    continue;
+                }
+                if w <= 64 {
+                    // Fields up to 64 bits: one limb, no masks to build.
+                    let m = u64::MAX >> (64 - w);
+                    let l = shared.limbs;
+                    let (bits, unk) = (values[k * 2 * l], values[k * 2 * l + l] & m);
+                    wrong |= (bits ^ exp.get_low(sig)) & !unk & m != 0;
+                    unknown |= unk != 0;
+                } else {
+                    let o = shared.observed(values, k);
+                    let e = exp.get(sig).masked(w);
+                    let diff = o.bits.xor(&e).and(&o.unknown.not(w)).masked(w);
+                    wrong |= !diff.is_zero();
+                    unknown |= !o.unknown.masked(w).is_zero();
+                }
+            }
+            (wrong, unknown)
+        };
+        if !operand_unknown {
+            let (w, u) = judge(&expected);
+            wrong = w;
+            unknown = u;
+            if w || u {
+                if let Some(alt) = cat.model().alternative(&expected) {
+                    let (w2, u2) = judge(&alt);
+                    if !w2 && !u2 {
+                        wrong = false;
+                        unknown = false;
+                    }
+                }
+            }
+        }
+        let failed = wrong || unknown;
+        self.coverage.record(&self.hits, failed);
+        if wrong {
+            v.failed += 1;
+        } else if unknown {
+            v.unknown += 1;
+        } else {
+            v.passed += 1;
+        }
+        if failed && v.failures.len() < shared.options.max_failures {
+            let field = |sig: Signal| {
+                let k = shared.fields.iter().position(|&(s, _)| s == sig)?;
+                present(k).then(|| shared.observed(values, k))
+            };
+            let f = describe(
+                shared, &self.hits, index, line, &inputs, &expected, &field, wrong,
+            );
+            v.failures.push(f);
+        }
+    }
+}
+
+/// Rows per batch: enough to make hand-offs rare, few enough to keep memory small.
+fn batch_rows(limbs: usize) -> usize {
+    (4096 / limbs).max(256)
+}
+
+/// Verdicts merged so far, batch by batch in order.
+struct Merger {
+    verdicts: Verdicts,
+    /// The sequence number of the next batch to merge.
+    next: u64,
+    max_failures: usize,
+}
+
+impl Merger {
+    fn merge(&mut self, v: Verdicts) {
+        let m = &mut self.verdicts;
+        m.vectors += v.vectors;
+        m.passed += v.passed;
+        m.failed += v.failed;
+        m.unknown += v.unknown;
+        let room = self.max_failures.saturating_sub(m.failures.len());
+        m.failures.extend(v.failures.into_iter().take(room));
+        if let Some(s) = v.out_of_step {
+            match &mut m.out_of_step {
+                Some(first) => first.count += s.count,
+                None => m.out_of_step = Some(s),
+            }
+        }
+        self.next += 1;
+    }
+}
+
+/// Whole log lines read by the calling thread, to be parsed by a worker.
+#[derive(Default)]
+struct Block {
+    seq: u64,
+    /// The lines, LF line ends kept.
+    bytes: Vec<u8>,
+    first_line: usize,
+}
+
+/// A parsed block: its rows staged in log order (index not yet admitted) and its malformed
+/// lines, each with the number of rows before it in the block.
+struct Parsed {
+    block: Block,
+    batch: Batch,
+    bad: Vec<(usize, Problem)>,
+}
+
+/// Work for a pool thread.
+enum Job {
+    Parse(Block, Batch, Arc<LineFormat>, Arc<str>),
+    Judge(Batch),
+}
+
+/// Finished work from a pool thread.
+enum Done {
+    Parsed(Parsed),
+    Judged(Verdicts, Batch),
+}
+
+impl Worker {
+    /// Parses the lines of `block` into a batch of staged rows.
+    fn parse(
+        &mut self,
+        shared: &Shared,
+        block: Block,
+        mut batch: Batch,
+        format: &LineFormat,
+        file: &str,
+    ) -> Parsed {
+        batch.rows.clear();
+        batch.values.clear();
+        let mut bad = Vec::new();
+        let mut rest = &block.bytes[..];
+        let mut line_no = block.first_line;
+        while !rest.is_empty() {
+            let (line, next) = match find_newline(rest) {
+                Some(end) => (&rest[..end], &rest[end + 1..]),
+                None => (rest, &rest[rest.len()..]),
+            };
+            rest = next;
+            match format.parse_line(line, line_no, file, &mut self.row) {
+                LineOutcome::Skipped => {}
+                LineOutcome::Row => {
+                    let present = stage_fields(shared, &self.row, &mut batch.values);
+                    batch.rows.push(Staged {
+                        line: line_no,
+                        index: self.row.index.unwrap_or(0),
+                        given: self.row.index.is_some(),
+                        present,
+                    });
+                }
+                LineOutcome::Bad(problem) => bad.push((batch.rows.len(), *problem)),
+            }
+            line_no += 1;
+        }
+        Parsed { block, batch, bad }
+    }
+}
+
+/// Copies the values of the spec's fields from a log row into `values` (bits then unknown
+/// mask, [`Shared::limbs`] limbs each); returns the presence mask.
+#[inline]
+fn stage_fields(shared: &Shared, row: &LogRow, values: &mut Vec<u64>) -> u16 {
+    let l = shared.limbs;
+    let mut present = 0u16;
+    for (k, &(sig, _)) in shared.fields.iter().enumerate() {
+        match row.get(sig) {
+            Some(f) => {
+                present |= 1 << k;
+                values.extend_from_slice(&f.bits.limbs()[..l]);
+                values.extend_from_slice(&f.unknown.limbs()[..l]);
+            }
+            None => values.extend(std::iter::repeat_n(0, 2 * l)),
+        }
+    }
+    present
+}
+
+/// Bytes of log read per block: a few thousand lines of a narrow unit.
+const BLOCK_BYTES: usize = 256 * 1024;
+
+/// The worker threads of a parallel check and the work in flight.
+struct Pool {
+    jobs: Option<mpsc::Sender<Job>>,
+    results: mpsc::Receiver<Done>,
+    workers: Vec<std::thread::JoinHandle<Coverage>>,
+    /// Jobs sent and not yet received back.
+    in_flight: usize,
+    /// Verdicts received out of order, waiting for their turn.
+    parked: BTreeMap<u64, Verdicts>,
+    /// Parsed blocks received out of order, waiting for their turn.
+    parsed: BTreeMap<u64, Parsed>,
+    /// Spent buffers, for reuse.
+    spare_batches: Vec<Batch>,
+    spare_blocks: Vec<Block>,
+}
+
+impl Pool {
+    fn start(shared: &Arc<Shared>, threads: usize) -> Pool {
+        let (job_tx, job_rx) = mpsc::channel::<Job>();
+        let job_rx = Arc::new(Mutex::new(job_rx));
+        let (result_tx, results) = mpsc::channel();
+        let workers = (0..threads)
+            .map(|_| {
+                let shared = Arc::clone(shared);
+                let job_rx = Arc::clone(&job_rx);
+                let result_tx = result_tx.clone();
+                std::thread::spawn(move || {
+                    let mut worker = Worker::new(&shared);
+                    loop {
+                        // The lock is held only while taking one job.
+                        let job = match job_rx.lock() {
+                            Ok(rx) => rx.recv(),
+                            Err(_) => break,
+                        };
+                        let done = match job {
+                            Ok(Job::Parse(block, batch, format, file)) => {
+                                Done::Parsed(worker.parse(&shared, block, batch, &format, &file))
+                            }
+                            Ok(Job::Judge(batch)) => {
+                                Done::Judged(worker.run(&shared, &batch), batch)
+                            }
+                            Err(_) => break,
+                        };
+                        if result_tx.send(done).is_err() {
+                            break;
+                        }
+                    }
+                    worker.coverage
+                })
+            })
+            .collect();
+        Pool {
+            jobs: Some(job_tx),
+            results,
+            workers,
+            in_flight: 0,
+            parked: BTreeMap::new(),
+            parsed: BTreeMap::new(),
+            spare_batches: Vec::new(),
+            spare_blocks: Vec::new(),
+        }
+    }
+
+    /// Jobs in flight beyond which the caller waits: a few per worker keep them busy and
+    /// memory bounded.
+    fn limit(&self) -> usize {
+        3 * self.workers.len() + 1
+    }
+
+    fn send(&mut self, job: Job) {
+        self.in_flight += 1;
+        let sent = self
+            .jobs
+            .as_ref()
+            .is_some_and(|jobs| jobs.send(job).is_ok());
+        if !sent {
+            // Only possible when every worker is gone: receive() passes on why.
+            loop {
+                let _ = self.receive();
+            }
+        }
+    }
+
+    /// Files finished work: parsed blocks wait for the caller, verdicts are merged as soon
+    /// as their turn has come.
+    fn accept(&mut self, done: Done, merger: &mut Merger) {
+        match done {
+            Done::Parsed(p) => {
+                self.parsed.insert(p.block.seq, p);
+            }
+            Done::Judged(verdicts, mut batch) => {
+                batch.rows.clear();
+                batch.values.clear();
+                self.spare_batches.push(batch);
+                self.parked.insert(verdicts.seq, verdicts);
+                while let Some(v) = self.parked.remove(&merger.next) {
+                    merger.merge(v);
+                }
+            }
+        }
+    }
+
+    /// Files whatever work is done, without waiting.
+    fn accept_ready(&mut self, merger: &mut Merger) {
+        while let Ok(done) = self.results.try_recv() {
+            self.in_flight -= 1;
+            self.accept(done, merger);
+        }
+    }
+
+    /// Waits for one job to come back. A worker that died (it would be a bug: workers do
+    /// not fail on input) has its panic passed on rather than leaving the check hanging.
+    fn receive(&mut self) -> Done {
+        loop {
+            match self
+                .results
+                .recv_timeout(std::time::Duration::from_millis(200))
+            {
+                Ok(done) => {
+                    self.in_flight -= 1;
+                    return done;
+                }
+                Err(_) => {
+                    if let Some(i) = self.workers.iter().position(|w| w.is_finished()) {
+                        let worker = self.workers.swap_remove(i);
+                        match worker.join() {
+                            Err(panic) => std::panic::resume_unwind(panic),
+                            Ok(_) => panic!("a check worker stopped early"),
+                        }
+                    }
+                }
+            }
+        }
+    }
+}
+
+/// Where [`Checker::check_log`] stands with the log's lines.
+struct Intake {
+    lenient: bool,
+    /// Malformed lines kept for the caller (not lenient).
+    bad_lines: Vec<Problem>,
+    /// Reading stopped at too many malformed lines.
+    stopped: bool,
+    /// Rows read so far.
+    rows: u64,
+}
+
+/// Streams rows and accumulates the verdict.
+///
+/// Rows are staged in batches; a batch is judged and classified on a worker thread (or on
+/// the calling thread when `threads` is 1) and its verdicts are merged in batch order. What
+/// depends on row order (index positions, duplicates, out-of-range rows) is decided when the
+/// row arrives; everything else is either a sum (counts, coverage) or taken in batch order
+/// (the first failures, the first out-of-step row), so reports are identical whatever the
+/// number of threads.
+pub struct Checker<'g> {
+    shared: Arc<Shared>,
+    generator: &'g Generator,
+    logs: Vec<String>,
+    seen: Seen,
+    max_index_seen: Option<u64>,
+    position: u64,
+    problems: LogProblems,
+    /// The batch being filled.
+    batch: Batch,
+    batch_rows: usize,
+    /// Bytes of log per block in [`Checker::check_log`].
+    block_bytes: usize,
+    next_seq: u64,
+    merger: Merger,
+    /// The worker pool, or None for a sequential check.
+    pool: Option<Pool>,
+    /// The sequential check's worker.
+    local: Option<Worker>,
 }
 
 impl<'g> Checker<'g> {
@@ -339,15 +829,8 @@ impl<'g> Checker<'g> {
         columns: &[Signal],
         options: CheckOptions,
     ) -> Result<Checker<'g>, Problem> {
-        let lookup = set.map(|m| VectorLookup {
-            generator,
-            first: m.first_index,
-            count: m.vectors,
-            selection: m.selection.as_ref().map(|s| s.indices.clone()),
-            stream: None,
-        });
         let has_all_inputs = spec.inputs().iter().all(|(s, _)| columns.contains(s));
-        if !has_all_inputs && lookup.is_none() {
+        if !has_all_inputs && set.is_none() {
             let missing: Vec<&str> = spec
                 .inputs()
                 .into_iter()
@@ -369,37 +852,51 @@ impl<'g> Checker<'g> {
                 "the log has no output column to check",
             ));
         }
-        Ok(Checker {
+        let threads = match options.threads {
+            0 => std::thread::available_parallelism().map_or(1, |n| n.get().min(8)),
+            n => n,
+        };
+        let inputs = spec.inputs();
+        let shared = Arc::new(Shared {
             spec: spec.clone(),
-            generator,
-            lookup,
-            columns: columns.to_vec(),
-            input_fields: spec
-                .inputs()
+            generator: generator.clone(),
+            set: set.map(|m| (m.first_index, m.vectors)),
+            selection: set.and_then(|m| m.selection.as_ref().map(|s| s.indices.clone())),
+            fields: inputs
                 .iter()
+                .chain(spec.outputs().iter())
                 .map(|&(s, _)| (s, s.width(spec.width)))
                 .collect(),
-            output_fields: spec
-                .outputs()
-                .iter()
-                .map(|&(s, _)| (s, s.width(spec.width)))
-                .collect(),
+            inputs: inputs.len(),
             options,
+            limbs: spec.width.div_ceil(64) as usize,
+        });
+        let (pool, local) = if threads > 1 {
+            (Some(Pool::start(&shared, threads)), None)
+        } else {
+            (None, Some(Worker::new(&shared)))
+        };
+        Ok(Checker {
+            batch_rows: batch_rows(shared.limbs),
+            block_bytes: BLOCK_BYTES,
+            generator,
             logs: Vec::new(),
-            coverage: Coverage::new(generator.catalogue()),
-            hits: Hits::new(),
             seen: Seen::default(),
             max_index_seen: None,
             // A log without an index column starts at the set's first vector, so a shard's
             // testbench that plays its own stimulus.hex from line one is checked in step.
             position: set.map_or(0, |m| m.first_index),
-            vectors: 0,
-            passed: 0,
-            failed: 0,
-            unknown: 0,
-            failures: Vec::new(),
             problems: LogProblems::default(),
-            out_of_step: None,
+            batch: Batch::default(),
+            next_seq: 0,
+            merger: Merger {
+                verdicts: Verdicts::default(),
+                next: 0,
+                max_failures: shared.options.max_failures,
+            },
+            pool,
+            local,
+            shared,
         })
     }
 
@@ -423,6 +920,211 @@ impl<'g> Checker<'g> {
         index: Option<u64>,
         field: impl Fn(Signal) -> Option<Observed>,
     ) {
+        let Some(index) = self.admit(line, index) else {
+            return;
+        };
+        let shared = Arc::clone(&self.shared);
+        let l = shared.limbs;
+        let mut present = 0u16;
+        for (k, &(sig, _)) in shared.fields.iter().enumerate() {
+            match field(sig) {
+                Some(o) => {
+                    present |= 1 << k;
+                    self.batch.values.extend_from_slice(&o.bits.limbs()[..l]);
+                    self.batch.values.extend_from_slice(&o.unknown.limbs()[..l]);
+                }
+                None => self.batch.values.extend(std::iter::repeat_n(0, 2 * l)),
+            }
+        }
+        self.stage(line, index, present);
+    }
+
+    /// Checks one row as read by a [`LogReader`]: the same as [`Checker::row`] with the
+    /// row's fields, without copying whole words.
+    pub fn log_row(&mut self, row: &LogRow) {
+        let Some(index) = self.admit(row.line, row.index) else {
+            return;
+        };
+        let present = stage_fields(&self.shared, row, &mut self.batch.values);
+        self.stage(row.line, index, present);
+    }
+
+    /// Checks every remaining row of `reader`'s log: this thread reads blocks of lines, the
+    /// worker threads parse, judge and classify them (all on this thread when `threads` is
+    /// 1). Malformed lines are counted in the report when `lenient` (as by
+    /// [`Checker::bad_line`]); otherwise the first 20 are returned and reading stops at the
+    /// 21st, the log being bad input. `progress` is called now and then with the number of
+    /// rows read so far. Gives the same report as feeding every row to [`Checker::log_row`].
+    pub fn check_log<R: BufRead>(
+        &mut self,
+        reader: &mut LogReader<R>,
+        lenient: bool,
+        mut progress: impl FnMut(u64),
+    ) -> Result<Vec<Problem>, Error> {
+        // Rows staged one by one before this go first.
+        self.dispatch();
+        let format = reader.line_format();
+        let file: Arc<str> = Arc::from(reader.file());
+        let mut intake = Intake {
+            lenient,
+            bad_lines: Vec::new(),
+            stopped: false,
+            rows: 0,
+        };
+        let mut pool = self.pool.take();
+        let result = if pool.is_none() {
+            self.check_log_here(reader, &format, &file, &mut intake, &mut progress)
+        } else {
+            self.check_log_pooled(
+                &mut pool,
+                reader,
+                &format,
+                &file,
+                &mut intake,
+                &mut progress,
+            )
+        };
+        self.pool = pool;
+        result.map(|()| intake.bad_lines)
+    }
+
+    /// The sequential [`Checker::check_log`].
+    fn check_log_here<R: BufRead>(
+        &mut self,
+        reader: &mut LogReader<R>,
+        format: &LineFormat,
+        file: &str,
+        intake: &mut Intake,
+        progress: &mut impl FnMut(u64),
+    ) -> Result<(), Error> {
+        let mut block = Block::default();
+        while !intake.stopped {
+            let Some(first) = reader.read_block(&mut block.bytes, self.block_bytes)? else {
+                break;
+            };
+            block.first_line = first;
+            let Some(worker) = self.local.as_mut() else {
+                break;
+            };
+            let spare = std::mem::take(&mut worker.spare_batch);
+            let parsed = worker.parse(&self.shared, block, spare, format, file);
+            block = self.take_parsed(&mut None, parsed, intake);
+            progress(intake.rows);
+        }
+        Ok(())
+    }
+
+    /// The parallel [`Checker::check_log`]: blocks are parsed in any order and taken back in
+    /// log order, so admission (indices, duplicates) sees rows exactly as a sequential read.
+    fn check_log_pooled<R: BufRead>(
+        &mut self,
+        pool: &mut Option<Pool>,
+        reader: &mut LogReader<R>,
+        format: &Arc<LineFormat>,
+        file: &Arc<str>,
+        intake: &mut Intake,
+        progress: &mut impl FnMut(u64),
+    ) -> Result<(), Error> {
+        let (mut next_block, mut next_parsed) = (0u64, 0u64);
+        let mut end = false;
+        loop {
+            let Some(p) = pool.as_mut() else {
+                return Ok(());
+            };
+            // Keep the workers fed, with a bounded number of blocks ahead.
+            while !end && !intake.stopped && p.in_flight + p.parsed.len() < p.limit() {
+                let mut block = p.spare_blocks.pop().unwrap_or_default();
+                match reader.read_block(&mut block.bytes, self.block_bytes)? {
+                    Some(first) => {
+                        block.first_line = first;
+                        block.seq = next_block;
+                        next_block += 1;
+                        let batch = p.spare_batches.pop().unwrap_or_default();
+                        p.send(Job::Parse(
+                            block,
+                            batch,
+                            Arc::clone(format),
+                            Arc::clone(file),
+                        ));
+                    }
+                    None => end = true,
+                }
+            }
+            while let Some(parsed) = pool.as_mut().and_then(|p| p.parsed.remove(&next_parsed)) {
+                next_parsed += 1;
+                let block = self.take_parsed(pool, parsed, intake);
+                if let Some(p) = pool.as_mut() {
+                    p.spare_blocks.push(block);
+                }
+                progress(intake.rows);
+            }
+            let Some(p) = pool.as_mut() else {
+                return Ok(());
+            };
+            if p.in_flight == 0 && (end || intake.stopped) {
+                return Ok(());
+            }
+            let done = p.receive();
+            p.accept(done, &mut self.merger);
+        }
+    }
+
+    /// Admits the rows of a parsed block in order, handles its malformed lines, and hands the
+    /// admitted rows on to be judged. Returns the block's buffer for reuse.
+    fn take_parsed(
+        &mut self,
+        pool: &mut Option<Pool>,
+        parsed: Parsed,
+        intake: &mut Intake,
+    ) -> Block {
+        let Parsed {
+            block,
+            mut batch,
+            bad,
+        } = parsed;
+        let stride = self.shared.row_stride();
+        let mut bad = bad.into_iter().peekable();
+        let mut kept = 0;
+        let rows = batch.rows.len();
+        for r in 0..=rows {
+            while let Some((_, problem)) = bad.next_if(|(at, _)| *at == r) {
+                if intake.lenient {
+                    self.bad_line(&problem);
+                } else if intake.bad_lines.len() < 20 {
+                    intake.bad_lines.push(problem);
+                } else {
+                    intake.stopped = true;
+                    break;
+                }
+            }
+            if intake.stopped || r == rows {
+                break;
+            }
+            let row = batch.rows[r];
+            intake.rows += 1;
+            if let Some(index) = self.admit(row.line, row.given.then_some(row.index)) {
+                batch.rows[kept] = Staged { index, ..row };
+                if kept != r {
+                    batch
+                        .values
+                        .copy_within(r * stride..(r + 1) * stride, kept * stride);
+                }
+                kept += 1;
+            }
+        }
+        batch.rows.truncate(kept);
+        batch.values.truncate(kept * stride);
+        if let Some(spent) = self.submit(pool, batch) {
+            if let Some(worker) = self.local.as_mut() {
+                worker.spare_batch = spent;
+            }
+        }
+        block
+    }
+
+    /// The order-dependent part of a row: its index, duplicates and out-of-range indices.
+    /// Returns the index when the row is to be judged.
+    fn admit(&mut self, line: usize, index: Option<u64>) -> Option<u64> {
         let index = index.unwrap_or(self.position);
         self.position += 1;
         if self.seen.mark(index) {
@@ -430,221 +1132,108 @@ impl<'g> Checker<'g> {
             if self.problems.duplicates.len() < 20 {
                 self.problems.duplicates.push((index, line));
             }
-            return;
+            return None;
         }
         self.max_index_seen = Some(self.max_index_seen.map_or(index, |m| m.max(index)));
-        let from_set = match self.lookup.as_mut() {
-            Some(l) => {
-                let v = l.get(index);
-                if v.is_none() {
-                    if self.problems.out_of_range.len() < 20 {
-                        self.problems.out_of_range.push((index, line));
-                    }
-                    return;
+        if let Some((first, count)) = self.shared.set {
+            if index < first || index >= first + count {
+                if self.problems.out_of_range.len() < 20 {
+                    self.problems.out_of_range.push((index, line));
                 }
-                v
-            }
-            None => None,
-        };
-        // Operands: the log's own where present, else the set's.
-        let mut inputs = from_set.unwrap_or_default();
-        let mut operand_unknown = false;
-        let mut from_log = false;
-        for &(sig, _) in &self.input_fields {
-            if let Some(o) = field(sig) {
-                from_log = true;
-                if !o.unknown.is_zero() {
-                    operand_unknown = true;
-                }
-                inputs.set(sig, o.bits);
+                return None;
             }
         }
-        if let (Some(set_inputs), true) = (from_set, from_log) {
-            if !operand_unknown && !same_inputs(&self.input_fields, &set_inputs, &inputs) {
-                let s = self.out_of_step.get_or_insert(OutOfStep {
-                    count: 0,
-                    first_index: index,
-                    first_line: line,
-                });
-                s.count += 1;
-            }
-        }
-        self.vectors += 1;
-        let cat = self.generator.catalogue();
-        let expected = cat.evaluate(&inputs, &mut self.hits);
-        let alternative = cat.model().alternative(&expected);
-        let mut wrong = false;
-        let mut unknown = operand_unknown;
-        let judge = |exp: &Outputs| {
-            let (mut wrong, mut unknown) = (false, false);
-            for &(sig, w) in &self.output_fields {
-                if let Some(o) = field(sig) {
-                    let e = exp.get(sig);
-                    if w <= 64 {
-                        // Fields up to 64 bits: one limb, no masks to build.
-                        let m = u64::MAX >> (64 - w);
-                        let unk = o.unknown.low_u64() & m;
-                        wrong |= (o.bits.low_u64() ^ e.low_u64()) & !unk & m != 0;
-                        unknown |= unk != 0;
-                    } else {
-                        let e = e.masked(w);
-                        let diff = o.bits.xor(&e).and(&o.unknown.not(w)).masked(w);
-                        wrong |= !diff.is_zero();
-                        unknown |= !o.unknown.masked(w).is_zero();
-                    }
-                }
-            }
-            (wrong, unknown)
-        };
-        if !operand_unknown {
-            let (w, u) = judge(&expected);
-            wrong = w;
-            unknown = u;
-            if let (true, Some(alt)) = (w || u, alternative.as_ref()) {
-                let (w2, u2) = judge(alt);
-                if !w2 && !u2 {
-                    wrong = false;
-                    unknown = false;
-                }
-            }
-        }
-        let failed = wrong || unknown;
-        self.coverage.record(&self.hits, failed);
-        if wrong {
-            self.failed += 1;
-        } else if unknown {
-            self.unknown += 1;
-        } else {
-            self.passed += 1;
-        }
-        if failed && self.failures.len() < self.options.max_failures {
-            let f = self.describe(index, line, &inputs, &expected, &field, wrong);
-            self.failures.push(f);
+        Some(index)
+    }
+
+    fn stage(&mut self, line: usize, index: u64, present: u16) {
+        self.batch.rows.push(Staged {
+            line,
+            index,
+            given: true,
+            present,
+        });
+        if self.batch.rows.len() >= self.batch_rows {
+            self.dispatch();
         }
     }
 
-    fn describe(
-        &self,
-        index: u64,
-        line: usize,
-        inputs: &Inputs,
-        expected: &Outputs,
-        field: &impl Fn(Signal) -> Option<Observed>,
-        wrong: bool,
-    ) -> Failure {
-        let spec = &self.spec;
-        let cat = self.generator.catalogue();
-        let inputs_report = spec
-            .inputs()
-            .into_iter()
-            .map(|(sig, port)| {
-                let w = sig.width(spec.width);
-                let v = inputs.get(sig);
-                FieldValueReport {
-                    port: port.to_string(),
-                    signal: sig.key().to_string(),
-                    hex: v.to_hex(w),
-                    value: decoded(sig, &v, w, spec.encoding),
+    /// Hands the current batch to a worker (or judges it here when sequential).
+    fn dispatch(&mut self) {
+        if self.batch.rows.is_empty() {
+            return;
+        }
+        let mut pool = self.pool.take();
+        let spare = pool
+            .as_mut()
+            .and_then(|p| p.spare_batches.pop())
+            .unwrap_or_default();
+        let batch = std::mem::replace(&mut self.batch, spare);
+        if let Some(spent) = self.submit(&mut pool, batch) {
+            self.batch = spent;
+        }
+        self.pool = pool;
+    }
+
+    /// Judges `batch` on the pool, or here when there is none; returns the batch's buffer
+    /// when it is free again at once (judged here, or empty).
+    fn submit(&mut self, pool: &mut Option<Pool>, mut batch: Batch) -> Option<Batch> {
+        if batch.rows.is_empty() {
+            return Some(batch);
+        }
+        batch.seq = self.next_seq;
+        self.next_seq += 1;
+        match pool {
+            None => {
+                let worker = self.local.as_mut()?;
+                let verdicts = worker.run(&self.shared, &batch);
+                self.merger.merge(verdicts);
+                batch.rows.clear();
+                batch.values.clear();
+                Some(batch)
+            }
+            Some(pool) => {
+                pool.send(Job::Judge(batch));
+                while pool.in_flight >= pool.limit() {
+                    let done = pool.receive();
+                    pool.accept(done, &mut self.merger);
                 }
-            })
-            .collect();
-        let mut outputs = Vec::new();
-        for (sig, port) in spec.outputs() {
-            let Some(o) = field(sig) else { continue };
-            let w = sig.width(spec.width);
-            let e = expected.get(sig).masked(w);
-            let unknown = o.unknown.masked(w);
-            let diff = o.bits.xor(&e).and(&unknown.not(w)).masked(w);
-            let status = if !diff.is_zero() {
-                "wrong"
-            } else if !unknown.is_zero() {
-                "unknown"
-            } else {
-                "ok"
-            };
-            let got_hex: String = (0..w.div_ceil(4))
-                .rev()
-                .map(|d| {
-                    let nib = o.bits.extract(d * 4, 4).low_u64();
-                    let unk = unknown.extract(d * 4, 4).low_u64();
-                    if unk != 0 {
-                        'x'
-                    } else {
-                        char::from_digit(nib as u32, 16).unwrap_or('?')
-                    }
-                })
-                .collect();
-            let got_bin = (w <= 64).then(|| {
-                (0..w)
-                    .rev()
-                    .map(|i| {
-                        if unknown.bit(i) {
-                            'x'
-                        } else if o.bits.bit(i) {
-                            '1'
-                        } else {
-                            '0'
-                        }
-                    })
-                    .collect()
-            });
-            let got_as = if w > 1 && unknown.is_zero() && status == "wrong" {
-                Encoding::ALL
-                    .iter()
-                    .map(|&enc| {
-                        (
-                            enc.name().to_string(),
-                            Value::decode(&o.bits, w, enc).to_string(),
-                        )
-                    })
-                    .collect()
-            } else {
-                Vec::new()
-            };
-            outputs.push(OutputReport {
-                port: port.to_string(),
-                signal: sig.key().to_string(),
-                status: status.to_string(),
-                expected: e.to_hex(w),
-                got: got_hex,
-                expected_bin: (w <= 64).then(|| e.to_bin(w)),
-                got_bin,
-                differing_bits: diff.set_bits().collect(),
-                unknown_bits: unknown.set_bits().collect(),
-                expected_value: decoded(sig, &e, w, spec.encoding),
-                got_as,
-            });
-        }
-        let mut classes = Vec::new();
-        for &c in self.hits.classes() {
-            classes.push(cat.classes()[c as usize].id().to_string());
-        }
-        let seed_part = match self.lookup {
-            Some(_) => format!(" --seed {}", self.generator.seed()),
-            None => String::new(),
-        };
-        // In a selected (compacted) set, position `index` is vector `source` of the source set.
-        let source = self
-            .lookup
-            .as_ref()
-            .and_then(|l| l.selection.as_ref())
-            .and_then(|s| s.get(index as usize).copied())
-            .unwrap_or(index);
-        Failure {
-            index,
-            line,
-            kind: if wrong { "mismatch" } else { "unknown" }.to_string(),
-            inputs: inputs_report,
-            outputs,
-            classes,
-            repro: format!("{} --index {source}{seed_part}", self.options.repro_command),
+                pool.accept_ready(&mut self.merger);
+                None
+            }
         }
     }
 
     /// Ends the check and returns the report.
     pub fn finish(mut self) -> CheckReport {
-        if let Some(l) = &self.lookup {
-            for i in l.first..l.first + l.count {
+        self.dispatch();
+        let mut counts: Option<CoverageCounts> = None;
+        let mut add = |c: Coverage| {
+            let totals = c.totals();
+            match &mut counts {
+                Some(sum) => sum.add(&totals),
+                None => counts = Some(totals),
+            }
+        };
+        if let Some(worker) = self.local.take() {
+            add(worker.coverage);
+        }
+        if let Some(mut pool) = self.pool.take() {
+            pool.jobs = None;
+            while pool.in_flight > 0 {
+                let done = pool.receive();
+                pool.accept(done, &mut self.merger);
+            }
+            for w in pool.workers {
+                match w.join() {
+                    Ok(c) => add(c),
+                    Err(panic) => std::panic::resume_unwind(panic),
+                }
+            }
+        }
+        let counts = counts.unwrap_or_else(|| Coverage::new(self.generator.catalogue()).totals());
+        if let Some((first, count)) = self.shared.set {
+            for i in first..first + count {
                 if !self.seen.contains(i) {
                     self.problems.missing += 1;
                     if self.problems.missing_first.len() < 20 {
@@ -653,19 +1242,137 @@ impl<'g> Checker<'g> {
                 }
             }
         }
-        self.problems.out_of_step = self.out_of_step.take();
-        let counts = self.coverage.totals();
-        let _ = &self.columns;
+        let merged = std::mem::take(&mut self.merger.verdicts);
+        self.problems.out_of_step = merged.out_of_step;
+        let _ = self.max_index_seen;
         build_report(
-            &self.spec,
+            &self.shared.spec,
             self.generator,
-            self.logs,
-            (self.vectors, self.passed, self.failed, self.unknown),
+            std::mem::take(&mut self.logs),
+            (merged.vectors, merged.passed, merged.failed, merged.unknown),
             counts,
-            self.failures,
-            self.problems,
-            &self.options,
+            merged.failures,
+            std::mem::take(&mut self.problems),
+            &self.shared.options,
         )
+    }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn describe(
+    shared: &Shared,
+    hits: &Hits,
+    index: u64,
+    line: usize,
+    inputs: &Inputs,
+    expected: &Outputs,
+    field: &impl Fn(Signal) -> Option<Observed>,
+    wrong: bool,
+) -> Failure {
+    let spec = &shared.spec;
+    let cat = shared.generator.catalogue();
+    let inputs_report = spec
+        .inputs()
+        .into_iter()
+        .map(|(sig, port)| {
+            let w = sig.width(spec.width);
+            let v = inputs.get(sig);
+            FieldValueReport {
+                port: port.to_string(),
+                signal: sig.key().to_string(),
+                hex: v.to_hex(w),
+                value: decoded(sig, &v, w, spec.encoding),
+            }
+        })
+        .collect();
+    let mut outputs = Vec::new();
+    for (sig, port) in spec.outputs() {
+        let Some(o) = field(sig) else { continue };
+        let w = sig.width(spec.width);
+        let e = expected.get(sig).masked(w);
+        let unknown = o.unknown.masked(w);
+        let diff = o.bits.xor(&e).and(&unknown.not(w)).masked(w);
+        let status = if !diff.is_zero() {
+            "wrong"
+        } else if !unknown.is_zero() {
+            "unknown"
+        } else {
+            "ok"
+        };
+        let got_hex: String = (0..w.div_ceil(4))
+            .rev()
+            .map(|d| {
+                let nib = o.bits.extract(d * 4, 4).low_u64();
+                let unk = unknown.extract(d * 4, 4).low_u64();
+                if unk != 0 {
+                    'x'
+                } else {
+                    char::from_digit(nib as u32, 16).unwrap_or('?')
+                }
+            })
+            .collect();
+        let got_bin = (w <= 64).then(|| {
+            (0..w)
+                .rev()
+                .map(|i| {
+                    if unknown.bit(i) {
+                        'x'
+                    } else if o.bits.bit(i) {
+                        '1'
+                    } else {
+                        '0'
+                    }
+                })
+                .collect()
+        });
+        let got_as = if w > 1 && unknown.is_zero() && status == "wrong" {
+            Encoding::ALL
+                .iter()
+                .map(|&enc| {
+                    (
+                        enc.name().to_string(),
+                        Value::decode(&o.bits, w, enc).to_string(),
+                    )
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
+        outputs.push(OutputReport {
+            port: port.to_string(),
+            signal: sig.key().to_string(),
+            status: status.to_string(),
+            expected: e.to_hex(w),
+            got: got_hex,
+            expected_bin: (w <= 64).then(|| e.to_bin(w)),
+            got_bin,
+            differing_bits: diff.set_bits().collect(),
+            unknown_bits: unknown.set_bits().collect(),
+            expected_value: decoded(sig, &e, w, spec.encoding),
+            got_as,
+        });
+    }
+    let mut classes = Vec::new();
+    for &c in hits.classes() {
+        classes.push(cat.classes()[c as usize].id().to_string());
+    }
+    let seed_part = match shared.set {
+        Some(_) => format!(" --seed {}", shared.generator.seed()),
+        None => String::new(),
+    };
+    // In a selected (compacted) set, position `index` is vector `source` of the source set.
+    let source = shared.source_index(index).unwrap_or(index);
+    Failure {
+        index,
+        line,
+        kind: if wrong { "mismatch" } else { "unknown" }.to_string(),
+        inputs: inputs_report,
+        outputs,
+        classes,
+        repro: format!(
+            "{} --index {source}{seed_part}",
+            shared.options.repro_command
+        ),
     }
 }
 
@@ -822,5 +1529,189 @@ impl CheckReport {
     /// Classes with the given status.
     pub fn classes_with(&self, status: ClassStatus) -> impl Iterator<Item = &ClassSummary> {
         self.classes.iter().filter(move |c| c.status == status)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::log::Radix;
+    use crate::spec::{Encoding, Operation};
+    use crate::vectorset::{write, WriteOptions};
+
+    /// A log of `generator`'s vectors with every kind of trouble: wrong and unknown outputs,
+    /// unknown operands, duplicates, an index past the set, operands out of step, missing
+    /// rows, comments, blank lines and (when `bad`) malformed lines.
+    fn troubled_log(spec: &Spec, generator: &Generator, bad: bool) -> String {
+        let names: Vec<&str> = spec
+            .inputs()
+            .into_iter()
+            .chain(spec.outputs())
+            .map(|(_, n)| n)
+            .collect();
+        let mut log = format!("index,{}\n", names.join(","));
+        let cat = generator.catalogue();
+        let mut hits = Hits::new();
+        let total = generator.total();
+        let w = spec.width;
+        for i in 0..total + 40 {
+            if i % 50 == 7 {
+                continue;
+            }
+            let index = match i {
+                i if i >= total + 39 => total + 5,
+                i if i >= total => i - total,
+                i => i,
+            };
+            let mut v = generator.vector(index.min(total - 1)).expect("vector");
+            if i % 333 == 5 {
+                v.a = Word::from_u64(i * 7919).masked(w);
+            }
+            let o = cat.evaluate(&v, &mut hits);
+            let mut fields: Vec<String> = spec
+                .inputs()
+                .iter()
+                .map(|(s, _)| v.get(*s).to_hex(s.width(w)))
+                .collect();
+            if i % 401 == 3 {
+                fields[0] = "x".repeat(fields[0].len());
+            }
+            for (k, (s, _)) in spec.outputs().iter().enumerate() {
+                let sw = s.width(w);
+                let mut value = o.get(*s);
+                if i % 41 == 0 && k == 0 {
+                    value = value.xor(&Word::from_u64(1 << (i % sw as u64))).masked(sw);
+                }
+                let mut hex = value.to_hex(sw);
+                if i % 67 == 1 && k == 1 {
+                    hex = "z".repeat(hex.len());
+                }
+                fields.push(hex);
+            }
+            log.push_str(&format!("{index},{}\n", fields.join(",")));
+            if i % 97 == 3 {
+                log.push_str("// a comment\n\n");
+            }
+            if bad && i % 89 == 11 {
+                log.push_str(&format!("{index},zz\n"));
+            }
+        }
+        log
+    }
+
+    fn checker<'g>(
+        spec: &Spec,
+        generator: &'g Generator,
+        manifest: &Manifest,
+        columns: &[Signal],
+        threads: usize,
+        tiny: bool,
+    ) -> Checker<'g> {
+        let options = CheckOptions {
+            max_failures: 7,
+            threads,
+            ..CheckOptions::default()
+        };
+        let mut c =
+            Checker::new(spec, generator, Some(manifest), columns, options).expect("checker");
+        if tiny {
+            // Many small blocks and batches, so order and merging are exercised hard.
+            c.block_bytes = 300;
+            c.batch_rows = 5;
+        }
+        c.add_log("log.csv");
+        c
+    }
+
+    /// Every way of feeding a checker, on any number of threads, gives the sequential report.
+    #[test]
+    fn parallel_reports_equal_sequential() {
+        let mut spec = Spec::with_defaults(Operation::Sub, Encoding::Twos, 12);
+        spec.name = "parallel_check".into();
+        let generator = Generator::new(&spec, Some(3000), Some(11));
+        let dir = tempfile::tempdir().expect("temp dir");
+        let manifest = write(&generator, &spec, dir.path(), WriteOptions::default()).expect("set");
+        let text = troubled_log(&spec, &generator, true);
+        let reader =
+            || LogReader::new(text.as_bytes(), "log.csv", &spec, Radix::Hex).expect("header");
+        let columns = reader().columns().to_vec();
+
+        let mut reference = checker(&spec, &generator, &manifest, &columns, 1, false);
+        let mut r = reader();
+        let bad = reference.check_log(&mut r, true, |_| {}).expect("read");
+        assert!(bad.is_empty(), "lenient: bad lines go into the report");
+        let reference = reference.finish();
+        assert!(reference.failed > 0 && reference.unknown > 0);
+        assert!(reference.failures.len() == 7);
+        let p = &reference.log_problems;
+        assert!(p.duplicate_count > 0 && !p.out_of_range.is_empty() && p.missing > 0);
+        assert!(p.out_of_step.is_some() && p.bad_line_count > 0);
+        let expected = serde_json::to_string(&reference).expect("json");
+
+        for (threads, tiny) in [(1, true), (2, false), (2, true), (3, true)] {
+            let mut c = checker(&spec, &generator, &manifest, &columns, threads, tiny);
+            let mut r = reader();
+            c.check_log(&mut r, true, |_| {}).expect("read");
+            let got = serde_json::to_string(&c.finish()).expect("json");
+            assert_eq!(got, expected, "check_log, {threads} threads, tiny {tiny}");
+
+            // Row by row, through both row APIs.
+            for closure in [false, true] {
+                let mut c = checker(&spec, &generator, &manifest, &columns, threads, tiny);
+                let mut r = reader();
+                let mut row = LogRow::new();
+                loop {
+                    match r.read_row(&mut row) {
+                        Ok(true) if closure => c.row(row.line, row.index, |s| {
+                            row.get(s).map(|f| Observed {
+                                bits: f.bits,
+                                unknown: f.unknown,
+                            })
+                        }),
+                        Ok(true) => c.log_row(&row),
+                        Ok(false) => break,
+                        Err(crate::log::RowError::Line(p)) => c.bad_line(&p),
+                        Err(crate::log::RowError::Io(e)) => panic!("{e}"),
+                    }
+                }
+                let got = serde_json::to_string(&c.finish()).expect("json");
+                assert_eq!(
+                    got, expected,
+                    "rows, {threads} threads, tiny {tiny}, closure {closure}"
+                );
+            }
+        }
+    }
+
+    /// Without leniency the first 20 malformed lines come back, the same on every thread count.
+    #[test]
+    fn bad_lines_are_the_first_twenty_in_order() {
+        let spec = Spec::with_defaults(Operation::Add, Encoding::Unsigned, 8);
+        let generator = Generator::new(&spec, Some(3000), Some(2));
+        let dir = tempfile::tempdir().expect("temp dir");
+        let manifest = write(&generator, &spec, dir.path(), WriteOptions::default()).expect("set");
+        let text = troubled_log(&spec, &generator, true);
+        let mut sequential: Vec<String> = Vec::new();
+        let mut r = LogReader::new(text.as_bytes(), "log.csv", &spec, Radix::Hex).expect("log");
+        let mut row = LogRow::new();
+        loop {
+            match r.read_row(&mut row) {
+                Ok(true) => {}
+                Ok(false) => break,
+                Err(crate::log::RowError::Line(p)) if sequential.len() < 20 => {
+                    sequential.push(p.to_string())
+                }
+                Err(_) => break,
+            }
+        }
+        assert_eq!(sequential.len(), 20);
+        for (threads, tiny) in [(1, false), (1, true), (2, true), (3, true)] {
+            let mut r = LogReader::new(text.as_bytes(), "log.csv", &spec, Radix::Hex).expect("log");
+            let columns = r.columns().to_vec();
+            let mut c = checker(&spec, &generator, &manifest, &columns, threads, tiny);
+            let bad = c.check_log(&mut r, false, |_| {}).expect("read");
+            let bad: Vec<String> = bad.iter().map(|p| p.to_string()).collect();
+            assert_eq!(bad, sequential, "{threads} threads, tiny {tiny}");
+        }
     }
 }

@@ -130,6 +130,8 @@ pub struct Class {
     /// addsub mode the class belongs to (None: every vector).
     pub(crate) mode: Option<bool>,
     pub(crate) first_bin: u32,
+    /// First dense family of the class (result bits and cell rows), else 0.
+    pub(crate) dense_slot: u16,
     pub(crate) labels: Vec<String>,
 }
 
@@ -160,12 +162,15 @@ impl Class {
     }
 }
 
-/// Bins of one dense family hit by one vector: bins `base + i * stride` for every set bit i.
+/// Bins of one dense family hit by one vector: bins `base + i * stride` for every bit i set
+/// in the hit's mask. The masks live in [`Hits`] as `limbs` 64-bit limbs each, so a narrow
+/// unit moves one machine word per family instead of a 512-bit pattern.
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct DenseHit {
     pub base: u32,
     pub stride: u32,
-    pub mask: Word,
+    /// The family's index in [`Catalogue::dense_families`].
+    pub slot: u16,
 }
 
 /// The bins and classes one vector hits. Reused across vectors to avoid allocation.
@@ -173,6 +178,10 @@ pub(crate) struct DenseHit {
 pub struct Hits {
     pub(crate) bins: Vec<u32>,
     pub(crate) dense: Vec<DenseHit>,
+    /// The masks of `dense`, `limbs` limbs per hit, in the same order.
+    pub(crate) masks: Vec<u64>,
+    /// Limbs per dense mask (the unit's width in 64-bit limbs).
+    pub(crate) limbs: usize,
     /// Classes hit, as class indices in catalogue order (no duplicates).
     pub(crate) classes: Vec<u16>,
 }
@@ -183,10 +192,26 @@ impl Hits {
         Hits::default()
     }
 
-    fn clear(&mut self) {
+    fn clear(&mut self, limbs: usize) {
         self.bins.clear();
         self.dense.clear();
+        self.masks.clear();
         self.classes.clear();
+        self.limbs = limbs;
+    }
+
+    /// The mask of dense hit `i`.
+    #[inline]
+    pub(crate) fn mask(&self, i: usize) -> &[u64] {
+        &self.masks[i * self.limbs..(i + 1) * self.limbs]
+    }
+
+    #[inline]
+    fn push_dense<B: Bits>(&mut self, base: u32, stride: u32, slot: u16, mask: B) {
+        self.dense.push(DenseHit { base, stride, slot });
+        for l in 0..self.limbs {
+            self.masks.push(mask.limb(l));
+        }
     }
 
     /// Calls `f` with every global bin index hit (in no particular order, no duplicates).
@@ -194,9 +219,14 @@ impl Hits {
         for &b in &self.bins {
             f(b as usize);
         }
-        for d in &self.dense {
-            for i in d.mask.set_bits() {
-                f((d.base + i * d.stride) as usize);
+        for (i, d) in self.dense.iter().enumerate() {
+            for (l, &limb) in self.mask(i).iter().enumerate() {
+                let mut m = limb;
+                while m != 0 {
+                    let bit = l as u32 * 64 + m.trailing_zeros();
+                    f((d.base + bit * d.stride) as usize);
+                    m &= m - 1;
+                }
             }
         }
     }
@@ -226,6 +256,10 @@ pub struct Catalogue {
     reachable: Vec<bool>,
     /// Class index ranges per addsub mode (or one range).
     groups: Vec<(Option<bool>, std::ops::Range<usize>)>,
+    /// Dense bin families (base bin, stride): counted with bit-sliced counters.
+    dense_families: Vec<(u32, u32)>,
+    /// Per group, the classes compiled for the 64-bit fast path (empty above 64 bits).
+    narrow: Vec<NarrowGroup>,
 }
 
 impl Catalogue {
@@ -241,6 +275,8 @@ impl Catalogue {
             bin_class: Vec::new(),
             reachable: Vec::new(),
             groups: Vec::new(),
+            dense_families: Vec::new(),
+            narrow: Vec::new(),
         };
         let modes: Vec<Option<bool>> = if spec.operation == Operation::AddSub {
             vec![Some(false), Some(true)]
@@ -266,18 +302,93 @@ impl Catalogue {
                     .extend(std::iter::repeat_n(class_index, labels.len()));
                 cat.reachable
                     .extend(std::iter::repeat_n(true, labels.len()));
+                let dense_slot = cat.dense_families.len() as u16;
+                match kind {
+                    Kind::ResultBits => {
+                        cat.dense_families.push((first_bin, 2));
+                        cat.dense_families.push((first_bin + 1, 2));
+                    }
+                    Kind::CellRows => {
+                        for row in 0..8 {
+                            cat.dense_families.push((first_bin + row, 8));
+                        }
+                    }
+                    _ => {}
+                }
                 cat.classes.push(Class {
                     id: format!("{prefix}{id}"),
                     description,
                     kind,
                     mode,
                     first_bin,
+                    dense_slot,
                     labels,
                 });
             }
             cat.groups.push((mode, start..cat.classes.len()));
         }
+        if model.uses_fast_path() {
+            cat.narrow = cat
+                .groups
+                .iter()
+                .map(|(_, range)| {
+                    NarrowGroup::new(range.clone().map(|ci| cat.compile_narrow(ci)).collect())
+                })
+                .collect();
+        }
         cat
+    }
+
+    /// The dense bin families as (base bin, stride), indexed by [`DenseHit::slot`].
+    pub(crate) fn dense_families(&self) -> &[(u32, u32)] {
+        &self.dense_families
+    }
+
+    /// Class `ci` compiled for the fast path: its constants as `u128` patterns.
+    fn compile_narrow(&self, ci: usize) -> NarrowStep {
+        let class = &self.classes[ci];
+        let w = self.model.width();
+        let enc = self.model.encoding();
+        let code = |word: &Word| word.low_u128();
+        let on_b = |x: &Operand| *x == Operand::B;
+        let op = match &class.kind {
+            Kind::Special(x, _, c) => NarrowOp::Special {
+                on_b: on_b(x),
+                code: code(c),
+            },
+            Kind::Alternating(x, pattern) => NarrowOp::Alternating {
+                on_b: on_b(x),
+                pattern: code(pattern),
+                inverse: !code(pattern) & u128::low_mask(w),
+            },
+            Kind::WalkingOne(x) => NarrowOp::WalkingOne { on_b: on_b(x) },
+            Kind::WalkingZero(x) => NarrowOp::WalkingZero { on_b: on_b(x) },
+            Kind::ResultPattern(_, c) => NarrowOp::ResultPattern { code: code(c) },
+            Kind::ResultBits => NarrowOp::ResultBits,
+            Kind::OverflowBoundary => {
+                let (max, min) = (max_value::<u128>(w, enc), min_value::<u128>(w, enc));
+                NarrowOp::OverflowBoundary {
+                    targets: [max, max.wrapping_add(1), min, min.wrapping_sub(1)],
+                }
+            }
+            Kind::UnsignedEdge => NarrowOp::UnsignedEdge {
+                flip: if enc == Encoding::Offset {
+                    1 << (w - 1)
+                } else {
+                    0
+                },
+            },
+            Kind::ChainLength => NarrowOp::ChainLength,
+            Kind::ChainFromCarryIn => NarrowOp::ChainFromCarryIn,
+            Kind::CellRows => NarrowOp::CellRows,
+            _ => NarrowOp::Generic,
+        };
+        NarrowStep {
+            op,
+            class: ci as u16,
+            base: class.first_bin,
+            slot: class.dense_slot,
+        }
     }
 
     /// The model the catalogue classifies with.
@@ -343,7 +454,7 @@ impl Catalogue {
     ) -> Outputs {
         if self.model.uses_fast_path() {
             let t = self.model.trace::<u128>(inputs);
-            self.classify(inputs, &t, hits, detail);
+            self.classify_narrow(inputs, &t, hits, detail);
             self.model.outputs_of(&t)
         } else {
             let t = self.model.trace::<Wide>(inputs);
@@ -363,10 +474,9 @@ impl Catalogue {
     }
 
     fn classify<B: Bits>(&self, inputs: &Inputs, t: &Trace<B>, hits: &mut Hits, detail: Detail) {
-        hits.clear();
+        hits.clear(self.model.width().div_ceil(64) as usize);
         let w = self.model.width();
         let enc = self.model.encoding();
-        let op = self.model.operation();
         let group = self
             .groups
             .iter()
@@ -378,15 +488,47 @@ impl Catalogue {
         let mask = B::low_mask(w);
         let max = max_value::<B>(w, enc);
         let min = min_value::<B>(w, enc);
+        let operands = Operands {
+            a,
+            b,
+            mask,
+            max,
+            min,
+        };
         // Chain lengths are needed by two classes; compute them once, lazily.
         let mut chains: Option<(u32, u32)> = None;
-
         for ci in group {
-            let class = &self.classes[ci];
-            let base = class.first_bin;
-            let before = (hits.bins.len(), hits.dense.len());
-            let mut hit_any = false;
-            let bin = |hits: &mut Hits, k: u32| hits.bins.push(base + k);
+            if self.classify_class(&self.classes[ci], &operands, t, hits, detail, &mut chains) {
+                hits.classes.push(ci as u16);
+            }
+        }
+    }
+
+    /// Records the bins class `class` hits; true when it hits any.
+    fn classify_class<B: Bits>(
+        &self,
+        class: &Class,
+        operands: &Operands<B>,
+        t: &Trace<B>,
+        hits: &mut Hits,
+        detail: Detail,
+        chains: &mut Option<(u32, u32)>,
+    ) -> bool {
+        let w = self.model.width();
+        let enc = self.model.encoding();
+        let op = self.model.operation();
+        let Operands {
+            a,
+            b,
+            mask,
+            max,
+            min,
+        } = *operands;
+        let base = class.first_bin;
+        let before = (hits.bins.len(), hits.dense.len());
+        let mut hit_any = false;
+        let bin = |hits: &mut Hits, k: u32| hits.bins.push(base + k);
+        {
             match &class.kind {
                 Kind::Special(operand, _, code) => {
                     let x = if *operand == Operand::A { a } else { b };
@@ -429,16 +571,9 @@ impl Catalogue {
                 }
                 Kind::ResultBits => {
                     if detail == Detail::Bins {
-                        hits.dense.push(DenseHit {
-                            base,
-                            stride: 2,
-                            mask: t.result.not().mask(w).to_word(),
-                        });
-                        hits.dense.push(DenseHit {
-                            base: base + 1,
-                            stride: 2,
-                            mask: t.result.to_word(),
-                        });
+                        let slot = class.dense_slot;
+                        hits.push_dense(base, 2, slot, t.result.not().mask(w));
+                        hits.push_dense(base + 1, 2, slot + 1, t.result);
                     } else {
                         hit_any = true;
                     }
@@ -514,11 +649,8 @@ impl Catalogue {
                                     .and(sel(carries, row & 1 != 0))
                                     .and(mask);
                                 if !m.is_zero() {
-                                    hits.dense.push(DenseHit {
-                                        base: base + row,
-                                        stride: 8,
-                                        mask: m.to_word(),
-                                    });
+                                    let slot = class.dense_slot + row as u16;
+                                    hits.push_dense(base + row, 8, slot, m);
                                 }
                             }
                         } else {
@@ -648,11 +780,339 @@ impl Catalogue {
                     }
                 }
             }
-            if hit_any || hits.bins.len() > before.0 || hits.dense.len() > before.1 {
-                hits.classes.push(ci as u16);
+        }
+        hit_any || hits.bins.len() > before.0 || hits.dense.len() > before.1
+    }
+    /// The fast path of [`Catalogue::classify`] for units up to 64 bits wide: the same
+    /// predicates on `u128` with the constants compiled in, and the hot kinds written out
+    /// without the generic plumbing. Kinds outside the binary datapath fall back to the
+    /// generic predicate. A test compares both paths on every spec shape.
+    fn classify_narrow(&self, inputs: &Inputs, t: &Trace<u128>, hits: &mut Hits, detail: Detail) {
+        hits.clear(1);
+        let w = self.model.width();
+        let enc = self.model.encoding();
+        let Some(group) = self
+            .groups
+            .iter()
+            .position(|(m, _)| m.is_none() || *m == Some(inputs.mode))
+        else {
+            return;
+        };
+        let mask = u128::low_mask(w);
+        let a = inputs.a.low_u128() & mask;
+        let b = inputs.b.low_u128() & mask;
+        let operands = Operands {
+            a,
+            b,
+            mask,
+            max: max_value::<u128>(w, enc),
+            min: min_value::<u128>(w, enc),
+        };
+        let bins = detail == Detail::Bins;
+        let mut chains: Option<(u32, u32)> = None;
+        let with_cin = |k: u32| {
+            if self.has_carry_in {
+                k * 2 + t.cin as u32
+            } else {
+                k
+            }
+        };
+        let program = &self.narrow[group];
+        let open = program.open(a, b, t.result);
+        for step in &program.lists[open] {
+            let base = step.base;
+            let operand = |on_b: bool| if on_b { b } else { a };
+            let hit = match step.op {
+                NarrowOp::Special { on_b, code } => {
+                    let hit = operand(on_b) == code;
+                    if hit {
+                        hits.bins.push(base);
+                    }
+                    hit
+                }
+                NarrowOp::Alternating {
+                    on_b,
+                    pattern,
+                    inverse,
+                } => {
+                    let x = operand(on_b);
+                    if x == pattern {
+                        hits.bins.push(base);
+                        true
+                    } else if x == inverse {
+                        hits.bins.push(base + 1);
+                        true
+                    } else {
+                        false
+                    }
+                }
+                NarrowOp::WalkingOne { on_b } => {
+                    let x = operand(on_b);
+                    let hit = x.count_ones() == 1;
+                    if hit {
+                        hits.bins.push(base + x.trailing_zeros());
+                    }
+                    hit
+                }
+                NarrowOp::WalkingZero { on_b } => {
+                    let inv = !operand(on_b) & mask;
+                    let hit = inv.count_ones() == 1;
+                    if hit {
+                        hits.bins.push(base + inv.trailing_zeros());
+                    }
+                    hit
+                }
+                NarrowOp::ResultPattern { code } => {
+                    let hit = t.result == code;
+                    if hit {
+                        hits.bins.push(base);
+                    }
+                    hit
+                }
+                NarrowOp::ResultBits => {
+                    if bins {
+                        hits.masks.push((!t.result & mask) as u64);
+                        hits.masks.push(t.result as u64);
+                        hits.dense.push(DenseHit {
+                            base,
+                            stride: 2,
+                            slot: step.slot,
+                        });
+                        hits.dense.push(DenseHit {
+                            base: base + 1,
+                            stride: 2,
+                            slot: step.slot + 1,
+                        });
+                    }
+                    true
+                }
+                NarrowOp::OverflowBoundary { targets } => {
+                    match targets.iter().position(|v| *v == t.truth) {
+                        Some(k) => {
+                            hits.bins.push(base + with_cin(k as u32));
+                            true
+                        }
+                        None => false,
+                    }
+                }
+                NarrowOp::UnsignedEdge { flip } => {
+                    let (ux, uy) = (a ^ flip, b ^ flip);
+                    let c = t.cin as u128;
+                    let k = if t.subtracting {
+                        match ux.wrapping_sub(uy).wrapping_sub(c) {
+                            0 => Some(0),
+                            u128::MAX => Some(1),
+                            _ => None,
+                        }
+                    } else {
+                        let sum = ux + uy + c;
+                        if sum == mask {
+                            Some(0)
+                        } else if sum == mask + 1 {
+                            Some(1)
+                        } else {
+                            None
+                        }
+                    };
+                    match k {
+                        Some(k) => {
+                            hits.bins.push(base + with_cin(k));
+                            true
+                        }
+                        None => false,
+                    }
+                }
+                NarrowOp::ChainLength => {
+                    let (longest, _) = *chains.get_or_insert_with(|| narrow_chains(&t.path, w));
+                    hits.bins.push(base + longest);
+                    true
+                }
+                NarrowOp::ChainFromCarryIn => {
+                    let (_, from_cin) = *chains.get_or_insert_with(|| narrow_chains(&t.path, w));
+                    let hit = matches!(t.path, Path::Ripple { c0: true, .. });
+                    if hit {
+                        hits.bins.push(base + from_cin);
+                    }
+                    hit
+                }
+                NarrowOp::CellRows => match t.path {
+                    Path::Ripple { x, y, carries, .. } => {
+                        if bins {
+                            // The eight (x, y, carry-in) rows partition the N cells.
+                            let (nx, ny, c, nc) = (!x & mask, !y & mask, carries, !carries);
+                            let pairs = [nx & ny, nx & y, x & ny, x & y];
+                            for (p, &pair) in pairs.iter().enumerate() {
+                                for (low, m) in [(0, pair & nc), (1, pair & c)] {
+                                    if m != 0 {
+                                        let row = (p as u32) * 2 + low;
+                                        hits.masks.push(m as u64);
+                                        hits.dense.push(DenseHit {
+                                            base: base + row,
+                                            stride: 8,
+                                            slot: step.slot + row as u16,
+                                        });
+                                    }
+                                }
+                            }
+                        }
+                        true
+                    }
+                    _ => false,
+                },
+                NarrowOp::Generic => self.classify_class(
+                    &self.classes[step.class as usize],
+                    &operands,
+                    t,
+                    hits,
+                    detail,
+                    &mut chains,
+                ),
+            };
+            if hit {
+                hits.classes.push(step.class);
             }
         }
     }
+}
+
+/// The masked operands and range limits every predicate reads.
+#[derive(Clone, Copy)]
+struct Operands<B> {
+    a: B,
+    b: B,
+    mask: B,
+    max: B,
+    min: B,
+}
+
+/// A class compiled for the fast path (units up to 64 bits wide).
+#[derive(Debug, Clone)]
+struct NarrowStep {
+    op: NarrowOp,
+    class: u16,
+    base: u32,
+    slot: u16,
+}
+
+/// The compiled classes of one addsub group. Most classes that compare an operand or the
+/// result with a fixed pattern miss for almost every vector, so they are gated: a 64-entry
+/// hash filter per compared value says whether the value may equal one of the patterns, and
+/// the step list used for the vector leaves out the classes of closed gates. The filter only
+/// skips classes that cannot hit, so the hits are exactly those of the full list.
+#[derive(Debug, Clone)]
+struct NarrowGroup {
+    /// Step lists in catalogue order, indexed by the open gates (bit 0: operand a, bit 1:
+    /// operand b, bit 2: the result).
+    lists: [Vec<NarrowStep>; 8],
+    /// Per gate, bit `filter_slot(v)` is set for every pattern the gate's classes compare with.
+    filters: [u64; 3],
+}
+
+/// The filter bit of a pattern (a multiplicative hash to 6 bits).
+#[inline]
+fn filter_slot(v: u128) -> u32 {
+    ((v as u64 ^ (v >> 64) as u64).wrapping_mul(0x9e37_79b9_7f4a_7c15) >> 58) as u32
+}
+
+impl NarrowGroup {
+    fn new(steps: Vec<NarrowStep>) -> NarrowGroup {
+        let mut filters = [0u64; 3];
+        let gate = |op: &NarrowOp| -> Option<(usize, Vec<u128>)> {
+            match *op {
+                NarrowOp::Special { on_b, code } => Some((on_b as usize, vec![code])),
+                NarrowOp::Alternating {
+                    on_b,
+                    pattern,
+                    inverse,
+                } => Some((on_b as usize, vec![pattern, inverse])),
+                NarrowOp::ResultPattern { code } => Some((2, vec![code])),
+                _ => None,
+            }
+        };
+        for step in &steps {
+            if let Some((g, patterns)) = gate(&step.op) {
+                for p in patterns {
+                    filters[g] |= 1 << filter_slot(p);
+                }
+            }
+        }
+        let lists = std::array::from_fn(|open: usize| {
+            steps
+                .iter()
+                .filter(|s| gate(&s.op).is_none_or(|(g, _)| open >> g & 1 == 1))
+                .cloned()
+                .collect()
+        });
+        NarrowGroup { lists, filters }
+    }
+
+    /// The gates a vector opens.
+    #[inline]
+    fn open(&self, a: u128, b: u128, result: u128) -> usize {
+        let f = &self.filters;
+        ((f[0] >> filter_slot(a) & 1)
+            | (f[1] >> filter_slot(b) & 1) << 1
+            | (f[2] >> filter_slot(result) & 1) << 2) as usize
+    }
+}
+
+/// The fast-path form of a [`Kind`]: the patterns it compares with, worked out once.
+#[derive(Debug, Clone, Copy)]
+enum NarrowOp {
+    Special {
+        on_b: bool,
+        code: u128,
+    },
+    Alternating {
+        on_b: bool,
+        pattern: u128,
+        inverse: u128,
+    },
+    WalkingOne {
+        on_b: bool,
+    },
+    WalkingZero {
+        on_b: bool,
+    },
+    ResultPattern {
+        code: u128,
+    },
+    ResultBits,
+    OverflowBoundary {
+        targets: [u128; 4],
+    },
+    UnsignedEdge {
+        flip: u128,
+    },
+    ChainLength,
+    ChainFromCarryIn,
+    CellRows,
+    /// Every other kind, evaluated by the generic predicate.
+    Generic,
+}
+
+/// [`chain_lengths`] for units up to 64 bits wide. Instead of visiting every generate bit it
+/// advances all chains at once, one bit position per step, so the loop runs as many times as
+/// the longest chain is long (a handful of steps for random operands).
+fn narrow_chains(path: &Path<u128>, w: u32) -> (u32, u32) {
+    let (cell, x, y, c0) = match *path {
+        Path::Ripple { cell, x, y, c0, .. } => (cell, x, y, c0),
+        Path::EndAround { x, y, .. } => (Cell::Adder, x, y, false),
+        _ => return (0, 0),
+    };
+    let mask = u128::low_mask(w);
+    let (g, p) = match cell {
+        Cell::Adder => (x & y, (x ^ y) & mask),
+        Cell::Subtractor => (!x & y & mask, !(x ^ y) & mask),
+    };
+    let from_cin = if c0 { p.trailing_ones().min(w) } else { 0 };
+    let mut longest = 0;
+    let mut front = g & mask;
+    while front != 0 {
+        longest += 1;
+        front = (front << 1) & p;
+    }
+    (longest.max(from_cin), from_cin)
 }
 
 /// The pattern ...0101 (LSB set).
@@ -991,4 +1451,82 @@ fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) -> Vec<Templa
         ));
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::spec::{CarryInConvention, CarryOutConvention};
+
+    /// A dense hit as (base, stride, slot, mask limbs).
+    type DenseSnapshot = (u32, u32, u16, Vec<u64>);
+
+    /// Everything a classification produced, in a comparable form.
+    fn snapshot(hits: &Hits) -> (Vec<u32>, Vec<DenseSnapshot>, Vec<u16>) {
+        let dense = (0..hits.dense.len())
+            .map(|i| {
+                let d = hits.dense[i];
+                (d.base, d.stride, d.slot, hits.mask(i).to_vec())
+            })
+            .collect();
+        (hits.bins.clone(), dense, hits.classes.clone())
+    }
+
+    /// The compiled fast path gives exactly the generic predicates' hits, in the same order,
+    /// for every operation, encoding and convention at widths up to 64.
+    #[test]
+    fn narrow_path_matches_generic_predicates() {
+        let mut x: u64 = 0x2545f4914f6cdd1d;
+        let mut next = || {
+            x ^= x << 13;
+            x ^= x >> 7;
+            x ^= x << 17;
+            x
+        };
+        for op in Operation::ALL {
+            for enc in Encoding::ALL {
+                for w in [1u32, 2, 3, 4, 7, 8, 31, 32, 33, 63, 64] {
+                    for conv in 0..2 {
+                        let mut spec = Spec::with_defaults(op, enc, w);
+                        if conv == 1 {
+                            spec.conventions.carry_in = CarryInConvention::Carry;
+                            spec.conventions.carry_out = CarryOutConvention::Carry;
+                        }
+                        let cat = Catalogue::candidates(&spec);
+                        let mask = u64::MAX >> (64 - w);
+                        let specials: Vec<u64> = [0, 1, mask, mask >> 1, !(mask >> 1) & mask]
+                            .into_iter()
+                            .collect();
+                        let (mut narrow, mut generic) = (Hits::new(), Hits::new());
+                        for i in 0..600 {
+                            let pick = |r: u64, i: u64| {
+                                if i.is_multiple_of(3) {
+                                    specials[(r % specials.len() as u64) as usize]
+                                } else {
+                                    r & mask
+                                }
+                            };
+                            let (ra, rb, rf) = (next(), next(), next());
+                            let inputs = Inputs {
+                                a: Word::from_u64(pick(ra, i)),
+                                b: Word::from_u64(pick(rb, i / 2)),
+                                carry_in: rf & 1 == 1,
+                                mode: rf & 2 == 2,
+                            };
+                            let t = cat.model.trace::<u128>(&inputs);
+                            for detail in [Detail::Bins, Detail::ClassesOnly] {
+                                cat.classify_narrow(&inputs, &t, &mut narrow, detail);
+                                cat.classify::<u128>(&inputs, &t, &mut generic, detail);
+                                assert_eq!(
+                                    snapshot(&narrow),
+                                    snapshot(&generic),
+                                    "{op:?} {enc:?} width {w} conventions {conv} {inputs:?}"
+                                );
+                            }
+                        }
+                    }
+                }
+            }
+        }
+    }
 }

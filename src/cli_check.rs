@@ -7,8 +7,8 @@ use clap::Args;
 
 use arithvec::{
     merge_reports, read_manifest, render_junit, render_text, verdict_line, CheckOptions,
-    CheckReport, Checker, ClassRows, Error, Generator, LogReader, LogRow, Manifest, Observed,
-    Problem, Radix, RowError, Spec, Verdict,
+    CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Problem, Radix, Spec,
+    Verdict,
 };
 
 use crate::cli_util::{out, read_spec, stdout_error, write_atomic, Outcome};
@@ -183,6 +183,7 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         at_least: args.at_least,
         require: args.require,
         repro_command: format!("arithvec repro {}", args.spec.display()),
+        threads: 0,
     };
     let mut checker = Checker::new(
         &spec,
@@ -199,38 +200,11 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
     })?;
     checker.add_log(&log_name);
     let bar = spinner(quiet);
-    let mut row = LogRow::new();
-    let mut bad: Vec<Problem> = Vec::new();
-    let mut n: u64 = 0;
-    loop {
-        match reader.read_row(&mut row) {
-            Ok(true) => {
-                checker.row(row.line, row.index, |s| {
-                    row.get(s).map(|f| Observed {
-                        bits: f.bits,
-                        unknown: f.unknown,
-                    })
-                });
-                n += 1;
-                if n.is_multiple_of(262_144) {
-                    if let Some(b) = &bar {
-                        b.set_position(n);
-                    }
-                }
-            }
-            Ok(false) => break,
-            Err(RowError::Line(p)) => {
-                if args.lenient {
-                    checker.bad_line(&p);
-                } else if bad.len() < 20 {
-                    bad.push(p);
-                } else {
-                    break;
-                }
-            }
-            Err(RowError::Io(e)) => return Err(e),
+    let bad = checker.check_log(&mut reader, args.lenient, |n| {
+        if let Some(b) = &bar {
+            b.set_position(n);
         }
-    }
+    })?;
     if let Some(b) = bar {
         b.finish_and_clear();
     }
@@ -319,6 +293,7 @@ pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
         at_least: args.at_least,
         require: args.require,
         repro_command: String::new(),
+        threads: 1,
     };
     let merged = merge_reports(&spec, &generator, &reports, &options).map_err(Error::problem)?;
     emit(

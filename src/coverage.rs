@@ -2,69 +2,85 @@
 //! covered / missed / failing verdict per class.
 //!
 //! Dense families (cell rows, result bits) hit dozens of bins per vector, so they are counted
-//! with bit-sliced counters: plane k holds bit k of every bin's count, and adding a hit mask
-//! is a ripple-carry through the planes, 64 bins per machine word. Everything else is a plain
-//! counter. Counts are exact and add across runs, which is what `merge` relies on.
+//! in byte lanes: eight bins share a machine word, one byte each, and adding a hit mask takes
+//! one table look-up and one add per eight bins; every 255 adds the lanes are folded into
+//! exact 64-bit totals. Everything else is a plain counter. Counts are exact and add across runs, which is what `merge` relies on.
 
 use serde::{Deserialize, Serialize};
 
 use crate::classes::{Catalogue, Hits};
-use crate::word::{Word, LIMBS};
 
-/// Bit planes per dense counter; a carry out of the top plane adds 2^PLANES to an exact
-/// per-bin overflow count, so counts are exact however large.
-const PLANES: usize = 16;
+/// Adds a byte lane takes before the lanes are folded into the exact totals (a lane byte
+/// holds at most 255).
+const LANE_LIMIT: u32 = 255;
 
+/// `SPREAD[b]` has byte k equal to bit k of `b`: eight bins' hits, one per byte lane.
+const SPREAD: [u64; 256] = {
+    let mut t = [0u64; 256];
+    let mut b = 0;
+    while b < 256 {
+        let mut k = 0;
+        while k < 8 {
+            t[b] |= ((b as u64 >> k) & 1) << (8 * k);
+            k += 1;
+        }
+        b += 1;
+    }
+    t
+};
+
+/// Hit counts of one dense family (bins `base + i * stride`).
 #[derive(Debug, Clone)]
 struct DenseCounter {
     base: u32,
     stride: u32,
-    /// Limb-major: `planes[limb * PLANES + k]` holds bit k of the counts of that limb's bins.
-    planes: Vec<u64>,
-    /// Per bit position: how many times its plane counter wrapped.
-    wraps: Vec<u64>,
+    /// Byte lanes: bin bit `8 * j + k` counts in byte k of `lanes[j]`, so one table look-up
+    /// and one add count eight bins.
+    lanes: Vec<u64>,
+    /// Adds since the lanes were last folded into `totals`.
+    pending: u32,
+    /// Exact counts folded out of the lanes, per bit position.
+    totals: Vec<u64>,
 }
 
 impl DenseCounter {
-    fn new(base: u32, stride: u32) -> DenseCounter {
+    fn new(base: u32, stride: u32, width: u32) -> DenseCounter {
+        let lanes = width.div_ceil(8) as usize;
         DenseCounter {
             base,
             stride,
-            planes: vec![0; LIMBS * PLANES],
-            wraps: vec![0; LIMBS * 64],
+            lanes: vec![0; lanes],
+            pending: 0,
+            totals: vec![0; lanes * 8],
         }
     }
 
-    /// Adds one to the count of every bin whose bit is set in `mask` (low `limbs` limbs).
+    /// Adds one to the count of every bin whose bit is set in `mask` (little-endian limbs).
     #[inline]
-    fn add(&mut self, mask: &Word, limbs: usize) {
-        for (l, &m) in mask.limbs().iter().enumerate().take(limbs) {
-            let mut carry = m;
-            let planes = &mut self.planes[l * PLANES..(l + 1) * PLANES];
-            for plane in planes.iter_mut() {
-                if carry == 0 {
-                    break;
-                }
-                let t = *plane & carry;
-                *plane ^= carry;
-                carry = t;
-            }
-            while carry != 0 {
-                let b = carry.trailing_zeros() as usize;
-                self.wraps[l * 64 + b] += 1;
-                carry &= carry - 1;
-            }
+    fn add(&mut self, mask: &[u64]) {
+        for (j, lane) in self.lanes.iter_mut().enumerate() {
+            let byte = (mask[j / 8] >> (8 * (j % 8))) & 0xff;
+            *lane += SPREAD[byte as usize];
         }
+        self.pending += 1;
+        if self.pending == LANE_LIMIT {
+            self.fold();
+        }
+    }
+
+    fn fold(&mut self) {
+        for (j, lane) in self.lanes.iter_mut().enumerate() {
+            for k in 0..8 {
+                self.totals[8 * j + k] += (*lane >> (8 * k)) & 0xff;
+            }
+            *lane = 0;
+        }
+        self.pending = 0;
     }
 
     fn count(&self, bit: u32) -> u64 {
-        let (l, b) = ((bit / 64) as usize, bit % 64);
-        let low: u64 = self.planes[l * PLANES..(l + 1) * PLANES]
-            .iter()
-            .enumerate()
-            .map(|(k, p)| ((p >> b) & 1) << k)
-            .sum();
-        low + (self.wraps[bit as usize] << PLANES)
+        let (j, k) = ((bit / 8) as usize, bit % 8);
+        self.totals[bit as usize] + ((self.lanes[j] >> (8 * k)) & 0xff)
     }
 }
 
@@ -75,25 +91,26 @@ pub struct Coverage {
     bin_failures: Vec<u64>,
     class_hits: Vec<u64>,
     class_failures: Vec<u64>,
+    /// One counter per dense family of the catalogue, indexed by the hit's slot.
     dense: Vec<DenseCounter>,
-    /// Per global bin: the dense counter whose base it is, if any.
-    dense_at: Vec<u16>,
     width: u32,
-    limbs: usize,
 }
 
 impl Coverage {
     /// Empty coverage for `catalogue`.
     pub fn new(catalogue: &Catalogue) -> Coverage {
+        let width = catalogue.model().width();
         Coverage {
             bin_hits: vec![0; catalogue.bin_count()],
             bin_failures: vec![0; catalogue.bin_count()],
             class_hits: vec![0; catalogue.classes().len()],
             class_failures: vec![0; catalogue.classes().len()],
-            dense: Vec::new(),
-            dense_at: vec![u16::MAX; catalogue.bin_count()],
+            dense: catalogue
+                .dense_families()
+                .iter()
+                .map(|&(base, stride)| DenseCounter::new(base, stride, width))
+                .collect(),
             width: catalogue.model().width(),
-            limbs: catalogue.model().width().div_ceil(64) as usize,
         }
     }
 
@@ -102,17 +119,8 @@ impl Coverage {
         for &b in &hits.bins {
             self.bin_hits[b as usize] += 1;
         }
-        for d in &hits.dense {
-            let at = self.dense_at[d.base as usize];
-            let i = if at == u16::MAX {
-                self.dense.push(DenseCounter::new(d.base, d.stride));
-                let i = self.dense.len() - 1;
-                self.dense_at[d.base as usize] = i as u16;
-                i
-            } else {
-                at as usize
-            };
-            self.dense[i].add(&d.mask, self.limbs);
+        for (i, d) in hits.dense.iter().enumerate() {
+            self.dense[d.slot as usize].add(hits.mask(i));
         }
         for &c in &hits.classes {
             self.class_hits[c as usize] += 1;
@@ -331,28 +339,34 @@ mod tests {
     use super::*;
 
     #[test]
-    fn bit_sliced_counter_counts_exactly() {
-        let mut c = DenseCounter::new(0, 1);
-        let mut expect = vec![0u64; 512];
-        let mut x: u64 = 0x9e3779b97f4a7c15;
-        // Enough additions to wrap the 16 planes several times.
-        for round in 0..200_000 {
-            let mut limbs = [0u64; LIMBS];
-            for l in limbs.iter_mut() {
-                x ^= x << 13;
-                x ^= x >> 7;
-                x ^= x << 17;
-                // Dense masks for some rounds so low bins pass 2^16 hits.
-                *l = if round % 2 == 0 { u64::MAX } else { x };
+    fn lane_counter_counts_exactly() {
+        for width in [1u32, 7, 8, 33, 64, 65, 200, 512] {
+            let limbs = width.div_ceil(64) as usize;
+            let mut c = DenseCounter::new(0, 1, width);
+            let mut expect = vec![0u64; width as usize];
+            let mut x: u64 = 0x9e3779b97f4a7c15;
+            // Enough additions to fold the lanes many times, with dense masks in some rounds
+            // so some bins pass 255 hits between folds of others.
+            for round in 0..3000 {
+                let mut limbs_v = vec![0u64; limbs];
+                for (l, v) in limbs_v.iter_mut().enumerate() {
+                    x ^= x << 13;
+                    x ^= x >> 7;
+                    x ^= x << 17;
+                    *v = if round % 3 == 0 { u64::MAX } else { x };
+                    let top = width - 64 * l as u32;
+                    if top < 64 {
+                        *v &= (1u64 << top) - 1;
+                    }
+                }
+                for (i, e) in expect.iter_mut().enumerate() {
+                    *e += (limbs_v[i / 64] >> (i % 64)) & 1;
+                }
+                c.add(&limbs_v);
             }
-            let w = Word::from_limbs(limbs);
-            for i in w.set_bits() {
-                expect[i as usize] += 1;
+            for i in 0..width {
+                assert_eq!(c.count(i), expect[i as usize], "width {width} bit {i}");
             }
-            c.add(&w, LIMBS);
-        }
-        for i in 0..512 {
-            assert_eq!(c.count(i), expect[i as usize]);
         }
     }
 }

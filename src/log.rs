@@ -65,6 +65,7 @@ use std::fmt;
 use std::io::BufRead;
 use std::path::Path;
 use std::str::FromStr;
+use std::sync::Arc;
 
 use crate::error::{Error, Problem, Result};
 use crate::spec::{Signal, Spec};
@@ -238,7 +239,7 @@ struct Column {
 /// Everything needed to parse a data line, kept apart from the byte source so a line can be
 /// parsed in place inside the source's buffer.
 #[derive(Debug)]
-struct LineFormat {
+pub(crate) struct LineFormat {
     comma: bool,
     radix: Radix,
     columns: Vec<Column>,
@@ -270,7 +271,8 @@ struct PlainColumn {
 pub struct LogReader<R: BufRead> {
     reader: R,
     file: String,
-    format: LineFormat,
+    /// Shared with the checker's worker threads, which parse lines of blocks read here.
+    format: Arc<LineFormat>,
     signals: Vec<Signal>,
     header_line: usize,
     line: usize,
@@ -319,7 +321,7 @@ impl<R: BufRead> LogReader<R> {
         Ok(LogReader {
             reader,
             file: file.to_string(),
-            format,
+            format: Arc::new(format),
             signals,
             header_line: line,
             line,
@@ -408,13 +410,66 @@ impl<R: BufRead> LogReader<R> {
         }
     }
 
+    /// Reads whole lines, about `target` bytes of them (at least one line unless the log has
+    /// ended), into `block`, LF line ends kept. Returns the line number of the first line in
+    /// the block, or None at the end of the log. Lines are numbered exactly as
+    /// [`LogReader::read_row`] numbers them, so a block parsed line by line with
+    /// [`LogReader::line_format`] gives the same rows and problems.
+    pub(crate) fn read_block(
+        &mut self,
+        block: &mut Vec<u8>,
+        target: usize,
+    ) -> std::result::Result<Option<usize>, Error> {
+        block.clear();
+        let first = self.line + 1;
+        while !self.finished && block.len() < target {
+            let available = match self.reader.fill_buf() {
+                Ok(bytes) => bytes,
+                Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+                Err(e) => {
+                    self.finished = true;
+                    return Err(Error::io(Path::new(&self.file), e));
+                }
+            };
+            if available.is_empty() {
+                self.finished = true;
+                break;
+            }
+            match available.iter().rposition(|&b| b == b'\n') {
+                Some(end) => {
+                    block.extend_from_slice(&available[..=end]);
+                    self.reader.consume(end + 1);
+                }
+                None => {
+                    // A line longer than the buffer, or the last line without its LF.
+                    if let Err(e) = self.reader.read_until(b'\n', block) {
+                        self.finished = true;
+                        return Err(Error::io(Path::new(&self.file), e));
+                    }
+                }
+            }
+        }
+        if block.is_empty() {
+            return Ok(None);
+        }
+        let lines = block.iter().filter(|&&b| b == b'\n').count()
+            + usize::from(block.last() != Some(&b'\n'));
+        self.line += lines;
+        Ok(Some(first))
+    }
+
+    /// The parser of this log's data lines, for parsing blocks on other threads.
+    pub(crate) fn line_format(&self) -> Arc<LineFormat> {
+        Arc::clone(&self.format)
+    }
+
     fn fail(&mut self, e: std::io::Error) -> RowError {
         self.finished = true;
         RowError::Io(Error::io(Path::new(&self.file), e))
     }
 }
 
-enum LineOutcome {
+pub(crate) enum LineOutcome {
     Skipped,
     Row,
     Bad(Box<Problem>),
@@ -423,7 +478,13 @@ enum LineOutcome {
 impl LineFormat {
     /// Parses one line (without its LF) into `row`.
     #[inline]
-    fn parse_line(&self, line: &[u8], line_no: usize, file: &str, row: &mut LogRow) -> LineOutcome {
+    pub(crate) fn parse_line(
+        &self,
+        line: &[u8],
+        line_no: usize,
+        file: &str,
+        row: &mut LogRow,
+    ) -> LineOutcome {
         let line = trim_line_end(line);
         if is_skipped(line) {
             return LineOutcome::Skipped;
@@ -753,7 +814,7 @@ fn is_skipped(line: &[u8]) -> bool {
 }
 
 /// The position of the first LF, eight bytes at a time.
-fn find_newline(bytes: &[u8]) -> Option<usize> {
+pub(crate) fn find_newline(bytes: &[u8]) -> Option<usize> {
     const ONES: u64 = 0x0101_0101_0101_0101;
     const HIGHS: u64 = 0x8080_8080_8080_8080;
     const LFS: u64 = ONES * b'\n' as u64;

@@ -74,6 +74,22 @@ impl Inputs {
 }
 
 impl Outputs {
+    /// The low 64 bits of an output signal's value, without building a word.
+    #[inline]
+    pub(crate) fn get_low(&self, signal: Signal) -> u64 {
+        match signal {
+            Signal::Result => self.result.low_u64(),
+            Signal::CarryOut => self.carry_out as u64,
+            Signal::Overflow => self.overflow as u64,
+            Signal::Zero => self.zero as u64,
+            Signal::Negative => self.negative as u64,
+            Signal::Less => self.less as u64,
+            Signal::Equal => self.equal as u64,
+            Signal::Greater => self.greater as u64,
+            _ => 0,
+        }
+    }
+
     /// The value of an output signal as a word.
     pub fn get(&self, signal: Signal) -> Word {
         let flag = |b: bool| Word::from_u64(b as u64);
