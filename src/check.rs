@@ -801,7 +801,6 @@ pub struct Checker<'g> {
     generator: &'g Generator,
     logs: Vec<String>,
     seen: Seen,
-    max_index_seen: Option<u64>,
     position: u64,
     problems: LogProblems,
     /// The batch being filled.
@@ -882,7 +881,6 @@ impl<'g> Checker<'g> {
             generator,
             logs: Vec::new(),
             seen: Seen::default(),
-            max_index_seen: None,
             // A log without an index column starts at the set's first vector, so a shard's
             // testbench that plays its own stimulus.hex from line one is checked in step.
             position: set.map_or(0, |m| m.first_index),
@@ -1134,7 +1132,6 @@ impl<'g> Checker<'g> {
             }
             return None;
         }
-        self.max_index_seen = Some(self.max_index_seen.map_or(index, |m| m.max(index)));
         if let Some((first, count)) = self.shared.set {
             if index < first || index >= first + count {
                 if self.problems.out_of_range.len() < 20 {
@@ -1244,7 +1241,6 @@ impl<'g> Checker<'g> {
         }
         let merged = std::mem::take(&mut self.merger.verdicts);
         self.problems.out_of_step = merged.out_of_step;
-        let _ = self.max_index_seen;
         build_report(
             &self.shared.spec,
             self.generator,

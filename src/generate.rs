@@ -265,7 +265,6 @@ struct Datapath {
     view: RippleView,
     width: u32,
     mode: Option<bool>,
-    has_carry_in: bool,
 }
 
 impl Datapath {
@@ -362,7 +361,6 @@ impl Datapath {
             CarrySource::Fixed(_) => false,
             CarrySource::Port { invert } => c0 != invert,
         };
-        let _ = self.has_carry_in;
         Some(inputs)
     }
 
@@ -604,7 +602,6 @@ impl Solver<'_> {
                 view,
                 width: self.spec.width,
                 mode: (self.spec.operation == Operation::AddSub).then_some(self.mode),
-                has_carry_in: self.has_cin,
             })
     }
 
@@ -910,7 +907,6 @@ fn build_directed(spec: &Spec, cat: &mut Catalogue) -> (Vec<Inputs>, Vec<u32>) {
                     view,
                     width: spec.width,
                     mode,
-                    has_carry_in: spec.has(Signal::CarryIn),
                 };
                 for v in seed_vectors(&dp) {
                     if set.iter().any(|(s, _, _)| *s == v) {

@@ -1098,8 +1098,7 @@ impl<'a> Reader<'a> {
                             DeValue::String(s) => ParamValue::Str(s.to_string()),
                             DeValue::Integer(_) => {
                                 match self.integer(params, "dut.parameters.", k.get_ref()) {
-                                    Some((n, at)) if i64::try_from(n).is_ok() => {
-                                        let _ = at;
+                                    Some((n, _)) if i64::try_from(n).is_ok() => {
                                         ParamValue::Int(n as i64)
                                     }
                                     Some((_, at)) => {
