@@ -259,6 +259,9 @@ pub struct Catalogue {
     dense_families: Vec<(u32, u32)>,
     /// Per group, the classes compiled for the 64-bit fast path (empty above 64 bits).
     narrow: Vec<NarrowGroup>,
+    /// Per group, the classes-only form of the fast path, where every class kind of the
+    /// group has one (binary datapaths with at most 128 classes).
+    masks: Vec<Option<MaskProgram>>,
 }
 
 impl Catalogue {
@@ -276,6 +279,7 @@ impl Catalogue {
             groups: Vec::new(),
             dense_families: Vec::new(),
             narrow: Vec::new(),
+            masks: Vec::new(),
         };
         let modes: Vec<Option<bool>> = if spec.operation == Operation::AddSub {
             vec![Some(false), Some(true)]
@@ -334,6 +338,15 @@ impl Catalogue {
                     NarrowGroup::new(range.clone().map(|ci| cat.compile_narrow(ci)).collect())
                 })
                 .collect();
+            let binary = cat.model.operation().is_binary();
+            cat.masks = cat
+                .narrow
+                .iter()
+                .map(|g| {
+                    let steps = g.lists.last().map_or(&[][..], |l| l.as_slice());
+                    MaskProgram::new(steps, cat.classes.len(), binary)
+                })
+                .collect();
         }
         cat
     }
@@ -363,6 +376,9 @@ impl Catalogue {
             Kind::WalkingOne(x) => NarrowOp::WalkingOne { on_b: on_b(x) },
             Kind::WalkingZero(x) => NarrowOp::WalkingZero { on_b: on_b(x) },
             Kind::ResultPattern(_, c) => NarrowOp::ResultPattern { code: code(c) },
+            Kind::ResultZeroFromNonzero => NarrowOp::ResultZeroFromNonzero {
+                binary: self.model.operation().is_binary(),
+            },
             Kind::ResultBits => NarrowOp::ResultBits,
             Kind::OverflowBoundary => {
                 let (max, min) = (max_value::<u128>(w, enc), min_value::<u128>(w, enc));
@@ -459,6 +475,44 @@ impl Catalogue {
             let t = self.model.trace::<Wide>(inputs);
             self.classify(inputs, &t, hits, detail);
             self.model.outputs_of(&t)
+        }
+    }
+
+    /// Evaluates the model on `inputs` and returns the outputs with the set of classes hit
+    /// as a bit mask (bit c for class c), for catalogues of at most 128 classes; `hits` is
+    /// scratch space. None for larger catalogues (use [`Catalogue::evaluate_with`]).
+    pub(crate) fn evaluate_class_mask(
+        &self,
+        inputs: &Inputs,
+        hits: &mut Hits,
+    ) -> (Outputs, Option<u128>) {
+        if self.model.uses_fast_path() {
+            let group = self
+                .groups
+                .iter()
+                .position(|(m, _)| m.is_none() || *m == Some(inputs.mode));
+            if let Some(program) = group.and_then(|g| self.masks[g].as_ref()) {
+                let t = self.model.trace::<u128>(inputs);
+                let mask = program.classes(self, inputs, &t, &self.narrow[group.unwrap_or(0)]);
+                return (self.model.outputs_of(&t), Some(mask));
+            }
+        }
+        let outputs = self.evaluate_with(inputs, hits, Detail::ClassesOnly);
+        let mask = (self.classes.len() <= 128)
+            .then(|| hits.classes.iter().fold(0u128, |m, &c| m | 1 << c));
+        (outputs, mask)
+    }
+
+    /// The class ids of a class bit mask, space-separated, as in the `classes` column.
+    pub(crate) fn class_list_of_mask(&self, mask: u128, out: &mut String) {
+        let mut m = mask;
+        while m != 0 {
+            let c = m.trailing_zeros() as usize;
+            if m != mask {
+                out.push(' ');
+            }
+            out.push_str(&self.classes[c].id);
+            m &= m - 1;
         }
     }
 
@@ -857,6 +911,14 @@ impl Catalogue {
                     }
                     hit
                 }
+                NarrowOp::ResultZeroFromNonzero { binary } => {
+                    let nonzero = t.va != 0 || (binary && t.vb != 0);
+                    let hit = nonzero && decode(t.result, w, enc) == 0;
+                    if hit {
+                        hits.bins.push(base);
+                    }
+                    hit
+                }
                 NarrowOp::ResultPattern { code } => {
                     let hit = t.result == code;
                     if hit {
@@ -1056,6 +1118,130 @@ impl NarrowGroup {
     }
 }
 
+/// The classes-only fast path of one group: which classes a vector hits, as a bit mask,
+/// computed without visiting the classes one by one. Classes that always hit are one
+/// constant; the others are a handful of straight-line tests, each setting its class's bit.
+/// Only groups whose classes are all of the kinds below get one.
+#[derive(Debug, Clone)]
+struct MaskProgram {
+    /// result.bits and chain.length: hit by every vector.
+    always: u128,
+    /// cell.rows: hit on a ripple datapath.
+    cell_rows: u128,
+    /// chain.carry_in: hit when the ripple datapath's carry-in is set.
+    chain_carry_in: u128,
+    /// walking_one and walking_zero of operand a and b.
+    walking: [(u128, u128); 2],
+    result_zero_from_nonzero: u128,
+    binary: bool,
+    overflow: u128,
+    overflow_targets: [u128; 4],
+    edge: u128,
+    edge_flip: u128,
+    /// Pattern classes: (compared value: 0 a, 1 b, 2 result; pattern; class bit).
+    patterns: Vec<(usize, u128, u128)>,
+}
+
+impl MaskProgram {
+    fn new(steps: &[NarrowStep], classes: usize, binary: bool) -> Option<MaskProgram> {
+        if classes > 128 {
+            return None;
+        }
+        let mut p = MaskProgram {
+            always: 0,
+            cell_rows: 0,
+            chain_carry_in: 0,
+            walking: [(0, 0); 2],
+            result_zero_from_nonzero: 0,
+            binary,
+            overflow: 0,
+            overflow_targets: [0; 4],
+            edge: 0,
+            edge_flip: 0,
+            patterns: Vec::new(),
+        };
+        for step in steps {
+            let bit = 1u128 << step.class;
+            match step.op {
+                NarrowOp::ResultBits | NarrowOp::ChainLength => p.always |= bit,
+                NarrowOp::CellRows => p.cell_rows |= bit,
+                NarrowOp::ChainFromCarryIn => p.chain_carry_in |= bit,
+                NarrowOp::WalkingOne { on_b } => p.walking[on_b as usize].0 |= bit,
+                NarrowOp::WalkingZero { on_b } => p.walking[on_b as usize].1 |= bit,
+                NarrowOp::OverflowBoundary { targets } => {
+                    p.overflow |= bit;
+                    p.overflow_targets = targets;
+                }
+                NarrowOp::UnsignedEdge { flip } => {
+                    p.edge |= bit;
+                    p.edge_flip = flip;
+                }
+                NarrowOp::Special { on_b, code } => p.patterns.push((on_b as usize, code, bit)),
+                NarrowOp::Alternating {
+                    on_b,
+                    pattern,
+                    inverse,
+                } => {
+                    p.patterns.push((on_b as usize, pattern, bit));
+                    p.patterns.push((on_b as usize, inverse, bit));
+                }
+                NarrowOp::ResultPattern { code } => p.patterns.push((2, code, bit)),
+                NarrowOp::ResultZeroFromNonzero { .. } => p.result_zero_from_nonzero |= bit,
+                NarrowOp::Generic => return None,
+            }
+        }
+        Some(p)
+    }
+
+    /// The classes `inputs` hits (bit c for class c).
+    #[inline]
+    fn classes(
+        &self,
+        cat: &Catalogue,
+        inputs: &Inputs,
+        t: &Trace<u128>,
+        group: &NarrowGroup,
+    ) -> u128 {
+        let w = cat.model.width();
+        let mask = u128::low_mask(w);
+        let a = inputs.a.low_u128() & mask;
+        let b = inputs.b.low_u128() & mask;
+        let set = |hit: bool, bit: u128| if hit { bit } else { 0 };
+        let mut m = self.always;
+        if let Path::Ripple { c0, .. } = t.path {
+            m |= self.cell_rows | set(c0, self.chain_carry_in);
+        }
+        for (x, &(one, zero)) in [a, b].iter().zip(&self.walking) {
+            m |= set(x.count_ones() == 1, one) | set((!x & mask).count_ones() == 1, zero);
+        }
+        if self.result_zero_from_nonzero != 0 {
+            let nonzero = t.va != 0 || (self.binary && t.vb != 0);
+            let zero = decode(t.result, w, cat.model.encoding()) == 0;
+            m |= set(nonzero && zero, self.result_zero_from_nonzero);
+        }
+        m |= set(self.overflow_targets.contains(&t.truth), self.overflow);
+        if self.edge != 0 {
+            let (ux, uy) = (a ^ self.edge_flip, b ^ self.edge_flip);
+            let c = t.cin as u128;
+            let hit = if t.subtracting {
+                let d = ux.wrapping_sub(uy).wrapping_sub(c);
+                d == 0 || d == u128::MAX
+            } else {
+                let sum = ux + uy + c;
+                sum == mask || sum == mask + 1
+            };
+            m |= set(hit, self.edge);
+        }
+        if group.open(a, b, t.result) != 0 {
+            let values = [a, b, t.result];
+            for &(on, pattern, bit) in &self.patterns {
+                m |= set(values[on] == pattern, bit);
+            }
+        }
+        m
+    }
+}
+
 /// The fast-path form of a [`Kind`]: the patterns it compares with, worked out once.
 #[derive(Debug, Clone, Copy)]
 enum NarrowOp {
@@ -1076,6 +1262,9 @@ enum NarrowOp {
     },
     ResultPattern {
         code: u128,
+    },
+    ResultZeroFromNonzero {
+        binary: bool,
     },
     ResultBits,
     OverflowBoundary {
@@ -1513,6 +1702,9 @@ mod tests {
                             cat.classify::<u128>(&inputs, &t, &mut full, Detail::ClassesOnly);
                             assert_eq!(cheap.classes, full.classes, "{op:?} {enc:?} {w}");
                             assert_eq!(cheap.classes, generic.classes, "{op:?} {enc:?} {w}");
+                            let (_, mask) = cat.evaluate_class_mask(&inputs, &mut cheap);
+                            let want = generic.classes.iter().fold(0u128, |m, &c| m | 1 << c);
+                            assert_eq!(mask, Some(want), "class mask {op:?} {enc:?} {w}");
                         }
                     }
                 }

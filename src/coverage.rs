@@ -58,9 +58,12 @@ impl DenseCounter {
     /// Adds one to the count of every bin whose bit is set in `mask` (little-endian limbs).
     #[inline]
     fn add(&mut self, mask: &[u64]) {
-        for (j, lane) in self.lanes.iter_mut().enumerate() {
-            let byte = (mask[j / 8] >> (8 * (j % 8))) & 0xff;
-            *lane += SPREAD[byte as usize];
+        for (lanes, &limb) in self.lanes.chunks_mut(8).zip(mask) {
+            let mut m = limb;
+            for lane in lanes {
+                *lane += SPREAD[(m & 0xff) as usize];
+                m >>= 8;
+            }
         }
         self.pending += 1;
         if self.pending == LANE_LIMIT {

@@ -279,7 +279,6 @@ impl Formatter<'_> {
         let mut stream = None;
         // Random vectors repeat a handful of class sets; remember their texts, keyed by the
         // set as a bit mask (catalogues of up to 128 classes) or as the list itself.
-        let keyed = cat.classes().len() <= 128;
         let mut cache: Vec<(u128, Vec<u16>, String)> = Vec::new();
         let rows = (range.end - range.start) as usize;
         if let Some(n) = &self.narrow {
@@ -295,22 +294,26 @@ impl Formatter<'_> {
                     .get_or_insert_with(|| self.generator.random_stream(index - d))
                     .next_inputs()
             };
-            let outputs = evaluate_vector(cat, &inputs, &mut hits, None);
-            let key = if keyed {
-                hits.classes().iter().fold(0u128, |k, &c| k | 1 << c)
-            } else {
-                0
-            };
-            let found = cache
-                .iter()
-                .position(|(k, set, _)| *k == key && (keyed || set.as_slice() == hits.classes()));
+            let (outputs, mask) = cat.evaluate_class_mask(&inputs, &mut hits);
+            let found = cache.iter().position(|(k, set, _)| match mask {
+                Some(m) => *k == m,
+                None => set.as_slice() == hits.classes(),
+            });
             let text = match found {
                 Some(i) => &cache[i].2,
                 None => {
                     classes.clear();
-                    cat.class_list(&hits, &mut classes);
+                    match mask {
+                        Some(m) => cat.class_list_of_mask(m, &mut classes),
+                        None => cat.class_list(&hits, &mut classes),
+                    }
                     if cache.len() < 64 {
-                        cache.push((key, hits.classes().to_vec(), classes.clone()));
+                        let set = if mask.is_some() {
+                            Vec::new()
+                        } else {
+                            hits.classes().to_vec()
+                        };
+                        cache.push((mask.unwrap_or(0), set, classes.clone()));
                         &cache[cache.len() - 1].2
                     } else {
                         &classes
