@@ -503,6 +503,26 @@ impl Catalogue {
         (outputs, mask)
     }
 
+    /// Evaluates the model on `inputs` and records in `hits` every bin and class the vector
+    /// hits, for coverage counting: the same bins and classes as [`Catalogue::evaluate`], the
+    /// bins possibly in another order.
+    pub(crate) fn evaluate_for_coverage(&self, inputs: &Inputs, hits: &mut Hits) -> Outputs {
+        if self.model.uses_fast_path() {
+            let group = self
+                .groups
+                .iter()
+                .position(|(m, _)| m.is_none() || *m == Some(inputs.mode));
+            if let Some(g) = group {
+                if let Some(program) = self.masks[g].as_ref() {
+                    let t = self.model.trace::<u128>(inputs);
+                    program.record(self, inputs, &t, &self.narrow[g], hits);
+                    return self.model.outputs_of(&t);
+                }
+            }
+        }
+        self.evaluate_with(inputs, hits, Detail::Bins)
+    }
+
     /// The class ids of a class bit mask, space-separated, as in the `classes` column.
     pub(crate) fn class_list_of_mask(&self, mask: u128, out: &mut String) {
         let mut m = mask;
@@ -1140,6 +1160,23 @@ struct MaskProgram {
     edge_flip: u128,
     /// Pattern classes: (compared value: 0 a, 1 b, 2 result; pattern; class bit).
     patterns: Vec<(usize, u128, u128)>,
+    /// The bins of the same classes, for [`MaskProgram::record`].
+    bins: BinPlan,
+}
+
+/// First bins (and dense slots) of a [`MaskProgram`]'s classes.
+#[derive(Debug, Clone, Default)]
+struct BinPlan {
+    result_bits: Option<(u32, u16)>,
+    cell_rows: Option<(u32, u16)>,
+    chain_length: Option<u32>,
+    chain_carry_in: Option<u32>,
+    walking: [(Option<u32>, Option<u32>); 2],
+    result_zero_from_nonzero: Option<u32>,
+    overflow: Option<u32>,
+    edge: Option<u32>,
+    /// The bin of each entry of `patterns`.
+    patterns: Vec<u32>,
 }
 
 impl MaskProgram {
@@ -1159,9 +1196,29 @@ impl MaskProgram {
             edge: 0,
             edge_flip: 0,
             patterns: Vec::new(),
+            bins: BinPlan::default(),
         };
         for step in steps {
             let bit = 1u128 << step.class;
+            let (base, plan) = (step.base, &mut p.bins);
+            match step.op {
+                NarrowOp::ResultBits => plan.result_bits = Some((base, step.slot)),
+                NarrowOp::ChainLength => plan.chain_length = Some(base),
+                NarrowOp::CellRows => plan.cell_rows = Some((base, step.slot)),
+                NarrowOp::ChainFromCarryIn => plan.chain_carry_in = Some(base),
+                NarrowOp::WalkingOne { on_b } => plan.walking[on_b as usize].0 = Some(base),
+                NarrowOp::WalkingZero { on_b } => plan.walking[on_b as usize].1 = Some(base),
+                NarrowOp::OverflowBoundary { .. } => plan.overflow = Some(base),
+                NarrowOp::UnsignedEdge { .. } => plan.edge = Some(base),
+                NarrowOp::ResultZeroFromNonzero { .. } => {
+                    plan.result_zero_from_nonzero = Some(base)
+                }
+                NarrowOp::Special { .. } | NarrowOp::ResultPattern { .. } => {
+                    plan.patterns.push(base)
+                }
+                NarrowOp::Alternating { .. } => plan.patterns.extend([base, base + 1]),
+                NarrowOp::Generic => {}
+            }
             match step.op {
                 NarrowOp::ResultBits | NarrowOp::ChainLength => p.always |= bit,
                 NarrowOp::CellRows => p.cell_rows |= bit,
@@ -1191,6 +1248,128 @@ impl MaskProgram {
             }
         }
         Some(p)
+    }
+
+    /// Records every bin and class `inputs` hits, as [`Catalogue::classify_narrow`] with
+    /// [`Detail::Bins`] does but without per-class dispatch. The bins come in another order
+    /// (which coverage counting does not care about); the classes are in catalogue order.
+    fn record(
+        &self,
+        cat: &Catalogue,
+        inputs: &Inputs,
+        t: &Trace<u128>,
+        group: &NarrowGroup,
+        hits: &mut Hits,
+    ) {
+        hits.clear(1);
+        let w = cat.model.width();
+        let mask = u128::low_mask(w);
+        let a = inputs.a.low_u128() & mask;
+        let b = inputs.b.low_u128() & mask;
+        let plan = &self.bins;
+        let with_cin = |k: u32| {
+            if cat.has_carry_in {
+                k * 2 + t.cin as u32
+            } else {
+                k
+            }
+        };
+        if let Some((base, slot)) = plan.result_bits {
+            hits.masks.push((!t.result & mask) as u64);
+            hits.masks.push(t.result as u64);
+            hits.dense.push(DenseHit {
+                base,
+                stride: 2,
+                slot,
+            });
+            hits.dense.push(DenseHit {
+                base: base + 1,
+                stride: 2,
+                slot: slot + 1,
+            });
+        }
+        if plan.chain_length.is_some() || plan.chain_carry_in.is_some() {
+            let (longest, from_cin) = narrow_chains(&t.path, w);
+            if let Some(base) = plan.chain_length {
+                hits.bins.push(base + longest);
+            }
+            if let (Some(base), Path::Ripple { c0: true, .. }) = (plan.chain_carry_in, t.path) {
+                hits.bins.push(base + from_cin);
+            }
+        }
+        if let (Some((base, slot)), Path::Ripple { x, y, carries, .. }) = (plan.cell_rows, t.path) {
+            let (nx, ny, c, nc) = (!x & mask, !y & mask, carries, !carries);
+            let pairs = [nx & ny, nx & y, x & ny, x & y];
+            for (p, &pair) in pairs.iter().enumerate() {
+                for (low, m) in [(0, pair & nc), (1, pair & c)] {
+                    if m != 0 {
+                        let row = (p as u32) * 2 + low;
+                        hits.masks.push(m as u64);
+                        hits.dense.push(DenseHit {
+                            base: base + row,
+                            stride: 8,
+                            slot: slot + row as u16,
+                        });
+                    }
+                }
+            }
+        }
+        for (x, &(one, zero)) in [a, b].iter().zip(&plan.walking) {
+            if let (Some(base), 1) = (one, x.count_ones()) {
+                hits.bins.push(base + x.trailing_zeros());
+            }
+            let inv = !x & mask;
+            if let (Some(base), 1) = (zero, inv.count_ones()) {
+                hits.bins.push(base + inv.trailing_zeros());
+            }
+        }
+        if let Some(base) = plan.result_zero_from_nonzero {
+            let nonzero = t.va != 0 || (self.binary && t.vb != 0);
+            if nonzero && decode(t.result, w, cat.model.encoding()) == 0 {
+                hits.bins.push(base);
+            }
+        }
+        if let Some(base) = plan.overflow {
+            if let Some(k) = self.overflow_targets.iter().position(|v| *v == t.truth) {
+                hits.bins.push(base + with_cin(k as u32));
+            }
+        }
+        if let Some(base) = plan.edge {
+            let (ux, uy) = (a ^ self.edge_flip, b ^ self.edge_flip);
+            let c = t.cin as u128;
+            let k = if t.subtracting {
+                match ux.wrapping_sub(uy).wrapping_sub(c) {
+                    0 => Some(0),
+                    u128::MAX => Some(1),
+                    _ => None,
+                }
+            } else {
+                let sum = ux + uy + c;
+                if sum == mask {
+                    Some(0)
+                } else if sum == mask + 1 {
+                    Some(1)
+                } else {
+                    None
+                }
+            };
+            if let Some(k) = k {
+                hits.bins.push(base + with_cin(k));
+            }
+        }
+        if group.open(a, b, t.result) != 0 {
+            let values = [a, b, t.result];
+            for (&(on, pattern, _), &bin) in self.patterns.iter().zip(&plan.patterns) {
+                if values[on] == pattern {
+                    hits.bins.push(bin);
+                }
+            }
+        }
+        let mut m = self.classes(cat, inputs, t, group);
+        while m != 0 {
+            hits.classes.push(m.trailing_zeros() as u16);
+            m &= m - 1;
+        }
     }
 
     /// The classes `inputs` hits (bit c for class c).
@@ -1702,6 +1881,16 @@ mod tests {
                             cat.classify::<u128>(&inputs, &t, &mut full, Detail::ClassesOnly);
                             assert_eq!(cheap.classes, full.classes, "{op:?} {enc:?} {w}");
                             assert_eq!(cheap.classes, generic.classes, "{op:?} {enc:?} {w}");
+                            // Coverage recording: the same bins as a set, the same classes.
+                            let mut any_order = Hits::new();
+                            cat.evaluate_for_coverage(&inputs, &mut any_order);
+                            let (mut x, mut y) = (Vec::new(), Vec::new());
+                            any_order.for_each_bin(|b| x.push(b));
+                            generic.for_each_bin(|b| y.push(b));
+                            x.sort_unstable();
+                            y.sort_unstable();
+                            assert_eq!(x, y, "coverage bins {op:?} {enc:?} {w} {inputs:?}");
+                            assert_eq!(any_order.classes, generic.classes);
                             let (_, mask) = cat.evaluate_class_mask(&inputs, &mut cheap);
                             let want = generic.classes.iter().fold(0u128, |m, &c| m | 1 << c);
                             assert_eq!(mask, Some(want), "class mask {op:?} {enc:?} {w}");
