@@ -1267,6 +1267,8 @@ impl MaskProgram {
         let a = inputs.a.low_u128() & mask;
         let b = inputs.b.low_u128() & mask;
         let plan = &self.bins;
+        // The classes hit, gathered as their bins are found.
+        let mut m = self.always;
         let with_cin = |k: u32| {
             if cat.has_carry_in {
                 k * 2 + t.cin as u32
@@ -1295,9 +1297,11 @@ impl MaskProgram {
             }
             if let (Some(base), Path::Ripple { c0: true, .. }) = (plan.chain_carry_in, t.path) {
                 hits.bins.push(base + from_cin);
+                m |= self.chain_carry_in;
             }
         }
         if let (Some((base, slot)), Path::Ripple { x, y, carries, .. }) = (plan.cell_rows, t.path) {
+            m |= self.cell_rows;
             let (nx, ny, c, nc) = (!x & mask, !y & mask, carries, !carries);
             let pairs = [nx & ny, nx & y, x & ny, x & y];
             for (p, &pair) in pairs.iter().enumerate() {
@@ -1314,24 +1318,30 @@ impl MaskProgram {
                 }
             }
         }
-        for (x, &(one, zero)) in [a, b].iter().zip(&plan.walking) {
+        for ((x, &(one, zero)), &(one_bit, zero_bit)) in
+            [a, b].iter().zip(&plan.walking).zip(&self.walking)
+        {
             if let (Some(base), 1) = (one, x.count_ones()) {
                 hits.bins.push(base + x.trailing_zeros());
+                m |= one_bit;
             }
             let inv = !x & mask;
             if let (Some(base), 1) = (zero, inv.count_ones()) {
                 hits.bins.push(base + inv.trailing_zeros());
+                m |= zero_bit;
             }
         }
         if let Some(base) = plan.result_zero_from_nonzero {
             let nonzero = t.va != 0 || (self.binary && t.vb != 0);
             if nonzero && decode(t.result, w, cat.model.encoding()) == 0 {
                 hits.bins.push(base);
+                m |= self.result_zero_from_nonzero;
             }
         }
         if let Some(base) = plan.overflow {
             if let Some(k) = self.overflow_targets.iter().position(|v| *v == t.truth) {
                 hits.bins.push(base + with_cin(k as u32));
+                m |= self.overflow;
             }
         }
         if let Some(base) = plan.edge {
@@ -1355,17 +1365,18 @@ impl MaskProgram {
             };
             if let Some(k) = k {
                 hits.bins.push(base + with_cin(k));
+                m |= self.edge;
             }
         }
         if group.open(a, b, t.result) != 0 {
             let values = [a, b, t.result];
-            for (&(on, pattern, _), &bin) in self.patterns.iter().zip(&plan.patterns) {
+            for (&(on, pattern, bit), &bin) in self.patterns.iter().zip(&plan.patterns) {
                 if values[on] == pattern {
                     hits.bins.push(bin);
+                    m |= bit;
                 }
             }
         }
-        let mut m = self.classes(cat, inputs, t, group);
         while m != 0 {
             hits.classes.push(m.trailing_zeros() as u16);
             m &= m - 1;
