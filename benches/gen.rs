@@ -1,14 +1,39 @@
 //! Generation throughput: 1,000,000 vectors of a 32-bit two's-complement subtractor with
-//! borrow-in, written as vectors.csv, stimulus.hex and expected.hex. Prints vectors/s, the
-//! ratio to a bare formatter writing files of the same shape (no model, no classes), and the
-//! peak resident memory at growing counts (it should stay flat: the writer streams).
+//! borrow-in, written as vectors.csv, stimulus.hex, expected.hex and manifest.json (hashes
+//! included). Prints vectors/s, CPU time and cores busy, the ratio to a bare formatter
+//! writing files of the same shape (no model, no classes, no hashes), and the peak resident
+//! memory at growing counts (it should stay flat: the writer streams).
+//!
+//! Every size runs twice: "disk" writes into a temporary directory on the file system of
+//! the build (the target directory), "memory" into a directory under /dev/shm (a tmpfs, so
+//! no disk is involved) when it exists. The disk figure depends on the disk; the memory one
+//! shows what the generator itself does.
 //!
 //! Run with `cargo bench --bench gen`. Not a test: timings on shared machines are noisy.
+//! `ARITHVEC_BENCH_VECTORS=N` runs one size only, into memory (for callgrind), and
+//! `ARITHVEC_BENCH_THREADS=T` sets the writer's thread count.
 
 use std::io::Write;
+use std::path::{Path, PathBuf};
 use std::time::Instant;
 
 use arithvec::{write_vector_set, Encoding, Generator, Operation, Spec, WriteOptions};
+
+/// CPU seconds (user + system) this process has used so far, all threads.
+fn cpu_seconds() -> f64 {
+    let stat = std::fs::read_to_string("/proc/self/stat").unwrap_or_default();
+    // Fields after the parenthesised command name; utime and stime are the 12th and 13th,
+    // in clock ticks (100 per second on Linux; proc(5)).
+    let rest = stat.rsplit(')').next().unwrap_or("");
+    let f: Vec<u64> = rest
+        .split_whitespace()
+        .map(|v| v.parse().unwrap_or(0))
+        .collect();
+    if f.len() < 13 {
+        return 0.0;
+    }
+    (f[11] + f[12]) as f64 / 100.0
+}
 
 fn peak_rss_kib() -> u64 {
     std::fs::read_to_string("/proc/self/status")
@@ -22,7 +47,7 @@ fn peak_rss_kib() -> u64 {
 }
 
 /// Writes 3 files with the same row shapes using plain formatting and a xorshift source.
-fn bare(dir: &std::path::Path, n: u64) {
+fn bare(dir: &Path, n: u64) {
     let mut csv = std::io::BufWriter::new(std::fs::File::create(dir.join("bare.csv")).unwrap());
     let mut stim = std::io::BufWriter::new(std::fs::File::create(dir.join("bare_s.hex")).unwrap());
     let mut exp = std::io::BufWriter::new(std::fs::File::create(dir.join("bare_e.hex")).unwrap());
@@ -57,38 +82,97 @@ fn bare(dir: &std::path::Path, n: u64) {
     }
 }
 
+/// A fresh directory under `root`, removed when dropped.
+struct Scratch(PathBuf);
+
+impl Scratch {
+    fn new(root: &Path, name: &str) -> Scratch {
+        let dir = root.join(format!("arithvec-gen-bench-{}-{name}", std::process::id()));
+        std::fs::create_dir_all(&dir).expect("scratch dir");
+        Scratch(dir)
+    }
+}
+
+impl Drop for Scratch {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
+
 fn main() {
     let mut spec = Spec::with_defaults(Operation::Sub, Encoding::Twos, 32);
     spec.name = "bench_sub32".into();
-    let dir = tempfile::tempdir().expect("temp dir");
-    let n = 1_000_000u64;
-
-    let t = Instant::now();
-    bare(dir.path(), n);
-    let bare_rate = n as f64 / t.elapsed().as_secs_f64();
-
-    let mut rates = Vec::new();
-    for count in [250_000u64, 1_000_000, 4_000_000] {
-        let g = Generator::new(&spec, Some(count), Some(1));
-        let t = Instant::now();
-        let m = write_vector_set(&g, &spec, dir.path(), WriteOptions::default()).expect("write");
-        let secs = t.elapsed().as_secs_f64();
-        let rate = m.vectors as f64 / secs;
-        println!(
-            "gen {:>9} vectors: {:>6.2} s, {:>6.2} M vectors/s, peak RSS {} KiB",
-            m.vectors,
-            secs,
-            rate / 1e6,
-            peak_rss_kib()
-        );
-        rates.push((count, rate));
+    let threads: usize = std::env::var("ARITHVEC_BENCH_THREADS")
+        .map(|t| t.parse().expect("ARITHVEC_BENCH_THREADS is a number"))
+        .unwrap_or(0);
+    let single = std::env::var("ARITHVEC_BENCH_VECTORS").ok().map(|n| {
+        n.parse::<u64>()
+            .expect("ARITHVEC_BENCH_VECTORS is a number")
+    });
+    let shm = Path::new("/dev/shm");
+    let mut targets: Vec<(&str, Scratch)> = Vec::new();
+    if single.is_none() {
+        targets.push((
+            "disk",
+            Scratch::new(Path::new(env!("CARGO_TARGET_TMPDIR")), "disk"),
+        ));
     }
-    let one_m = rates
-        .iter()
-        .find(|(c, _)| *c == 1_000_000)
-        .map(|r| r.1)
-        .unwrap_or(0.0);
-    println!("bare formatter: {:.2} M vectors/s", bare_rate / 1e6);
-    println!("arithvec / bare formatter: {:.2}", one_m / bare_rate);
+    if shm.is_dir() {
+        targets.push(("memory", Scratch::new(shm, "memory")));
+    } else if single.is_some() {
+        targets.push((
+            "disk",
+            Scratch::new(Path::new(env!("CARGO_TARGET_TMPDIR")), "disk"),
+        ));
+    }
+    let sizes = match single {
+        Some(n) => vec![n],
+        None => vec![250_000u64, 1_000_000, 4_000_000],
+    };
+    for (place, dir) in &targets {
+        let mut one_m = 0.0;
+        for &count in &sizes {
+            let g = Generator::new(&spec, Some(count), Some(1));
+            let cpu = cpu_seconds();
+            let t = Instant::now();
+            let options = WriteOptions {
+                threads,
+                ..WriteOptions::default()
+            };
+            let m = write_vector_set(&g, &spec, &dir.0, options).expect("write");
+            let secs = t.elapsed().as_secs_f64();
+            let cpu = cpu_seconds() - cpu;
+            let rate = m.vectors as f64 / secs;
+            if count == 1_000_000 {
+                one_m = rate;
+            }
+            println!(
+                "gen {:>9} vectors to {place:<6}: {secs:>6.2} s wall, {cpu:>5.2} s CPU ({:.2} \
+                 cores busy), {:>6.2} M vectors/s, peak RSS {} KiB",
+                m.vectors,
+                cpu / secs,
+                rate / 1e6,
+                peak_rss_kib()
+            );
+        }
+        if single.is_some() {
+            continue;
+        }
+        let n = 1_000_000u64;
+        let cpu = cpu_seconds();
+        let t = Instant::now();
+        bare(&dir.0, n);
+        let secs = t.elapsed().as_secs_f64();
+        let cpu = cpu_seconds() - cpu;
+        let bare_rate = n as f64 / secs;
+        println!(
+            "bare formatter to {place}: {:.2} M vectors/s ({cpu:.2} s CPU, one thread)",
+            bare_rate / 1e6
+        );
+        println!(
+            "arithvec / bare formatter ({place}): {:.2}",
+            one_m / bare_rate
+        );
+    }
     println!("goal: >= 10 M vectors/s on a 2-core machine");
 }

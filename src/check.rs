@@ -456,7 +456,7 @@ impl Worker {
         }
         v.vectors += 1;
         let cat = shared.generator.catalogue();
-        let expected = cat.evaluate(&inputs, &mut self.hits);
+        let expected = cat.evaluate_for_coverage(&inputs, &mut self.hits);
         let mut wrong = false;
         let mut unknown = operand_unknown;
         let judge = |exp: &Outputs| {
@@ -624,15 +624,21 @@ impl Worker {
 #[inline]
 fn stage_fields(shared: &Shared, row: &LogRow, values: &mut Vec<u64>) -> u16 {
     let l = shared.limbs;
+    let start = values.len();
+    values.resize(start + shared.row_stride(), 0);
+    let staged = &mut values[start..];
     let mut present = 0u16;
     for (k, &(sig, _)) in shared.fields.iter().enumerate() {
-        match row.get(sig) {
-            Some(f) => {
-                present |= 1 << k;
-                values.extend_from_slice(&f.bits.limbs()[..l]);
-                values.extend_from_slice(&f.unknown.limbs()[..l]);
+        if let Some(f) = row.get(sig) {
+            present |= 1 << k;
+            let at = k * 2 * l;
+            if l == 1 {
+                staged[at] = f.bits.low_u64();
+                staged[at + 1] = f.unknown.low_u64();
+            } else {
+                staged[at..at + l].copy_from_slice(&f.bits.limbs()[..l]);
+                staged[at + l..at + 2 * l].copy_from_slice(&f.unknown.limbs()[..l]);
             }
-            None => values.extend(std::iter::repeat_n(0, 2 * l)),
         }
     }
     present

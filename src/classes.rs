@@ -260,6 +260,9 @@ pub struct Catalogue {
     dense_families: Vec<(u32, u32)>,
     /// Per group, the classes compiled for the 64-bit fast path (empty above 64 bits).
     narrow: Vec<NarrowGroup>,
+    /// Per group, the classes-only form of the fast path, where every class kind of the
+    /// group has one (binary datapaths with at most 128 classes).
+    masks: Vec<Option<MaskProgram>>,
 }
 
 impl Catalogue {
@@ -277,6 +280,7 @@ impl Catalogue {
             groups: Vec::new(),
             dense_families: Vec::new(),
             narrow: Vec::new(),
+            masks: Vec::new(),
         };
         let modes: Vec<Option<bool>> = if spec.operation == Operation::AddSub {
             vec![Some(false), Some(true)]
@@ -335,6 +339,15 @@ impl Catalogue {
                     NarrowGroup::new(range.clone().map(|ci| cat.compile_narrow(ci)).collect())
                 })
                 .collect();
+            let binary = cat.model.operation().is_binary();
+            cat.masks = cat
+                .narrow
+                .iter()
+                .map(|g| {
+                    let steps = g.lists.last().map_or(&[][..], |l| l.as_slice());
+                    MaskProgram::new(steps, cat.classes.len(), binary)
+                })
+                .collect();
         }
         cat
     }
@@ -364,6 +377,9 @@ impl Catalogue {
             Kind::WalkingOne(x) => NarrowOp::WalkingOne { on_b: on_b(x) },
             Kind::WalkingZero(x) => NarrowOp::WalkingZero { on_b: on_b(x) },
             Kind::ResultPattern(_, c) => NarrowOp::ResultPattern { code: code(c) },
+            Kind::ResultZeroFromNonzero => NarrowOp::ResultZeroFromNonzero {
+                binary: self.model.operation().is_binary(),
+            },
             Kind::ResultBits => NarrowOp::ResultBits,
             Kind::OverflowBoundary => {
                 let (max, min) = (max_value::<u128>(w, enc), min_value::<u128>(w, enc));
@@ -460,6 +476,64 @@ impl Catalogue {
             let t = self.model.trace::<Wide>(inputs);
             self.classify(inputs, &t, hits, detail);
             self.model.outputs_of(&t)
+        }
+    }
+
+    /// Evaluates the model on `inputs` and returns the outputs with the set of classes hit
+    /// as a bit mask (bit c for class c), for catalogues of at most 128 classes; `hits` is
+    /// scratch space. None for larger catalogues (use [`Catalogue::evaluate_with`]).
+    pub(crate) fn evaluate_class_mask(
+        &self,
+        inputs: &Inputs,
+        hits: &mut Hits,
+    ) -> (Outputs, Option<u128>) {
+        if self.model.uses_fast_path() {
+            let group = self
+                .groups
+                .iter()
+                .position(|(m, _)| m.is_none() || *m == Some(inputs.mode));
+            if let Some(program) = group.and_then(|g| self.masks[g].as_ref()) {
+                let t = self.model.trace::<u128>(inputs);
+                let mask = program.classes(self, inputs, &t, &self.narrow[group.unwrap_or(0)]);
+                return (self.model.outputs_of(&t), Some(mask));
+            }
+        }
+        let outputs = self.evaluate_with(inputs, hits, Detail::ClassesOnly);
+        let mask = (self.classes.len() <= 128)
+            .then(|| hits.classes.iter().fold(0u128, |m, &c| m | 1 << c));
+        (outputs, mask)
+    }
+
+    /// Evaluates the model on `inputs` and records in `hits` every bin and class the vector
+    /// hits, for coverage counting: the same bins and classes as [`Catalogue::evaluate`], the
+    /// bins possibly in another order.
+    pub(crate) fn evaluate_for_coverage(&self, inputs: &Inputs, hits: &mut Hits) -> Outputs {
+        if self.model.uses_fast_path() {
+            let group = self
+                .groups
+                .iter()
+                .position(|(m, _)| m.is_none() || *m == Some(inputs.mode));
+            if let Some(g) = group {
+                if let Some(program) = self.masks[g].as_ref() {
+                    let t = self.model.trace::<u128>(inputs);
+                    program.record(self, inputs, &t, &self.narrow[g], hits);
+                    return self.model.outputs_of(&t);
+                }
+            }
+        }
+        self.evaluate_with(inputs, hits, Detail::Bins)
+    }
+
+    /// The class ids of a class bit mask, space-separated, as in the `classes` column.
+    pub(crate) fn class_list_of_mask(&self, mask: u128, out: &mut String) {
+        let mut m = mask;
+        while m != 0 {
+            let c = m.trailing_zeros() as usize;
+            if m != mask {
+                out.push(' ');
+            }
+            out.push_str(&self.classes[c].id);
+            m &= m - 1;
         }
     }
 
@@ -786,7 +860,8 @@ impl Catalogue {
     /// The fast path of [`Catalogue::classify`] for units up to 64 bits wide: the same
     /// predicates on `u128` with the constants compiled in, and the hot kinds written out
     /// without the generic plumbing. Kinds outside the binary datapath fall back to the
-    /// generic predicate. A test compares both paths on every spec shape.
+    /// generic predicate. With [`Detail::ClassesOnly`] only the classes are exact (some bins
+    /// are left out). A test compares both paths on every spec shape.
     fn classify_narrow(&self, inputs: &Inputs, t: &Trace<u128>, hits: &mut Hits, detail: Detail) {
         hits.clear(1);
         let w = self.model.width();
@@ -862,6 +937,14 @@ impl Catalogue {
                     }
                     hit
                 }
+                NarrowOp::ResultZeroFromNonzero { binary } => {
+                    let nonzero = t.va != 0 || (binary && t.vb != 0);
+                    let hit = nonzero && decode(t.result, w, enc) == 0;
+                    if hit {
+                        hits.bins.push(base);
+                    }
+                    hit
+                }
                 NarrowOp::ResultPattern { code } => {
                     let hit = t.result == code;
                     if hit {
@@ -922,15 +1005,20 @@ impl Catalogue {
                         None => false,
                     }
                 }
+                // Whether these hit does not depend on the chains, so a classes-only
+                // evaluation skips measuring them.
                 NarrowOp::ChainLength => {
-                    let (longest, _) = *chains.get_or_insert_with(|| narrow_chains(&t.path, w));
-                    hits.bins.push(base + longest);
+                    if bins {
+                        let (longest, _) = *chains.get_or_insert_with(|| narrow_chains(&t.path, w));
+                        hits.bins.push(base + longest);
+                    }
                     true
                 }
                 NarrowOp::ChainFromCarryIn => {
-                    let (_, from_cin) = *chains.get_or_insert_with(|| narrow_chains(&t.path, w));
                     let hit = matches!(t.path, Path::Ripple { c0: true, .. });
-                    if hit {
+                    if hit && bins {
+                        let (_, from_cin) =
+                            *chains.get_or_insert_with(|| narrow_chains(&t.path, w));
                         hits.bins.push(base + from_cin);
                     }
                     hit
@@ -1056,6 +1144,300 @@ impl NarrowGroup {
     }
 }
 
+/// The classes-only fast path of one group: which classes a vector hits, as a bit mask,
+/// computed without visiting the classes one by one. Classes that always hit are one
+/// constant; the others are a handful of straight-line tests, each setting its class's bit.
+/// Only groups whose classes are all of the kinds below get one.
+#[derive(Debug, Clone)]
+struct MaskProgram {
+    /// result.bits and chain.length: hit by every vector.
+    always: u128,
+    /// cell.rows: hit on a ripple datapath.
+    cell_rows: u128,
+    /// chain.carry_in: hit when the ripple datapath's carry-in is set.
+    chain_carry_in: u128,
+    /// walking_one and walking_zero of operand a and b.
+    walking: [(u128, u128); 2],
+    result_zero_from_nonzero: u128,
+    binary: bool,
+    overflow: u128,
+    overflow_targets: [u128; 4],
+    edge: u128,
+    edge_flip: u128,
+    /// Pattern classes: (compared value: 0 a, 1 b, 2 result; pattern; class bit).
+    patterns: Vec<(usize, u128, u128)>,
+    /// The bins of the same classes, for [`MaskProgram::record`].
+    bins: BinPlan,
+}
+
+/// First bins (and dense slots) of a [`MaskProgram`]'s classes.
+#[derive(Debug, Clone, Default)]
+struct BinPlan {
+    result_bits: Option<(u32, u16)>,
+    cell_rows: Option<(u32, u16)>,
+    chain_length: Option<u32>,
+    chain_carry_in: Option<u32>,
+    walking: [(Option<u32>, Option<u32>); 2],
+    result_zero_from_nonzero: Option<u32>,
+    overflow: Option<u32>,
+    edge: Option<u32>,
+    /// The bin of each entry of `patterns`.
+    patterns: Vec<u32>,
+}
+
+impl MaskProgram {
+    fn new(steps: &[NarrowStep], classes: usize, binary: bool) -> Option<MaskProgram> {
+        if classes > 128 {
+            return None;
+        }
+        let mut p = MaskProgram {
+            always: 0,
+            cell_rows: 0,
+            chain_carry_in: 0,
+            walking: [(0, 0); 2],
+            result_zero_from_nonzero: 0,
+            binary,
+            overflow: 0,
+            overflow_targets: [0; 4],
+            edge: 0,
+            edge_flip: 0,
+            patterns: Vec::new(),
+            bins: BinPlan::default(),
+        };
+        for step in steps {
+            let bit = 1u128 << step.class;
+            let (base, plan) = (step.base, &mut p.bins);
+            match step.op {
+                NarrowOp::ResultBits => plan.result_bits = Some((base, step.slot)),
+                NarrowOp::ChainLength => plan.chain_length = Some(base),
+                NarrowOp::CellRows => plan.cell_rows = Some((base, step.slot)),
+                NarrowOp::ChainFromCarryIn => plan.chain_carry_in = Some(base),
+                NarrowOp::WalkingOne { on_b } => plan.walking[on_b as usize].0 = Some(base),
+                NarrowOp::WalkingZero { on_b } => plan.walking[on_b as usize].1 = Some(base),
+                NarrowOp::OverflowBoundary { .. } => plan.overflow = Some(base),
+                NarrowOp::UnsignedEdge { .. } => plan.edge = Some(base),
+                NarrowOp::ResultZeroFromNonzero { .. } => {
+                    plan.result_zero_from_nonzero = Some(base)
+                }
+                NarrowOp::Special { .. } | NarrowOp::ResultPattern { .. } => {
+                    plan.patterns.push(base)
+                }
+                NarrowOp::Alternating { .. } => plan.patterns.extend([base, base + 1]),
+                NarrowOp::Generic => {}
+            }
+            match step.op {
+                NarrowOp::ResultBits | NarrowOp::ChainLength => p.always |= bit,
+                NarrowOp::CellRows => p.cell_rows |= bit,
+                NarrowOp::ChainFromCarryIn => p.chain_carry_in |= bit,
+                NarrowOp::WalkingOne { on_b } => p.walking[on_b as usize].0 |= bit,
+                NarrowOp::WalkingZero { on_b } => p.walking[on_b as usize].1 |= bit,
+                NarrowOp::OverflowBoundary { targets } => {
+                    p.overflow |= bit;
+                    p.overflow_targets = targets;
+                }
+                NarrowOp::UnsignedEdge { flip } => {
+                    p.edge |= bit;
+                    p.edge_flip = flip;
+                }
+                NarrowOp::Special { on_b, code } => p.patterns.push((on_b as usize, code, bit)),
+                NarrowOp::Alternating {
+                    on_b,
+                    pattern,
+                    inverse,
+                } => {
+                    p.patterns.push((on_b as usize, pattern, bit));
+                    p.patterns.push((on_b as usize, inverse, bit));
+                }
+                NarrowOp::ResultPattern { code } => p.patterns.push((2, code, bit)),
+                NarrowOp::ResultZeroFromNonzero { .. } => p.result_zero_from_nonzero |= bit,
+                NarrowOp::Generic => return None,
+            }
+        }
+        Some(p)
+    }
+
+    /// Records every bin and class `inputs` hits, as [`Catalogue::classify_narrow`] with
+    /// [`Detail::Bins`] does but without per-class dispatch. The bins come in another order
+    /// (which coverage counting does not care about); the classes are in catalogue order.
+    fn record(
+        &self,
+        cat: &Catalogue,
+        inputs: &Inputs,
+        t: &Trace<u128>,
+        group: &NarrowGroup,
+        hits: &mut Hits,
+    ) {
+        hits.clear(1);
+        let w = cat.model.width();
+        let mask = u128::low_mask(w);
+        let a = inputs.a.low_u128() & mask;
+        let b = inputs.b.low_u128() & mask;
+        let plan = &self.bins;
+        // The classes hit, gathered as their bins are found.
+        let mut m = self.always;
+        let with_cin = |k: u32| {
+            if cat.has_carry_in {
+                k * 2 + t.cin as u32
+            } else {
+                k
+            }
+        };
+        if let Some((base, slot)) = plan.result_bits {
+            hits.masks.push((!t.result & mask) as u64);
+            hits.masks.push(t.result as u64);
+            hits.dense.push(DenseHit {
+                base,
+                stride: 2,
+                slot,
+            });
+            hits.dense.push(DenseHit {
+                base: base + 1,
+                stride: 2,
+                slot: slot + 1,
+            });
+        }
+        if plan.chain_length.is_some() || plan.chain_carry_in.is_some() {
+            let (longest, from_cin) = narrow_chains(&t.path, w);
+            if let Some(base) = plan.chain_length {
+                hits.bins.push(base + longest);
+            }
+            if let (Some(base), Path::Ripple { c0: true, .. }) = (plan.chain_carry_in, t.path) {
+                hits.bins.push(base + from_cin);
+                m |= self.chain_carry_in;
+            }
+        }
+        if let (Some((base, slot)), Path::Ripple { x, y, carries, .. }) = (plan.cell_rows, t.path) {
+            m |= self.cell_rows;
+            let (nx, ny, c, nc) = (!x & mask, !y & mask, carries, !carries);
+            let pairs = [nx & ny, nx & y, x & ny, x & y];
+            for (p, &pair) in pairs.iter().enumerate() {
+                for (low, m) in [(0, pair & nc), (1, pair & c)] {
+                    if m != 0 {
+                        let row = (p as u32) * 2 + low;
+                        hits.masks.push(m as u64);
+                        hits.dense.push(DenseHit {
+                            base: base + row,
+                            stride: 8,
+                            slot: slot + row as u16,
+                        });
+                    }
+                }
+            }
+        }
+        for ((x, &(one, zero)), &(one_bit, zero_bit)) in
+            [a, b].iter().zip(&plan.walking).zip(&self.walking)
+        {
+            if let (Some(base), 1) = (one, x.count_ones()) {
+                hits.bins.push(base + x.trailing_zeros());
+                m |= one_bit;
+            }
+            let inv = !x & mask;
+            if let (Some(base), 1) = (zero, inv.count_ones()) {
+                hits.bins.push(base + inv.trailing_zeros());
+                m |= zero_bit;
+            }
+        }
+        if let Some(base) = plan.result_zero_from_nonzero {
+            let nonzero = t.va != 0 || (self.binary && t.vb != 0);
+            if nonzero && decode(t.result, w, cat.model.encoding()) == 0 {
+                hits.bins.push(base);
+                m |= self.result_zero_from_nonzero;
+            }
+        }
+        if let Some(base) = plan.overflow {
+            if let Some(k) = self.overflow_targets.iter().position(|v| *v == t.truth) {
+                hits.bins.push(base + with_cin(k as u32));
+                m |= self.overflow;
+            }
+        }
+        if let Some(base) = plan.edge {
+            let (ux, uy) = (a ^ self.edge_flip, b ^ self.edge_flip);
+            let c = t.cin as u128;
+            let k = if t.subtracting {
+                match ux.wrapping_sub(uy).wrapping_sub(c) {
+                    0 => Some(0),
+                    u128::MAX => Some(1),
+                    _ => None,
+                }
+            } else {
+                let sum = ux + uy + c;
+                if sum == mask {
+                    Some(0)
+                } else if sum == mask + 1 {
+                    Some(1)
+                } else {
+                    None
+                }
+            };
+            if let Some(k) = k {
+                hits.bins.push(base + with_cin(k));
+                m |= self.edge;
+            }
+        }
+        if group.open(a, b, t.result) != 0 {
+            let values = [a, b, t.result];
+            for (&(on, pattern, bit), &bin) in self.patterns.iter().zip(&plan.patterns) {
+                if values[on] == pattern {
+                    hits.bins.push(bin);
+                    m |= bit;
+                }
+            }
+        }
+        while m != 0 {
+            hits.classes.push(m.trailing_zeros() as u16);
+            m &= m - 1;
+        }
+    }
+
+    /// The classes `inputs` hits (bit c for class c).
+    #[inline]
+    fn classes(
+        &self,
+        cat: &Catalogue,
+        inputs: &Inputs,
+        t: &Trace<u128>,
+        group: &NarrowGroup,
+    ) -> u128 {
+        let w = cat.model.width();
+        let mask = u128::low_mask(w);
+        let a = inputs.a.low_u128() & mask;
+        let b = inputs.b.low_u128() & mask;
+        let set = |hit: bool, bit: u128| if hit { bit } else { 0 };
+        let mut m = self.always;
+        if let Path::Ripple { c0, .. } = t.path {
+            m |= self.cell_rows | set(c0, self.chain_carry_in);
+        }
+        for (x, &(one, zero)) in [a, b].iter().zip(&self.walking) {
+            m |= set(x.count_ones() == 1, one) | set((!x & mask).count_ones() == 1, zero);
+        }
+        if self.result_zero_from_nonzero != 0 {
+            let nonzero = t.va != 0 || (self.binary && t.vb != 0);
+            let zero = decode(t.result, w, cat.model.encoding()) == 0;
+            m |= set(nonzero && zero, self.result_zero_from_nonzero);
+        }
+        m |= set(self.overflow_targets.contains(&t.truth), self.overflow);
+        if self.edge != 0 {
+            let (ux, uy) = (a ^ self.edge_flip, b ^ self.edge_flip);
+            let c = t.cin as u128;
+            let hit = if t.subtracting {
+                let d = ux.wrapping_sub(uy).wrapping_sub(c);
+                d == 0 || d == u128::MAX
+            } else {
+                let sum = ux + uy + c;
+                sum == mask || sum == mask + 1
+            };
+            m |= set(hit, self.edge);
+        }
+        if group.open(a, b, t.result) != 0 {
+            let values = [a, b, t.result];
+            for &(on, pattern, bit) in &self.patterns {
+                m |= set(values[on] == pattern, bit);
+            }
+        }
+        m
+    }
+}
+
 /// The fast-path form of a [`Kind`]: the patterns it compares with, worked out once.
 #[derive(Debug, Clone, Copy)]
 enum NarrowOp {
@@ -1076,6 +1458,9 @@ enum NarrowOp {
     },
     ResultPattern {
         code: u128,
+    },
+    ResultZeroFromNonzero {
+        binary: bool,
     },
     ResultBits,
     OverflowBoundary {
@@ -1514,15 +1899,32 @@ mod tests {
                                 mode: rf & 2 == 2,
                             };
                             let t = cat.model.trace::<u128>(&inputs);
-                            for detail in [Detail::Bins, Detail::ClassesOnly] {
-                                cat.classify_narrow(&inputs, &t, &mut narrow, detail);
-                                cat.classify::<u128>(&inputs, &t, &mut generic, detail);
-                                assert_eq!(
-                                    snapshot(&narrow),
-                                    snapshot(&generic),
-                                    "{op:?} {enc:?} width {w} conventions {conv} {inputs:?}"
-                                );
-                            }
+                            cat.classify_narrow(&inputs, &t, &mut narrow, Detail::Bins);
+                            cat.classify::<u128>(&inputs, &t, &mut generic, Detail::Bins);
+                            assert_eq!(
+                                snapshot(&narrow),
+                                snapshot(&generic),
+                                "{op:?} {enc:?} width {w} conventions {conv} {inputs:?}"
+                            );
+                            // Classes only: the same classes (bins are not all recorded).
+                            let (mut cheap, mut full) = (Hits::new(), Hits::new());
+                            cat.classify_narrow(&inputs, &t, &mut cheap, Detail::ClassesOnly);
+                            cat.classify::<u128>(&inputs, &t, &mut full, Detail::ClassesOnly);
+                            assert_eq!(cheap.classes, full.classes, "{op:?} {enc:?} {w}");
+                            assert_eq!(cheap.classes, generic.classes, "{op:?} {enc:?} {w}");
+                            // Coverage recording: the same bins as a set, the same classes.
+                            let mut any_order = Hits::new();
+                            cat.evaluate_for_coverage(&inputs, &mut any_order);
+                            let (mut x, mut y) = (Vec::new(), Vec::new());
+                            any_order.for_each_bin(|b| x.push(b));
+                            generic.for_each_bin(|b| y.push(b));
+                            x.sort_unstable();
+                            y.sort_unstable();
+                            assert_eq!(x, y, "coverage bins {op:?} {enc:?} {w} {inputs:?}");
+                            assert_eq!(any_order.classes, generic.classes);
+                            let (_, mask) = cat.evaluate_class_mask(&inputs, &mut cheap);
+                            let want = generic.classes.iter().fold(0u128, |m, &c| m | 1 << c);
+                            assert_eq!(mask, Some(want), "class mask {op:?} {enc:?} {w}");
                         }
                     }
                 }

@@ -58,9 +58,21 @@ impl DenseCounter {
     /// Adds one to the count of every bin whose bit is set in `mask` (little-endian limbs).
     #[inline]
     fn add(&mut self, mask: &[u64]) {
-        for (j, lane) in self.lanes.iter_mut().enumerate() {
-            let byte = (mask[j / 8] >> (8 * (j % 8))) & 0xff;
-            *lane += SPREAD[byte as usize];
+        if let [limb] = *mask {
+            // Units up to 64 bits: one limb, at most eight lanes.
+            let mut m = limb;
+            for lane in self.lanes.iter_mut() {
+                *lane += SPREAD[(m & 0xff) as usize];
+                m >>= 8;
+            }
+        } else {
+            for (lanes, &limb) in self.lanes.chunks_mut(8).zip(mask) {
+                let mut m = limb;
+                for lane in lanes {
+                    *lane += SPREAD[(m & 0xff) as usize];
+                    m >>= 8;
+                }
+            }
         }
         self.pending += 1;
         if self.pending == LANE_LIMIT {
@@ -119,8 +131,11 @@ impl Coverage {
         for &b in &hits.bins {
             self.bin_hits[b as usize] += 1;
         }
-        for (i, d) in hits.dense.iter().enumerate() {
-            self.dense[d.slot as usize].add(hits.mask(i));
+        let limbs = hits.limbs.max(1);
+        for (d, mask) in hits.dense.iter().zip(hits.masks.chunks_exact(limbs)) {
+            if let Some(counter) = self.dense.get_mut(d.slot as usize) {
+                counter.add(mask);
+            }
         }
         for &c in &hits.classes {
             self.class_hits[c as usize] += 1;

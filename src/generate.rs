@@ -170,12 +170,20 @@ impl RandomStream {
     fn operand(&mut self) -> Word {
         let selector = self.rng.next_u32();
         let special = self.rng.next_u32();
+        let w = self.plan.width;
+        if w <= 64 && self.plan.mix == Mix::Uniform {
+            // Up to two words, low word first: the limb the loop below would build.
+            let mut v = self.rng.next_u32() as u64;
+            if self.plan.words_per_operand == 2 {
+                v |= (self.rng.next_u32() as u64) << 32;
+            }
+            return Word::from_u64(v & (u64::MAX >> (64 - w)));
+        }
         let mut limbs = [0u64; 8];
         for i in 0..self.plan.words_per_operand as usize {
             let v = self.rng.next_u32() as u64;
             limbs[i / 2] |= v << ((i % 2) * 32);
         }
-        let w = self.plan.width;
         if self.plan.mix == Mix::Corner && selector % 100 < self.plan.corner_share {
             // A special value, nudged by -2..=+2 to reach its neighbourhood.
             let base = self.pool[special as usize % self.pool.len()];

@@ -285,12 +285,14 @@ pub struct Model {
     zero_flag: ZeroFlag,
     has_carry_in: bool,
     force_wide: bool,
+    /// [`Model::ripple_view`] for mode false and true, worked out once.
+    views: [Option<RippleView>; 2],
 }
 
 impl Model {
     /// The model for `spec`.
     pub fn new(spec: &Spec) -> Model {
-        Model {
+        let mut model = Model {
             operation: spec.operation,
             encoding: spec.encoding,
             width: spec.width,
@@ -300,7 +302,10 @@ impl Model {
             zero_flag: spec.conventions.zero_flag,
             has_carry_in: spec.has(Signal::CarryIn),
             force_wide: false,
-        }
+            views: [None; 2],
+        };
+        model.views = [model.find_ripple_view(false), model.find_ripple_view(true)];
+        model
     }
 
     /// The same model, always on the wide arithmetic path (for cross-checking the fast path).
@@ -331,7 +336,12 @@ impl Model {
 
     /// The ripple datapath for the operation in `mode` (ignored unless addsub), or None when
     /// the unit has none (compare, sign-magnitude, one's-complement negate).
+    #[inline]
     pub(crate) fn ripple_view(&self, mode: bool) -> Option<RippleView> {
+        self.views[mode as usize]
+    }
+
+    fn find_ripple_view(&self, mode: bool) -> Option<RippleView> {
         use Source::*;
         let port = |invert: bool| {
             if self.has_carry_in {

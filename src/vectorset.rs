@@ -10,7 +10,9 @@
 use std::fs::File;
 use std::io::{BufRead, BufReader, Write};
 use std::path::{Path, PathBuf};
-use std::sync::mpsc;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::{mpsc, Condvar, Mutex};
+use std::time::Duration;
 
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
@@ -197,7 +199,83 @@ struct Formatter<'a> {
     expected: Packer,
     inputs: Vec<(Signal, u32)>,
     outputs: Vec<(Signal, u32)>,
+    /// The fast path for units up to 64 bits whose packed words fit in 128 bits.
+    narrow: Option<NarrowRows>,
 }
+
+/// Precomputed row shapes for the fast path: hex digits per CSV field and where each field
+/// sits in the packed words.
+struct NarrowRows {
+    /// The CSV's value columns: (signal number, hex digits), inputs then outputs.
+    columns: Vec<(usize, usize)>,
+    stimulus: NarrowWord,
+    expected: NarrowWord,
+}
+
+/// Every signal's value (low 64 bits), indexed by `Signal as usize`, so the row writer
+/// reads fields by number instead of matching on the signal per field.
+#[inline]
+fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 12] {
+    [
+        i.a.low_u64(),
+        i.b.low_u64(),
+        i.carry_in as u64,
+        i.mode as u64,
+        o.result.low_u64(),
+        o.carry_out as u64,
+        o.overflow as u64,
+        o.zero as u64,
+        o.negative as u64,
+        o.less as u64,
+        o.equal as u64,
+        o.greater as u64,
+    ]
+}
+
+/// One packed word of the fast path: (signal number, lowest bit, mask) per field and its
+/// digits.
+struct NarrowWord {
+    fields: Vec<(usize, u32, u64)>,
+    digits: usize,
+}
+
+impl NarrowWord {
+    fn of(layout: &WordLayout) -> Option<NarrowWord> {
+        (layout.width <= 128).then(|| NarrowWord {
+            fields: layout
+                .fields
+                .iter()
+                .map(|f| {
+                    let mask = u64::MAX >> (64 - f.width().min(64));
+                    (f.signal as usize, f.lsb, mask)
+                })
+                .collect(),
+            digits: layout.hex_digits() as usize,
+        })
+    }
+
+    /// The packed word, as [`Packer::push_line`] packs it.
+    #[inline]
+    fn pack(&self, values: &[u64; 12]) -> u128 {
+        let mut packed = 0u128;
+        for &(signal, lsb, mask) in &self.fields {
+            packed |= ((values[signal] & mask) as u128) << lsb;
+        }
+        packed
+    }
+}
+
+/// Two lowercase hex digits per byte value.
+const HEX_PAIRS: [[u8; 2]; 256] = {
+    const HEX: &[u8; 16] = b"0123456789abcdef";
+    let mut t = [[0u8; 2]; 256];
+    let mut i = 0;
+    while i < 256 {
+        t[i] = [HEX[i >> 4], HEX[i & 15]];
+        i += 1;
+    }
+    t
+};
 
 /// The formatted bytes of one chunk.
 #[derive(Default)]
@@ -214,8 +292,15 @@ impl Formatter<'_> {
         let mut hits = Hits::new();
         let mut classes = String::new();
         let mut stream = None;
-        // Random vectors repeat a handful of class sets; remember their texts.
-        let mut cache: Vec<(Vec<u16>, String)> = Vec::new();
+        // Random vectors repeat a handful of class sets; remember their texts, keyed by the
+        // set as a bit mask (catalogues of up to 128 classes) or as the list itself.
+        let mut cache: Vec<(u128, Vec<u16>, String)> = Vec::new();
+        let rows = (range.end - range.start) as usize;
+        if let Some(n) = &self.narrow {
+            chunk.csv.reserve(rows * 96);
+            chunk.stimulus.reserve(rows * (n.stimulus.digits + 1));
+            chunk.expected.reserve(rows * (n.expected.digits + 1));
+        }
         for index in range {
             let inputs = if index < d {
                 self.generator.directed()[index as usize]
@@ -224,24 +309,36 @@ impl Formatter<'_> {
                     .get_or_insert_with(|| self.generator.random_stream(index - d))
                     .next_inputs()
             };
-            let outputs = evaluate_vector(cat, &inputs, &mut hits, None);
-            let text = match cache
-                .iter()
-                .position(|(set, _)| set.as_slice() == hits.classes())
-            {
-                Some(i) => &cache[i].1,
+            let (outputs, mask) = cat.evaluate_class_mask(&inputs, &mut hits);
+            let found = cache.iter().position(|(k, set, _)| match mask {
+                Some(m) => *k == m,
+                None => set.as_slice() == hits.classes(),
+            });
+            let text = match found {
+                Some(i) => &cache[i].2,
                 None => {
                     classes.clear();
-                    cat.class_list(&hits, &mut classes);
+                    match mask {
+                        Some(m) => cat.class_list_of_mask(m, &mut classes),
+                        None => cat.class_list(&hits, &mut classes),
+                    }
                     if cache.len() < 64 {
-                        cache.push((hits.classes().to_vec(), classes.clone()));
-                        &cache[cache.len() - 1].1
+                        let set = if mask.is_some() {
+                            Vec::new()
+                        } else {
+                            hits.classes().to_vec()
+                        };
+                        cache.push((mask.unwrap_or(0), set, classes.clone()));
+                        &cache[cache.len() - 1].2
                     } else {
                         &classes
                     }
                 }
             };
-            self.push_row(index, &inputs, &outputs, text, chunk);
+            match &self.narrow {
+                Some(n) => push_row_narrow(n, index, &inputs, &outputs, text, chunk),
+                None => self.push_row(index, &inputs, &outputs, text, chunk),
+            }
         }
     }
 
@@ -272,6 +369,112 @@ impl Formatter<'_> {
     }
 }
 
+/// A row being built on the stack, appended to its file in one copy.
+struct Line {
+    bytes: [u8; 160],
+    len: usize,
+}
+
+impl Line {
+    fn new() -> Line {
+        Line {
+            bytes: [0; 160],
+            len: 0,
+        }
+    }
+
+    #[inline]
+    fn byte(&mut self, b: u8) {
+        self.bytes[self.len] = b;
+        self.len += 1;
+    }
+
+    /// The low `digits` hex digits of `v` (at most 32).
+    #[inline]
+    fn hex128(&mut self, v: u128, digits: usize) {
+        if digits > 16 {
+            self.hex((v >> 64) as u64, digits - 16);
+            self.hex(v as u64, 16);
+        } else {
+            self.hex(v as u64, digits);
+        }
+    }
+
+    /// The low `digits` hex digits of `v` (at most 16), two at a time from the right.
+    #[inline]
+    fn hex(&mut self, v: u64, digits: usize) {
+        let start = self.len;
+        let mut at = start + digits;
+        self.len = at;
+        let mut x = v;
+        while at >= start + 2 {
+            at -= 2;
+            self.bytes[at..at + 2].copy_from_slice(&HEX_PAIRS[(x & 0xff) as usize]);
+            x >>= 8;
+        }
+        if at > start {
+            self.bytes[start] = HEX_PAIRS[(x & 0xf) as usize][1];
+        }
+    }
+
+    /// `v` in decimal.
+    #[inline]
+    fn decimal(&mut self, v: u64) {
+        let mut buf = [0u8; 20];
+        let mut at = buf.len();
+        let mut x = v;
+        loop {
+            at -= 1;
+            buf[at] = b'0' + (x % 10) as u8;
+            x /= 10;
+            if x == 0 {
+                break;
+            }
+        }
+        let n = buf.len() - at;
+        self.bytes[self.len..self.len + n].copy_from_slice(&buf[at..]);
+        self.len += n;
+    }
+
+    fn flush(&mut self, out: &mut Vec<u8>) {
+        out.extend_from_slice(&self.bytes[..self.len]);
+        self.len = 0;
+    }
+}
+
+/// [`Formatter::push_row`] for the fast path: the same bytes, written from 64-bit values
+/// with a two-digit table into a stack buffer. The buffer's 160 bytes are ample: a row's
+/// numbers are the index (at most 20 digits), a, b and result (at most 16 digits each),
+/// at most six one-digit flags and their commas, under 100 bytes; the class list is copied
+/// after them.
+#[inline]
+fn push_row_narrow(
+    n: &NarrowRows,
+    index: u64,
+    inputs: &Inputs,
+    outputs: &Outputs,
+    classes: &str,
+    chunk: &mut Chunk,
+) {
+    let values = signal_values(inputs, outputs);
+    let mut line = Line::new();
+    line.decimal(index);
+    for &(s, digits) in &n.columns {
+        line.byte(b',');
+        line.hex(values[s], digits);
+    }
+    line.byte(b',');
+    line.flush(&mut chunk.csv);
+    chunk.csv.extend_from_slice(classes.as_bytes());
+    chunk.csv.push(b'\n');
+    line.hex128(n.stimulus.pack(&values), n.stimulus.digits);
+    line.byte(b'\n');
+    line.flush(&mut chunk.stimulus);
+    line.hex128(n.expected.pack(&values), n.expected.digits);
+    line.byte(b'\n');
+    line.flush(&mut chunk.expected);
+}
+
 /// The CSV header row (with newline).
 pub fn csv_header(spec: &Spec) -> String {
     let mut s = String::from("index");
@@ -296,7 +499,26 @@ pub fn csv_row(generator: &Generator, spec: &Spec, index: u64, inputs: &Inputs) 
 
 fn formatter<'a>(generator: &'a Generator, spec: &Spec) -> Formatter<'a> {
     let layout = Layout::for_spec(spec);
+    let columns = spec
+        .inputs()
+        .into_iter()
+        .chain(spec.outputs())
+        .map(|(s, _)| (s as usize, s.width(spec.width).div_ceil(4) as usize))
+        .collect();
+    let narrow = match (
+        spec.width <= 64,
+        NarrowWord::of(&layout.stimulus),
+        NarrowWord::of(&layout.expected),
+    ) {
+        (true, Some(stimulus), Some(expected)) => Some(NarrowRows {
+            columns,
+            stimulus,
+            expected,
+        }),
+        _ => None,
+    };
     Formatter {
+        narrow,
         generator,
         stimulus: Packer::new(&layout.stimulus),
         expected: Packer::new(&layout.expected),
@@ -339,6 +561,75 @@ fn push_hex(w: &Word, width: u32, out: &mut Vec<u8>) {
         let limbs = w.limbs();
         for d in (0..digits).rev() {
             out.push(HEX[((limbs[(d / 16) as usize] >> ((d % 16) * 4)) & 0xf) as usize]);
+        }
+    }
+}
+
+/// A file that takes chunks in order from several workers.
+struct Turn {
+    state: Mutex<TurnState>,
+    ready: Condvar,
+}
+
+struct TurnState {
+    file: PendingFile,
+    /// The chunk the file takes next.
+    next: u64,
+    error: Option<Error>,
+}
+
+impl Turn {
+    fn new(file: PendingFile) -> Turn {
+        Turn {
+            state: Mutex::new(TurnState {
+                file,
+                next: 0,
+                error: None,
+            }),
+            ready: Condvar::new(),
+        }
+    }
+
+    /// Waits until the file has taken chunk `c - 1`, then appends `bytes` as chunk `c`.
+    /// False when the write failed or another worker's did (`abort`): stop.
+    fn append(&self, c: u64, bytes: &[u8], abort: &AtomicBool) -> bool {
+        let Ok(mut state) = self.state.lock() else {
+            abort.store(true, Ordering::Relaxed);
+            return false;
+        };
+        while state.next != c {
+            if abort.load(Ordering::Relaxed) {
+                return false;
+            }
+            // Timed, so a worker waiting here notices an abort raised at another file.
+            match self.ready.wait_timeout(state, Duration::from_millis(50)) {
+                Ok((s, _)) => state = s,
+                Err(_) => {
+                    abort.store(true, Ordering::Relaxed);
+                    return false;
+                }
+            }
+        }
+        if let Err(e) = state.file.write(bytes) {
+            state.error = Some(e);
+            abort.store(true, Ordering::Relaxed);
+            return false;
+        }
+        state.next += 1;
+        drop(state);
+        self.ready.notify_all();
+        true
+    }
+
+    /// The file back, or the error that stopped it.
+    fn finish(self) -> Result<PendingFile> {
+        let state = match self.state.into_inner() {
+            Ok(s) => s,
+            Err(poisoned) => poisoned.into_inner(),
+        };
+        match state.error {
+            Some(e) => Err(e),
+            None => Ok(state.file),
         }
     }
 }
@@ -419,7 +710,7 @@ pub fn write(
             return Err(e);
         }
     };
-    let result = (|| -> Result<()> {
+    let result = (|| -> Result<[PendingFile; 3]> {
         if first_shard {
             csv.write(csv_header(spec).as_bytes())?;
             stim.write(header("stimulus", &spec.name, &layout.stimulus, total).as_bytes())?;
@@ -431,7 +722,7 @@ pub fn write(
                 .map_or(1, |n| n.get())
                 .min(4),
             n => n,
-        };
+        } as u64;
         // Chunks small enough to keep memory flat, large enough to amortise hand-offs.
         let chunk_len: u64 = if spec.width <= 64 { 16384 } else { 2048 };
         let chunks = (range.end - range.start).div_ceil(chunk_len);
@@ -439,55 +730,53 @@ pub fn write(
             let s = range.start + c * chunk_len;
             s..(s + chunk_len).min(range.end)
         };
-        // Spent chunks go back to the workers so their buffers are reused.
-        let (return_tx, return_rx) = mpsc::channel::<Chunk>();
-        let return_rx = std::sync::Mutex::new(return_rx);
-        std::thread::scope(|scope| -> Result<()> {
-            let mut receivers = Vec::new();
-            for t in 0..threads as u64 {
-                let (tx, rx) = mpsc::sync_channel::<Chunk>(2);
-                receivers.push(rx);
-                let formatter = &formatter;
-                let return_rx = &return_rx;
+        // Worker t formats chunks t, t + threads, ... and appends each to the three files
+        // itself, every file taking the chunks in order. The files are locked separately,
+        // so one worker can hash and write its chunk of vectors.csv while another writes the
+        // previous chunk's hex files: hashing, the one step that cannot be split, runs on
+        // several cores at once. A worker holds one chunk, so memory stays flat.
+        let files = [Turn::new(csv), Turn::new(stim), Turn::new(exp)];
+        let abort = AtomicBool::new(false);
+        let (done_tx, done_rx) = mpsc::channel::<u64>();
+        std::thread::scope(|scope| {
+            for t in 0..threads {
+                let done_tx = done_tx.clone();
+                let (formatter, files, abort) = (&formatter, &files, &abort);
                 scope.spawn(move || {
+                    let mut chunk = Chunk::default();
                     let mut c = t;
-                    while c < chunks {
-                        let mut chunk = return_rx
-                            .lock()
-                            .ok()
-                            .and_then(|r| r.try_recv().ok())
-                            .unwrap_or_default();
+                    while c < chunks && !abort.load(Ordering::Relaxed) {
                         chunk.csv.clear();
                         chunk.stimulus.clear();
                         chunk.expected.clear();
-                        formatter.format_range(chunk_range(c), &mut chunk);
-                        if tx.send(chunk).is_err() {
-                            return;
+                        let rows = chunk_range(c);
+                        formatter.format_range(rows.clone(), &mut chunk);
+                        let parts = [&chunk.csv, &chunk.stimulus, &chunk.expected];
+                        for (file, bytes) in files.iter().zip(parts) {
+                            if !file.append(c, bytes, abort) {
+                                return;
+                            }
                         }
-                        c += threads as u64;
+                        let _ = done_tx.send(rows.end - rows.start);
+                        c += threads;
                     }
                 });
             }
+            drop(done_tx);
+            // Progress is a running sum, so the order chunks finish in does not matter.
             let mut written = 0;
-            for c in 0..chunks {
-                let rx = &receivers[(c % threads as u64) as usize];
-                let Ok(chunk) = rx.recv() else {
-                    break;
-                };
-                csv.write(&chunk.csv)?;
-                stim.write(&chunk.stimulus)?;
-                exp.write(&chunk.expected)?;
-                written += chunk_range(c).end - chunk_range(c).start;
+            for n in done_rx {
+                written += n;
                 if let Some(p) = options.progress.as_mut() {
                     p(written);
                 }
-                let _ = return_tx.send(chunk);
             }
-            drop(receivers);
-            Ok(())
-        })
+        });
+        let [csv, stim, exp] = files;
+        Ok([csv.finish()?, stim.finish()?, exp.finish()?])
     })();
-    let finished = result.and_then(|()| Ok([csv.finish()?, stim.finish()?, exp.finish()?]));
+    let finished =
+        result.and_then(|[csv, stim, exp]| Ok([csv.finish()?, stim.finish()?, exp.finish()?]));
     let finished = match finished {
         Ok(f) => f,
         Err(e) => {
