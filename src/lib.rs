@@ -40,59 +40,51 @@
 
 #![deny(missing_docs)]
 
-mod bits;
-mod check;
-mod classes;
-mod coverage;
-mod encoding;
+// The pipeline, in order: spec -> arith -> corners -> sets -> sim -> verdict, with the
+// gate-level side (gates) beside sim/verdict. Each stage may import only the stages before it;
+// tests/layout.rs keeps that true.
+mod arith;
+mod corners;
 mod error;
-mod fault;
-mod generate;
-mod grade;
-mod hexfile;
-mod layout;
-mod log;
-mod model;
-mod netlist;
-mod report;
+mod gates;
+mod sets;
+mod sim;
 mod spec;
-mod testbench;
-mod vectorset;
-mod word;
+mod verdict;
 
-pub use check::{
-    merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,
-    FieldValueReport, LogProblems, Observed, OutOfStep, OutputReport, Verdict, EVIDENCE_NOTE,
-};
-pub use classes::{Catalogue, Class, Hits};
-pub use coverage::{
-    BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
-};
-pub use encoding::Value;
+pub use arith::encoding::Value;
+pub use arith::model::{Inputs, Model, Outputs};
+pub use arith::word::{hex_digits, Word, MAX_WIDTH};
+pub use corners::classes::{Catalogue, Class, Hits};
+pub use corners::generate::{Generator, RandomStream};
 pub use error::{Error, ErrorKind, Problem, Result};
-pub use fault::{
+pub use gates::fault::{
     compact, detection_matrix, grade, grade_with, DetectionMatrix, Fault, FaultEntry, FaultList,
     FaultReport, FaultSite, GradeOptions, PatternSet, PortValue, Redundancy, SimulationMode,
 };
-pub use generate::{Generator, RandomStream};
-pub use grade::{write_selection, BuiltinModel, GradeOutcome, Grader, NetlistMismatch};
-pub use hexfile::Packer;
-pub use layout::{Field, Layout, WordLayout};
-pub use log::{FieldValue, LogReader, LogRow, Radix, RowError};
-pub use model::{Inputs, Model, Outputs};
-pub use netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
-pub use report::{render_junit, render_text, verdict_line, ClassRows};
-pub use spec::{
-    is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
-    NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
-};
-pub use testbench::{
-    emit_testbench, testbench_file_name, testbench_name, Hdl, TestbenchOptions,
-    MAX_TESTBENCH_VECTORS,
-};
-pub use vectorset::{
+pub use gates::grade::{write_selection, BuiltinModel, GradeOutcome, Grader, NetlistMismatch};
+pub use gates::netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
+pub use sets::hexfile::Packer;
+pub use sets::layout::{Field, Layout, WordLayout};
+pub use sets::vectorset::{
     csv_header, csv_row, read_manifest, sha256_hex, spec_identity, write as write_vector_set,
     FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord, Selection, Shard, VectorSet,
     WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
-pub use word::{hex_digits, Word, MAX_WIDTH};
+pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
+pub use sim::testbench::{
+    emit_testbench, testbench_file_name, testbench_name, Hdl, TestbenchOptions,
+    MAX_TESTBENCH_VECTORS,
+};
+pub use spec::{
+    is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
+    NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
+};
+pub use verdict::check::{
+    merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,
+    FieldValueReport, LogProblems, Observed, OutOfStep, OutputReport, Verdict, EVIDENCE_NOTE,
+};
+pub use verdict::coverage::{
+    BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
+};
+pub use verdict::report::{render_junit, render_text, verdict_line, ClassRows};

@@ -12,11 +12,9 @@ use arithvec::{
     Generator, Hdl, Problem, Shard, Signal, Spec, TestbenchOptions, Value, WriteOptions,
 };
 
-mod cli_check;
-mod cli_grade;
-mod cli_util;
+mod cli;
 
-use cli_util::{out, read_spec, Outcome};
+use cli::util::{out, read_spec, Outcome};
 
 const AFTER_HELP: &str = "Exit codes: 0 success; 1 check found mismatches or unknowns; \
 2 bad input or usage; 3 coverage short of a requirement.\n\n\
@@ -116,14 +114,14 @@ enum Command {
         self_check: bool,
     },
     /// Check a simulator's result log against the golden model and score coverage.
-    #[command(after_help = cli_check::CHECK_HELP)]
-    Check(cli_check::CheckArgs),
+    #[command(after_help = cli::check::CHECK_HELP)]
+    Check(cli::check::CheckArgs),
     /// Combine JSON check reports of several runs or shards of one spec.
-    #[command(after_help = cli_check::MERGE_HELP)]
-    Merge(cli_check::MergeArgs),
+    #[command(after_help = cli::check::MERGE_HELP)]
+    Merge(cli::check::MergeArgs),
     /// Grade the single stuck-at fault coverage of a vector set on a gate netlist.
-    #[command(after_help = cli_grade::GRADE_HELP)]
-    Grade(cli_grade::GradeArgs),
+    #[command(after_help = cli::grade::GRADE_HELP)]
+    Grade(cli::grade::GradeArgs),
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -192,9 +190,9 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             settle,
             self_check,
         } => testbench(&spec, &vectors, hdl, output, settle, self_check, quiet),
-        Command::Check(args) => cli_check::check(args, quiet),
-        Command::Merge(args) => cli_check::merge(args, quiet),
-        Command::Grade(args) => cli_grade::grade(args, quiet),
+        Command::Check(args) => cli::check::check(args, quiet),
+        Command::Merge(args) => cli::check::merge(args, quiet),
+        Command::Grade(args) => cli::grade::grade(args, quiet),
     }
 }
 
@@ -232,7 +230,7 @@ fn gen(
         let r = s.range(generator.total());
         r.end - r.start
     });
-    let bar = cli_util::progress_bar(total, quiet, "vectors");
+    let bar = cli::util::progress_bar(total, quiet, "vectors");
     let mut tick = |n: u64| {
         if let Some(b) = &bar {
             b.set_position(n);
@@ -267,16 +265,16 @@ fn gen(
             spec.name,
             dir.display()
         )
-        .map_err(cli_util::stdout_error)?;
+        .map_err(cli::util::stdout_error)?;
         for f in &manifest.files {
             writeln!(
                 o,
                 "  {:<13} {:>12} bytes  sha256 {}",
                 f.name, f.bytes, f.sha256
             )
-            .map_err(cli_util::stdout_error)?;
+            .map_err(cli::util::stdout_error)?;
         }
-        writeln!(o, "  {:<13}", "manifest.json").map_err(cli_util::stdout_error)?;
+        writeln!(o, "  {:<13}", "manifest.json").map_err(cli::util::stdout_error)?;
     }
     Ok(Outcome::Success)
 }
@@ -315,7 +313,7 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
             })
             .collect();
         let text = serde_json::to_string_pretty(&list).expect("json");
-        writeln!(o, "{text}").map_err(cli_util::stdout_error)?;
+        writeln!(o, "{text}").map_err(cli::util::stdout_error)?;
         return Ok(Outcome::Success);
     }
     let mut rows: Vec<[String; 4]> = Vec::new();
@@ -354,8 +352,8 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
     } else {
         ["class", "description", "bins", "directed vectors"]
     };
-    let table = cli_util::table(&header, &rows);
-    writeln!(o, "{table}").map_err(cli_util::stdout_error)?;
+    let table = cli::util::table(&header, &rows);
+    writeln!(o, "{table}").map_err(cli::util::stdout_error)?;
     writeln!(
         o,
         "unit {}: {} {} {} bits; {} classes, {} reachable bins; {} directed vectors",
@@ -369,7 +367,7 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
             .count(),
         generator.directed().len()
     )
-    .map_err(cli_util::stdout_error)?;
+    .map_err(cli::util::stdout_error)?;
     Ok(Outcome::Success)
 }
 
@@ -393,7 +391,7 @@ fn repro(
             csv_header(&spec),
             csv_row(&generator, &spec, index, &inputs)
         )
-        .map_err(cli_util::stdout_error)?;
+        .map_err(cli::util::stdout_error)?;
         return Ok(Outcome::Success);
     }
     let cat = generator.catalogue();
@@ -410,7 +408,7 @@ fn repro(
         "vector {index} of unit {} ({} {} {} bits): {origin}",
         spec.name, spec.operation, spec.encoding, spec.width
     )
-    .map_err(cli_util::stdout_error)?;
+    .map_err(cli::util::stdout_error)?;
     let mut rows = Vec::new();
     for (sig, name) in spec.inputs() {
         rows.push(field_row("input", sig, name, &inputs.get(sig), &spec));
@@ -418,11 +416,11 @@ fn repro(
     for (sig, name) in spec.outputs() {
         rows.push(field_row("expected", sig, name, &outputs.get(sig), &spec));
     }
-    let table = cli_util::table(&["", "port", "hex", "binary", "value"], &rows);
-    writeln!(o, "{table}").map_err(cli_util::stdout_error)?;
+    let table = cli::util::table(&["", "port", "hex", "binary", "value"], &rows);
+    writeln!(o, "{table}").map_err(cli::util::stdout_error)?;
     let mut list = String::new();
     cat.class_list(&hits, &mut list);
-    writeln!(o, "classes: {list}").map_err(cli_util::stdout_error)?;
+    writeln!(o, "classes: {list}").map_err(cli::util::stdout_error)?;
     // Per-bit families (cell rows, result bits) hit a bin at every bit; list the others
     // and count those.
     let mut bins = Vec::new();
@@ -444,7 +442,7 @@ fn repro(
     for (class, n) in per_bit {
         listed.push(format!("{} ({n} bins)", cat.classes()[class].id()));
     }
-    writeln!(o, "bins: {}", listed.join(" ")).map_err(cli_util::stdout_error)?;
+    writeln!(o, "bins: {}", listed.join(" ")).map_err(cli::util::stdout_error)?;
     Ok(Outcome::Success)
 }
 
@@ -492,7 +490,7 @@ fn testbench(
         }
     })?;
     let path = output.unwrap_or_else(|| PathBuf::from(testbench_file_name(&spec, hdl)));
-    cli_util::write_atomic(&path, text.as_bytes())?;
+    cli::util::write_atomic(&path, text.as_bytes())?;
     if !quiet {
         let mut o = out();
         writeln!(
@@ -507,7 +505,7 @@ fn testbench(
             spec.name,
             if self_check { " (self-checking)" } else { "" }
         )
-        .map_err(cli_util::stdout_error)?;
+        .map_err(cli::util::stdout_error)?;
     }
     Ok(Outcome::Success)
 }

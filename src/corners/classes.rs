@@ -12,11 +12,11 @@
 //! This module owns the predicates ([`Catalogue::classify`]); `generate` owns construction.
 //! It does no I/O.
 
-use crate::bits::{Bits, Wide};
-use crate::encoding::{decode, max_value, min_value, negative_zero};
-use crate::model::{Cell, Inputs, Model, Outputs, Path, Trace};
+use crate::arith::bits::{Bits, Wide};
+use crate::arith::encoding::{decode, max_value, min_value, negative_zero};
+use crate::arith::model::{Cell, Inputs, Model, Outputs, Path, Trace};
+use crate::arith::word::Word;
 use crate::spec::{Encoding, Operation, Signal, Spec};
-use crate::word::Word;
 
 /// Which operand an operand class watches.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

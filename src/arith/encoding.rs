@@ -6,9 +6,9 @@
 
 use std::fmt;
 
-use crate::bits::{Bits, Wide};
+use crate::arith::bits::{Bits, Wide};
+use crate::arith::word::Word;
 use crate::spec::Encoding;
-use crate::word::Word;
 
 /// The value of pattern `p` (low `width` bits) under `enc`.
 pub(crate) fn decode<B: Bits>(p: B, width: u32, enc: Encoding) -> B {

@@ -7,8 +7,8 @@
 //! lines and `//` comments anywhere; it does not accept `@address` lines or x/z digits in
 //! vector files. Pure formatting and parsing: no file access.
 
-use crate::layout::WordLayout;
-use crate::word::Word;
+use crate::arith::word::Word;
+use crate::sets::layout::WordLayout;
 
 /// Limbs enough for the widest packed word (2 x 512 operand bits + carry-in + mode).
 const PACK_LIMBS: usize = 17;
@@ -114,7 +114,7 @@ pub fn header(what: &str, unit: &str, layout: &WordLayout, vectors: u64) -> Stri
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::layout::Layout;
+    use crate::sets::layout::Layout;
     use crate::spec::{Encoding, Operation, Signal, Spec};
 
     #[test]

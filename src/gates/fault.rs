@@ -27,9 +27,9 @@ use std::collections::HashMap;
 
 use serde::Serialize;
 
+use crate::arith::word::{Word, MAX_WIDTH};
 use crate::error::{Error, Problem, Result};
-use crate::netlist::{Driver, GateKind, NetId, Netlist};
-use crate::word::{Word, MAX_WIDTH};
+use crate::gates::netlist::{Driver, GateKind, NetId, Netlist};
 
 /// Where a stuck-at fault sits.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
@@ -1313,7 +1313,7 @@ fn classify(engine: &mut Engine, faults: &[Fault], limit: u32, lanes: usize) -> 
             }
             for &g in &gates {
                 let gate = &nl.gates()[g as usize];
-                good[gate.output().index()] = crate::netlist::gate_value(gate, &good);
+                good[gate.output().index()] = crate::gates::netlist::gate_value(gate, &good);
             }
             open.retain(|&m| {
                 let i = members[m];
@@ -1547,7 +1547,7 @@ pub fn compact(matrix: &DetectionMatrix, must_cover: &[Vec<usize>]) -> Result<Ve
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::netlist::NetlistBuilder;
+    use crate::gates::netlist::NetlistBuilder;
 
     /// A tiny deterministic generator for test patterns (xorshift64*; common practice).
     struct Rng(u64);

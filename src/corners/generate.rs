@@ -17,12 +17,12 @@ use rand_chacha::ChaCha20Rng;
 use rand_core::{Rng, SeedableRng};
 use sha2::{Digest, Sha256};
 
-use crate::bits::{Bits, Wide};
-use crate::classes::{alternating, Catalogue, Detail, Hits, Kind, Operand, Special};
-use crate::encoding::{decode, max_value, min_value};
-use crate::model::{CarrySource, Cell, Inputs, Outputs, RippleView, Source};
+use crate::arith::bits::{Bits, Wide};
+use crate::arith::encoding::{decode, max_value, min_value};
+use crate::arith::model::{CarrySource, Cell, Inputs, Outputs, RippleView, Source};
+use crate::arith::word::Word;
+use crate::corners::classes::{alternating, Catalogue, Detail, Hits, Kind, Operand, Special};
 use crate::spec::{Encoding, Mix, Operation, Signal, Spec};
-use crate::word::Word;
 
 /// The directed set and the random plan for one spec.
 #[derive(Debug, Clone)]
@@ -615,7 +615,9 @@ impl Solver<'_> {
 
     /// The port value that gives arithmetic carry (or borrow) `c`.
     fn port_for(&self, c: bool) -> bool {
-        if self.subtracting && self.spec.conventions.carry_in == crate::CarryInConvention::Carry {
+        if self.subtracting
+            && self.spec.conventions.carry_in == crate::spec::CarryInConvention::Carry
+        {
             !c
         } else {
             c

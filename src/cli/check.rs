@@ -11,7 +11,7 @@ use arithvec::{
     Verdict,
 };
 
-use crate::cli_util::{out, read_spec, stdout_error, write_atomic, Outcome};
+use crate::cli::util::{out, read_spec, stdout_error, write_atomic, Outcome};
 
 pub const CHECK_HELP: &str = "Example:\n  arithvec check unit.toml --log results.csv --vectors vec/ --require 100 \\\n      --junit check.xml --json check.json\n\n\
 The log has a header row naming columns after the spec's ports (and optionally `index`), \

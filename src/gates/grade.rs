@@ -10,23 +10,23 @@
 use std::borrow::Cow;
 use std::path::Path;
 
-use crate::classes::Hits;
+use crate::arith::model::{Inputs, Outputs};
+use crate::arith::word::Word;
+use crate::corners::classes::Hits;
+use crate::corners::generate::Generator;
 use crate::error::{Error, Problem, Result};
-use crate::fault::{
+use crate::gates::fault::{
     compact, detection_matrix, grade_with, DetectionMatrix, FaultList, FaultReport, GradeOptions,
     PatternSet, SimulationMode,
 };
-use crate::generate::Generator;
-use crate::hexfile::{header, Packer};
-use crate::layout::Layout;
-use crate::model::{Inputs, Outputs};
-use crate::netlist::Netlist;
-use crate::spec::{Encoding, Operation, Signal, Spec};
-use crate::vectorset::{
+use crate::gates::netlist::Netlist;
+use crate::sets::hexfile::{header, Packer};
+use crate::sets::layout::Layout;
+use crate::sets::vectorset::{
     csv_header, csv_row, sha256_hex, spec_identity, FileRecord, Manifest, ManifestLayout,
     ManifestWord, Selection, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
-use crate::word::Word;
+use crate::spec::{Encoding, Operation, Signal, Spec};
 
 /// The structural models arithvec can grade without a netlist file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

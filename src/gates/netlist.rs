@@ -15,8 +15,8 @@ use std::fmt;
 use serde::de::{Deserializer, MapAccess, Visitor};
 use serde::Deserialize;
 
+use crate::arith::word::{Word, MAX_WIDTH};
 use crate::error::{Error, Problem, Result};
-use crate::word::{Word, MAX_WIDTH};
 
 /// The index of one bit-level net in a [`Netlist`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]

@@ -10,8 +10,7 @@ use std::fmt::Write as _;
 /// Number of 64-bit limbs in a [`Word`].
 pub const LIMBS: usize = 8;
 
-/// The widest operand arithvec handles, in bits.
-pub const MAX_WIDTH: u32 = 512;
+pub use crate::spec::MAX_WIDTH;
 
 /// An unsigned bit pattern of up to [`MAX_WIDTH`] bits. Bits above the field width are zero
 /// wherever arithvec produces a `Word`.

@@ -6,7 +6,7 @@
 //! true results (which need N + 2 bits) without ever overflowing, so "true result" means
 //! the mathematical value. Tests force the wide path at small widths and compare.
 
-use crate::word::{Word, LIMBS};
+use crate::arith::word::{Word, LIMBS};
 
 /// Integer operations the model needs, at the type's full capacity (wrapping).
 pub(crate) trait Bits: Copy + Eq + std::fmt::Debug {

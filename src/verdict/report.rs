@@ -9,8 +9,8 @@ use quick_junit::{NonSuccessKind, Report, TestCase, TestCaseStatus, TestSuite};
 use tabled::builder::Builder;
 use tabled::settings::Style;
 
-use crate::check::{CheckReport, Verdict};
-use crate::coverage::ClassStatus;
+use crate::verdict::check::{CheckReport, Verdict};
+use crate::verdict::coverage::ClassStatus;
 
 fn table(header: &[&str], rows: Vec<Vec<String>>) -> String {
     let mut b = Builder::default();
@@ -108,7 +108,7 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
         .iter()
         .filter(|k| k.status == ClassStatus::Failing)
         .collect();
-    let mut telling: Vec<&crate::coverage::BinFailures> = failing
+    let mut telling: Vec<&crate::verdict::coverage::BinFailures> = failing
         .iter()
         .flat_map(|k| k.failing_bins.iter())
         .filter(|b| b.failures == b.hits && b.hits > 1)

@@ -14,19 +14,19 @@ use std::sync::{mpsc, Arc, Mutex};
 
 use serde::{Deserialize, Serialize};
 
-use crate::classes::Hits;
-use crate::coverage::{
-    summarise, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
-};
-use crate::encoding::Value;
+use crate::arith::encoding::Value;
+use crate::arith::model::{Inputs, Outputs};
+use crate::arith::word::{Word, LIMBS};
+use crate::corners::classes::Hits;
+use crate::corners::generate::{Generator, RandomStream};
 use crate::error::Error;
 use crate::error::Problem;
-use crate::generate::{Generator, RandomStream};
-use crate::log::{find_newline, LineFormat, LineOutcome, LogReader, LogRow};
-use crate::model::{Inputs, Outputs};
+use crate::sets::vectorset::{spec_identity, Manifest};
+use crate::sim::log::{find_newline, LineFormat, LineOutcome, LogReader, LogRow};
 use crate::spec::{Encoding, Signal, Spec};
-use crate::vectorset::{spec_identity, Manifest};
-use crate::word::{Word, LIMBS};
+use crate::verdict::coverage::{
+    summarise, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
+};
 
 /// The plain statement every report carries.
 pub const EVIDENCE_NOTE: &str = "Coverage of corner classes is evidence, not proof of \
@@ -1537,9 +1537,9 @@ impl CheckReport {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::log::Radix;
+    use crate::sets::vectorset::{write, WriteOptions};
+    use crate::sim::log::Radix;
     use crate::spec::{Encoding, Operation};
-    use crate::vectorset::{write, WriteOptions};
 
     /// A log of `generator`'s vectors with every kind of trouble: wrong and unknown outputs,
     /// unknown operands, duplicates, an index past the set, operands out of step, missing
@@ -1672,8 +1672,8 @@ mod tests {
                         }),
                         Ok(true) => c.log_row(&row),
                         Ok(false) => break,
-                        Err(crate::log::RowError::Line(p)) => c.bad_line(&p),
-                        Err(crate::log::RowError::Io(e)) => panic!("{e}"),
+                        Err(crate::sim::log::RowError::Line(p)) => c.bad_line(&p),
+                        Err(crate::sim::log::RowError::Io(e)) => panic!("{e}"),
                     }
                 }
                 let got = serde_json::to_string(&c.finish()).expect("json");
@@ -1700,7 +1700,7 @@ mod tests {
             match r.read_row(&mut row) {
                 Ok(true) => {}
                 Ok(false) => break,
-                Err(crate::log::RowError::Line(p)) if sequential.len() < 20 => {
+                Err(crate::sim::log::RowError::Line(p)) if sequential.len() < 20 => {
                     sequential.push(p.to_string())
                 }
                 Err(_) => break,

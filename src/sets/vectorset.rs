@@ -17,14 +17,14 @@ use std::time::Duration;
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 
-use crate::classes::Hits;
+use crate::arith::model::{Inputs, Outputs};
+use crate::arith::word::Word;
+use crate::corners::classes::Hits;
+use crate::corners::generate::{evaluate_vector, Generator};
 use crate::error::{Error, Problem, Result};
-use crate::generate::{evaluate_vector, Generator};
-use crate::hexfile::{header, Packer};
-use crate::layout::{Layout, WordLayout};
-use crate::model::{Inputs, Outputs};
+use crate::sets::hexfile::{header, Packer};
+use crate::sets::layout::{Layout, WordLayout};
 use crate::spec::{Signal, Spec};
-use crate::word::Word;
 
 /// File names inside a vector-set directory.
 pub const VECTORS_CSV: &str = "vectors.csv";

@@ -10,8 +10,8 @@ use arithvec::{
     write_selection, BuiltinModel, Error, GradeOutcome, Grader, Netlist, Problem, VectorSet,
 };
 
-use crate::cli_check::open_vectors;
-use crate::cli_util::{out, read_spec, stdout_error, Outcome};
+use crate::cli::check::open_vectors;
+use crate::cli::util::{out, read_spec, stdout_error, Outcome};
 
 pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n\n\
 The netlist's module is [dut] module unless --module says otherwise; its ports are matched by \
@@ -132,7 +132,7 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             report.module, report.vectors, spec.name
         )
         .map_err(stdout_error)?;
-        let t = crate::cli_util::table(
+        let t = crate::cli::util::table(
             &[
                 "vectors",
                 "faults",
@@ -204,7 +204,10 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             writeln!(
                 o,
                 "{}",
-                crate::cli_util::table(&["net", "fault", "site", "driven by", "redundancy"], &rows)
+                crate::cli::util::table(
+                    &["net", "fault", "site", "driven by", "redundancy"],
+                    &rows
+                )
             )
             .map_err(stdout_error)?;
             if report.undetected.len() > 50 {

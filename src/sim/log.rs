@@ -67,9 +67,9 @@ use std::path::Path;
 use std::str::FromStr;
 use std::sync::Arc;
 
+use crate::arith::word::{hex_digits, Word, LIMBS, MAX_WIDTH};
 use crate::error::{Error, Problem, Result};
 use crate::spec::{Signal, Spec};
-use crate::word::{hex_digits, Word, LIMBS, MAX_WIDTH};
 
 /// The number of distinct signals, and so of value slots in a [`LogRow`].
 const SLOTS: usize = Signal::ALL.len();

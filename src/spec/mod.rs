@@ -5,6 +5,8 @@
 //! every problem in the file (unknown keys, wrong types, ports the operation does not have,
 //! conventions that would have no effect) and reports each with its line and key. Nothing here
 //! does arithmetic; `model` reads a validated [`Spec`].
+//!
+//! Stage 1 of the pipeline: it may import only `crate::error`.
 
 use std::collections::BTreeMap;
 use std::fmt;
@@ -14,7 +16,9 @@ use toml::de::{DeTable, DeValue};
 use toml::Spanned;
 
 use crate::error::{Error, Problem, Result};
-use crate::word::MAX_WIDTH;
+
+/// The widest operand arithvec handles, in bits.
+pub const MAX_WIDTH: u32 = 512;
 
 /// The arithmetic operation the unit performs.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]

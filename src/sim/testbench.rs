@@ -18,7 +18,7 @@ use std::collections::BTreeMap;
 use std::fmt::Write as _;
 
 use crate::error::{Error, Problem, Result};
-use crate::layout::{Field, Layout, WordLayout};
+use crate::sets::layout::{Field, Layout, WordLayout};
 use crate::spec::{Dut, NegativeZero, ParamValue, Signal, Spec};
 
 /// The hardware description language of an emitted testbench.

@@ -7,13 +7,15 @@
 //! them, the carry or borrow into every bit, the true result), which the corner-class
 //! catalogue reads. The model knows nothing about files, ports or formats.
 
-use crate::bits::{Bits, Wide};
-use crate::encoding::{decode, encode, is_negative_zero, negative_zero, representable, sign_bit};
+use crate::arith::bits::{Bits, Wide};
+use crate::arith::encoding::{
+    decode, encode, is_negative_zero, negative_zero, representable, sign_bit,
+};
+use crate::arith::word::Word;
 use crate::spec::{
     CarryInConvention, CarryOutConvention, Encoding, NegativeZero, Operation, Signal, Spec,
     ZeroFlag,
 };
-use crate::word::Word;
 
 /// The inputs of one vector. Fields the unit lacks are zero / false.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]

@@ -8,7 +8,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::classes::{Catalogue, Hits};
+use crate::corners::classes::{Catalogue, Hits};
 
 /// Adds a byte lane takes before the lanes are folded into the exact totals (a lane byte
 /// holds at most 255).

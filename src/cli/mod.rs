@@ -1,0 +1,8 @@
+//! The command-line layer (part of the `arithvec` binary, not the library): argument parsing
+//! helpers, the `check` and `grade` commands, output files and exit codes.
+//!
+//! May import only the library's public API (`arithvec::...`) and its own modules.
+
+pub(crate) mod check;
+pub(crate) mod grade;
+pub(crate) mod util;
