@@ -88,3 +88,4 @@ pub use verdict::coverage::{
     BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
 };
 pub use verdict::report::{render_junit, render_text, verdict_line, ClassRows};
+pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};

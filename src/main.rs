@@ -103,7 +103,8 @@ enum Command {
         /// Hardware description language of the testbench.
         #[arg(long, value_enum, default_value_t = HdlArg::Verilog)]
         hdl: HdlArg,
-        /// Output file (default: the testbench's own name in the current directory).
+        /// Output file ("-" for standard output; default: the testbench's own name in the
+        /// current directory).
         #[arg(long, short)]
         output: Option<PathBuf>,
         /// Settle time per vector, in time units (ns for VHDL).
@@ -223,6 +224,7 @@ fn gen(
     shard: Option<&str>,
     quiet: bool,
 ) -> Result<Outcome, Error> {
+    cli::util::refuse_collisions(&[("SPEC", spec_path)], &[("--out", dir)])?;
     let spec = read_spec(spec_path)?;
     let shard = shard.map(parse_shard).transpose()?;
     let generator = Generator::new(&spec, count, seed);
@@ -455,6 +457,12 @@ fn testbench(
     self_check: bool,
     quiet: bool,
 ) -> Result<Outcome, Error> {
+    if let Some(o) = &output {
+        cli::util::refuse_collisions(
+            &[("SPEC", spec_path), ("--vectors", vectors)],
+            &[("--output", o)],
+        )?;
+    }
     let spec = read_spec(spec_path)?;
     let manifest = arithvec::read_manifest(vectors)?;
     if manifest.spec_sha256 != arithvec::spec_identity(&spec) {
@@ -471,6 +479,7 @@ fn testbench(
         HdlArg::Vhdl => Hdl::Vhdl,
     };
     let mut options = TestbenchOptions::new(hdl, manifest.vectors);
+    options.first_index = manifest.first_index;
     options.settle = settle;
     options.self_check = self_check;
     let text = emit_testbench(&spec, &options).map_err(|e| {
@@ -490,8 +499,8 @@ fn testbench(
         }
     })?;
     let path = output.unwrap_or_else(|| PathBuf::from(testbench_file_name(&spec, hdl)));
-    cli::util::write_atomic(&path, text.as_bytes())?;
-    if !quiet {
+    cli::util::write_output(&path, text.as_bytes())?;
+    if !quiet && !cli::util::is_stdout(&path) {
         let mut o = out();
         writeln!(
             o,

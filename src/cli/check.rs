@@ -11,7 +11,9 @@ use arithvec::{
     Verdict,
 };
 
-use crate::cli::util::{out, read_spec, stdout_error, write_atomic, Outcome};
+use crate::cli::util::{
+    is_stdout, out, read_spec, refuse_collisions, stdout_error, write_output, Outcome,
+};
 
 pub const CHECK_HELP: &str = "Example:\n  arithvec check unit.toml --log results.csv --vectors vec/ --require 100 \\\n      --junit check.xml --json check.json\n\n\
 The log has a header row naming columns after the spec's ports (and optionally `index`), \
@@ -24,8 +26,12 @@ team's own verification plan.";
 
 pub const MERGE_HELP: &str =
     "Example:\n  arithvec merge run1.json run2.json shard3.json -o all.json --require 100\n\n\
-Reports must come from `arithvec check --json` on the same spec (the [random] table may \
-differ) and the same arithvec version. Exit codes as for check.";
+Reports must come from `arithvec check --json` on the same spec (the [random] table and \
+[dut] may differ) and the same arithvec version. Counts and coverage add up; completeness is \
+judged over the union of the runs' seen indices: the runs of one vector set must see every \
+index once (indices seen twice are duplicates). The same run given twice is refused (exit 2).\n\n\
+Incremental: `arithvec merge --into total.json shard7.json` merges into total.json in place \
+(starting it when it does not exist yet). Exit codes as for check.";
 
 #[derive(Args)]
 pub struct CheckArgs {
@@ -53,10 +59,10 @@ pub struct CheckArgs {
     /// Class coverage required, in percent (exit 3 when short).
     #[arg(long, value_name = "PCT", value_parser = parse_percent)]
     require: Option<f64>,
-    /// Write JUnit XML here (one test case per corner class).
+    /// Write JUnit XML here (one test case per corner class; "-" for standard output).
     #[arg(long, value_name = "FILE")]
     junit: Option<PathBuf>,
-    /// Write the JSON report here.
+    /// Write the JSON report here ("-" for standard output).
     #[arg(long, value_name = "FILE")]
     json: Option<PathBuf>,
     /// List only classes that are not covered in the text report.
@@ -66,19 +72,22 @@ pub struct CheckArgs {
 
 #[derive(Args)]
 pub struct MergeArgs {
-    /// JSON reports from `arithvec check --json`.
+    /// JSON reports from `arithvec check --json` (or earlier merges).
     #[arg(required = true)]
     reports: Vec<PathBuf>,
-    /// Write the merged JSON report here.
+    /// Write the merged JSON report here ("-" for standard output).
     #[arg(long, short)]
     output: Option<PathBuf>,
+    /// Merge the reports into this merged report, in place (created when missing).
+    #[arg(long, value_name = "TOTAL.json", conflicts_with = "output")]
+    into: Option<PathBuf>,
     /// Class coverage required, in percent (exit 3 when short).
     #[arg(long, value_name = "PCT", value_parser = parse_percent)]
     require: Option<f64>,
     /// Hits a bin needs to count as covered.
     #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u64).range(1..))]
     at_least: u64,
-    /// Write JUnit XML here.
+    /// Write JUnit XML here ("-" for standard output).
     #[arg(long, value_name = "FILE")]
     junit: Option<PathBuf>,
     /// Failures shown in detail.
@@ -162,6 +171,18 @@ pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Er
 }
 
 pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
+    let mut inputs: Vec<(&str, &Path)> = vec![("SPEC", &args.spec), ("--log", &args.log)];
+    if let Some(v) = &args.vectors {
+        inputs.push(("--vectors", v));
+    }
+    let mut outputs: Vec<(&str, &Path)> = Vec::new();
+    if let Some(j) = &args.json {
+        outputs.push(("--json", j));
+    }
+    if let Some(j) = &args.junit {
+        outputs.push(("--junit", j));
+    }
+    refuse_collisions(&inputs, &outputs)?;
     let spec = read_spec(&args.spec)?;
     let (manifest, generator) = match &args.vectors {
         Some(dir) => {
@@ -251,39 +272,72 @@ fn emit(
     if let Some(path) = json {
         let mut text = serde_json::to_string_pretty(report).expect("report serialises");
         text.push('\n');
-        write_atomic(path, text.as_bytes())?;
+        write_output(path, text.as_bytes())?;
     }
     if let Some(path) = junit {
-        write_atomic(path, render_junit(report).as_bytes())?;
+        write_output(path, render_junit(report).as_bytes())?;
     }
-    let mut o = out();
-    if quiet {
-        writeln!(o, "{}", verdict_line(report)).map_err(stdout_error)?;
+    let text = if quiet {
+        format!("{}\n", verdict_line(report))
     } else {
         let rows = if brief {
             ClassRows::Problems
         } else {
             ClassRows::All
         };
-        write!(o, "{}", render_text(report, rows)).map_err(stdout_error)?;
+        render_text(report, rows)
+    };
+    // When a report file goes to standard output, the text for people goes to stderr so
+    // the file stays parseable.
+    if json.is_some_and(is_stdout) || junit.is_some_and(is_stdout) {
+        eprint!("{text}");
+        return Ok(());
     }
+    let mut o = out();
+    write!(o, "{text}").map_err(stdout_error)?;
     o.flush().map_err(stdout_error)
 }
 
-pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
-    let mut reports = Vec::new();
-    for path in &args.reports {
-        let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
-        let r: CheckReport = serde_json::from_str(&text).map_err(|e| {
-            Error::problem(
-                Problem::new(
-                    path.display().to_string(),
-                    format!("not an arithvec check report: {e}"),
-                )
-                .at_line(e.line()),
+/// Reads one JSON check report.
+fn read_report(path: &Path) -> Result<CheckReport, Error> {
+    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    serde_json::from_str(&text).map_err(|e| {
+        Error::problem(
+            Problem::new(
+                path.display().to_string(),
+                format!("not an arithvec check report: {e}"),
             )
-        })?;
-        reports.push((path.display().to_string(), r));
+            .at_line(e.line()),
+        )
+    })
+}
+
+pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
+    let inputs: Vec<(&str, &Path)> = args
+        .reports
+        .iter()
+        .map(|r| ("REPORT", r.as_path()))
+        .collect();
+    let mut outputs: Vec<(&str, &Path)> = Vec::new();
+    if let Some(o) = &args.output {
+        outputs.push(("--output", o));
+    }
+    if let Some(into) = &args.into {
+        // --into is read and rewritten in place on purpose; it must not also be a REPORT.
+        outputs.push(("--into", into));
+    }
+    if let Some(j) = &args.junit {
+        outputs.push(("--junit", j));
+    }
+    refuse_collisions(&inputs, &outputs)?;
+    let mut reports = Vec::new();
+    if let Some(into) = &args.into {
+        if into.exists() {
+            reports.push((into.display().to_string(), read_report(into)?));
+        }
+    }
+    for path in &args.reports {
+        reports.push((path.display().to_string(), read_report(path)?));
     }
     let (first_name, first) = &reports[0];
     let spec = Spec::parse(&first.spec_toml, &format!("{first_name} (spec_toml)"))?;
@@ -298,7 +352,7 @@ pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
     let merged = merge_reports(&spec, &generator, &reports, &options).map_err(Error::problem)?;
     emit(
         &merged,
-        args.output.as_deref(),
+        args.output.as_deref().or(args.into.as_deref()),
         args.junit.as_deref(),
         quiet,
         args.brief,

@@ -58,6 +58,14 @@ pub struct GradeArgs {
 }
 
 pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
+    if let Some(dir) = &args.out {
+        let mut inputs: Vec<(&str, &std::path::Path)> =
+            vec![("SPEC", &args.spec), ("--vectors", &args.vectors)];
+        if let Some(n) = &args.netlist {
+            inputs.push(("--netlist", n));
+        }
+        crate::cli::util::refuse_collisions(&inputs, &[("--out", dir)])?;
+    }
     let spec = read_spec(&args.spec)?;
     let (manifest, generator) = open_vectors(&args.vectors, &spec)?;
     let set = VectorSet::read(&args.vectors, &spec)?;

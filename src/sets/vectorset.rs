@@ -172,11 +172,17 @@ fn hex_of(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()
 }
 
-/// The unit identity hash: the normalised spec without `[random]`.
+/// The unit identity hash: the normalised spec without `[random]` and `[dut]`.
+///
+/// The identity is what determines the vectors and their files: name (it heads the files),
+/// operation, width, encoding, ports and conventions. `[random]`'s count and seed are
+/// recorded in the manifest on their own (reports of several seeds merge); `[dut]` only
+/// names the module a testbench or netlist instantiates, so changing it leaves the set valid.
 pub fn spec_identity(spec: &Spec) -> String {
     let mut v: serde_json::Value = serde_json::from_str(&spec.normalised_json()).expect("json");
     if let Some(o) = v.as_object_mut() {
         o.remove("random");
+        o.remove("dut");
     }
     sha256_hex(v.to_string().as_bytes())
 }

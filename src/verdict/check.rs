@@ -21,12 +21,13 @@ use crate::corners::classes::Hits;
 use crate::corners::generate::{Generator, RandomStream};
 use crate::error::Error;
 use crate::error::Problem;
-use crate::sets::vectorset::{spec_identity, Manifest};
+use crate::sets::vectorset::{sha256_hex, spec_identity, Manifest};
 use crate::sim::log::{find_newline, LineFormat, LineOutcome, LogReader, LogRow};
 use crate::spec::{Encoding, Signal, Spec};
 use crate::verdict::coverage::{
     summarise, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
 };
+use crate::verdict::seen::{self, RunRecord, SeenIndices, SetIdentity};
 
 /// The plain statement every report carries.
 pub const EVIDENCE_NOTE: &str = "Coverage of corner classes is evidence, not proof of \
@@ -153,6 +154,10 @@ pub struct LogProblems {
     pub bad_line_count: u64,
     /// Operands out of step with the vector set.
     pub out_of_step: Option<OutOfStep>,
+    /// In a merged report: index ranges that more than one merged run checked (at most 20;
+    /// their rows are counted in `duplicate_count`).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub overlapping: Vec<[u64; 2]>,
 }
 
 impl LogProblems {
@@ -224,6 +229,10 @@ pub struct CheckReport {
     pub note: String,
     /// Exact coverage counts, for merge.
     pub counts: CoverageCounts,
+    /// Which indices of which vector set were checked, exactly (one entry per set).
+    pub seen: Vec<SeenIndices>,
+    /// The check runs this report is made of (one for a check; every merged run for merge).
+    pub runs: Vec<RunRecord>,
 }
 
 /// Where a worker gets a vector's inputs by index: the directed list, or the random stream,
@@ -289,6 +298,17 @@ impl Seen {
         self.words
             .get((i / 64) as usize)
             .is_some_and(|w| w & (1 << (i % 64)) != 0)
+    }
+
+    /// Every marked index as inclusive ranges, ascending, joined where adjacent.
+    fn ranges(&self) -> Vec<[u64; 2]> {
+        let mut ranges = Vec::new();
+        seen::bitmap_ranges(&self.words, &mut ranges);
+        // The sparse indices are all at or above DENSE, so after the bitmap's.
+        for &i in &self.sparse {
+            seen::push_range(&mut ranges, i, i);
+        }
+        ranges
     }
 }
 
@@ -807,6 +827,8 @@ pub struct Checker<'g> {
     generator: &'g Generator,
     logs: Vec<String>,
     seen: Seen,
+    /// The vector set the indices refer to, when one was given.
+    set_identity: Option<SetIdentity>,
     position: u64,
     problems: LogProblems,
     /// The batch being filled.
@@ -887,6 +909,7 @@ impl<'g> Checker<'g> {
             generator,
             logs: Vec::new(),
             seen: Seen::default(),
+            set_identity: set.map(set_identity),
             // A log without an index column starts at the set's first vector, so a shard's
             // testbench that plays its own stimulus.hex from line one is checked in step.
             position: set.map_or(0, |m| m.first_index),
@@ -1247,6 +1270,16 @@ impl<'g> Checker<'g> {
         }
         let merged = std::mem::take(&mut self.merger.verdicts);
         self.problems.out_of_step = merged.out_of_step;
+        // Only rows judged count as seen: indices outside the set were marked but not judged.
+        let ranges = match self.shared.set {
+            Some((first, count)) => seen::clip(&self.seen.ranges(), first, count),
+            None => self.seen.ranges(),
+        };
+        let seen = vec![SeenIndices {
+            set: self.set_identity.take(),
+            count: seen::count(&ranges).unwrap_or(u64::MAX),
+            ranges,
+        }];
         build_report(
             &self.shared.spec,
             self.generator,
@@ -1256,7 +1289,32 @@ impl<'g> Checker<'g> {
             merged.failures,
             std::mem::take(&mut self.problems),
             &self.shared.options,
+            seen,
+            None,
         )
+    }
+}
+
+/// The identity of the vector set `m` describes (for a selected set, its own positions).
+fn set_identity(m: &Manifest) -> SetIdentity {
+    match &m.selection {
+        Some(s) => {
+            let list: Vec<String> = s.indices.iter().map(u64::to_string).collect();
+            SetIdentity {
+                seed: m.seed,
+                directed: s.source_directed,
+                random: s.source_random,
+                total: m.vectors,
+                selection_sha256: Some(sha256_hex(list.join(",").as_bytes())),
+            }
+        }
+        None => SetIdentity {
+            seed: m.seed,
+            directed: m.directed,
+            random: m.random,
+            total: m.total,
+            selection_sha256: None,
+        },
     }
 }
 
@@ -1402,6 +1460,8 @@ fn build_report(
     failures: Vec<Failure>,
     problems: LogProblems,
     options: &CheckOptions,
+    seen: Vec<SeenIndices>,
+    runs: Option<Vec<RunRecord>>,
 ) -> CheckReport {
     let (coverage, classes) = summarise(generator.catalogue(), &counts, options.at_least);
     let met = options.require.is_none_or(|r| coverage.percent >= r);
@@ -1412,7 +1472,7 @@ fn build_report(
     } else {
         Verdict::Pass
     };
-    CheckReport {
+    let mut report = CheckReport {
         tool: "arithvec".into(),
         version: env!("CARGO_PKG_VERSION").into(),
         unit: spec.name.clone(),
@@ -1434,11 +1494,36 @@ fn build_report(
         verdict,
         note: EVIDENCE_NOTE.into(),
         counts,
-    }
+        seen,
+        runs: Vec::new(),
+    };
+    report.runs = match runs {
+        Some(runs) => runs,
+        None => {
+            // A check is one run; its id is the hash of everything else it reports.
+            let text = serde_json::to_string(&report).expect("report serialises");
+            vec![RunRecord {
+                id: sha256_hex(text.as_bytes()),
+                logs: report.logs.clone(),
+                vectors: report.vectors,
+                passed: report.passed,
+                failed: report.failed,
+                unknown: report.unknown,
+            }]
+        }
+    };
+    report
 }
 
 /// Combines reports of several runs or shards of one spec into one verdict. Errors (as a
-/// message) when the reports are of different specs or arithvec versions.
+/// problem naming the report) when the reports are of different specs or arithvec versions,
+/// when a report is inconsistent (its counts do not add up, its seen indices are malformed),
+/// when one run is given twice (naming both reports), or when a sum overflows.
+///
+/// Counts and coverage are sums over the runs. Completeness is judged over the union: the
+/// runs of one vector set (same seed and counts, sharded or not) must together see every
+/// index of the set exactly once; indices seen by several runs are duplicates. Runs checked
+/// without a vector set are kept apart (their indices are the logs' own labels).
 pub fn merge(
     spec: &Spec,
     generator: &Generator,
@@ -1447,10 +1532,23 @@ pub fn merge(
 ) -> Result<CheckReport, Problem> {
     let identity = spec_identity(spec);
     let mut counts: Option<CoverageCounts> = None;
-    let (mut vectors, mut passed, mut failed, mut unknown) = (0, 0, 0, 0);
+    let (mut vectors, mut passed, mut failed, mut unknown) = (0u64, 0u64, 0u64, 0u64);
     let mut failures = Vec::new();
     let mut problems = LogProblems::default();
     let mut logs = Vec::new();
+    let mut runs: Vec<RunRecord> = Vec::new();
+    // Run id -> the report it came from.
+    let mut run_files: BTreeMap<String, &str> = BTreeMap::new();
+    // Seen indices per vector set, and the set-less entries as they are.
+    let mut by_set: BTreeMap<SetIdentity, Vec<&[[u64; 2]]>> = BTreeMap::new();
+    let mut unlabelled: Vec<SeenIndices> = Vec::new();
+    let overflow = |name: &str, field: &str| {
+        Problem::new(
+            name.to_string(),
+            format!("the merged {field} does not fit in 64 bits; a report is corrupt"),
+        )
+        .field(field)
+    };
     for (name, r) in reports {
         if r.spec_sha256 != identity {
             return Err(Problem::new(
@@ -1475,46 +1573,105 @@ pub fn merge(
             )
             .field("version"));
         }
-        if r.counts.bin_hits.len() != generator.catalogue().bin_count() {
+        let cat = generator.catalogue();
+        let c = &r.counts;
+        if c.bin_hits.len() != cat.bin_count()
+            || c.bin_failures.len() != cat.bin_count()
+            || c.class_hits.len() != cat.classes().len()
+            || c.class_failures.len() != cat.classes().len()
+        {
             return Err(Problem::new(
                 name.clone(),
                 "report's coverage counts do not match this spec's classes",
             )
             .field("counts"));
         }
+        check_consistent(name, r)?;
+        for run in &r.runs {
+            if let Some(other) = run_files.insert(run.id.clone(), name) {
+                return Err(Problem::new(
+                    name.clone(),
+                    format!(
+                        "{other} and {name} both hold the run of log(s) {} (run id {}); \
+                         the same run must not be merged twice",
+                        run.logs.join(", "),
+                        run.id
+                    ),
+                )
+                .field("runs"));
+            }
+            runs.push(run.clone());
+        }
         match &mut counts {
-            Some(c) => c.add(&r.counts),
+            Some(sum) => {
+                if !sum.checked_add(&r.counts) {
+                    return Err(overflow(name, "counts"));
+                }
+            }
             None => counts = Some(r.counts.clone()),
         }
-        vectors += r.vectors;
-        passed += r.passed;
-        failed += r.failed;
-        unknown += r.unknown;
+        let add =
+            |a: u64, b: u64, field: &str| a.checked_add(b).ok_or_else(|| overflow(name, field));
+        vectors = add(vectors, r.vectors, "vectors")?;
+        passed = add(passed, r.passed, "passed")?;
+        failed = add(failed, r.failed, "failed")?;
+        unknown = add(unknown, r.unknown, "unknown")?;
         for f in &r.failures {
             if failures.len() < options.max_failures {
                 failures.push(f.clone());
             }
         }
         let p = &r.log_problems;
-        problems.missing += p.missing;
-        problems
-            .missing_first
-            .extend(p.missing_first.iter().copied());
-        problems.missing_first.truncate(20);
-        problems.duplicate_count += p.duplicate_count;
+        problems.duplicate_count = add(
+            problems.duplicate_count,
+            p.duplicate_count,
+            "duplicate_count",
+        )?;
         problems.duplicates.extend(p.duplicates.iter().copied());
         problems.duplicates.truncate(20);
         problems.out_of_range.extend(p.out_of_range.iter().copied());
         problems.out_of_range.truncate(20);
-        problems.bad_line_count += p.bad_line_count;
+        problems.bad_line_count = add(problems.bad_line_count, p.bad_line_count, "bad_line_count")?;
         problems.bad_lines.extend(p.bad_lines.iter().cloned());
         problems.bad_lines.truncate(20);
         if problems.out_of_step.is_none() {
             problems.out_of_step = p.out_of_step.clone();
         }
+        for entry in &r.seen {
+            match &entry.set {
+                Some(set) => by_set.entry(set.clone()).or_default().push(&entry.ranges),
+                None => unlabelled.push(entry.clone()),
+            }
+        }
         logs.extend(r.logs.iter().cloned());
     }
     let counts = counts.ok_or_else(|| Problem::new("merge", "no reports given"))?;
+    // Completeness and duplicates over the union, per vector set.
+    let mut seen = Vec::new();
+    for (set, lists) in by_set {
+        let union = seen::unite(&lists, 20);
+        let (missing, first) = seen::gaps(&union.ranges, set.total, 20);
+        problems.missing = problems
+            .missing
+            .checked_add(missing)
+            .ok_or_else(|| overflow("merge", "missing"))?;
+        if problems.missing_first.len() < 20 {
+            problems.missing_first.extend(first);
+            problems.missing_first.truncate(20);
+        }
+        problems.duplicate_count = problems
+            .duplicate_count
+            .checked_add(union.overlap_count)
+            .ok_or_else(|| overflow("merge", "duplicate_count"))?;
+        problems.overlapping.extend(union.overlaps);
+        problems.overlapping.truncate(20);
+        seen.push(SeenIndices {
+            set: Some(set),
+            count: seen::count(&union.ranges).unwrap_or(u64::MAX),
+            ranges: union.ranges,
+        });
+    }
+    seen.extend(unlabelled);
     Ok(build_report(
         spec,
         generator,
@@ -1524,7 +1681,73 @@ pub fn merge(
         failures,
         problems,
         options,
+        seen,
+        Some(runs),
     ))
+}
+
+/// Refuses a report whose own numbers disagree: rows that do not add up, seen indices that
+/// are malformed, outside their set, or not as many as the rows checked.
+fn check_consistent(name: &str, r: &CheckReport) -> Result<(), Problem> {
+    let bad = |field: &str, why: String| Err(Problem::new(name.to_string(), why).field(field));
+    let judged = r
+        .passed
+        .checked_add(r.failed)
+        .and_then(|n| n.checked_add(r.unknown));
+    if judged != Some(r.vectors) {
+        return bad(
+            "vectors",
+            format!(
+                "passed {} + failed {} + unknown {} is not vectors {}; the report is corrupt",
+                r.passed, r.failed, r.unknown, r.vectors
+            ),
+        );
+    }
+    if r.runs.is_empty() {
+        return bad("runs", "the report lists no runs; re-run the check".into());
+    }
+    let mut seen_total = 0u64;
+    for (k, entry) in r.seen.iter().enumerate() {
+        if let Some(why) = seen::malformed(&entry.ranges) {
+            return bad("seen", format!("seen entry {k}: {why}"));
+        }
+        let n = seen::count(&entry.ranges);
+        if n != Some(entry.count) {
+            return bad(
+                "seen",
+                format!(
+                    "seen entry {k}: its ranges hold {} indices, not its count {}",
+                    n.map_or("more than 2^64".into(), |n| n.to_string()),
+                    entry.count
+                ),
+            );
+        }
+        if let (Some(set), Some(last)) = (&entry.set, entry.ranges.last()) {
+            if last[1] >= set.total {
+                return bad(
+                    "seen",
+                    format!(
+                        "seen entry {k}: index {} is outside its set of {} vectors",
+                        last[1], set.total
+                    ),
+                );
+            }
+        }
+        seen_total = match seen_total.checked_add(entry.count) {
+            Some(t) => t,
+            None => return bad("seen", "the seen counts overflow".into()),
+        };
+    }
+    if seen_total != r.vectors {
+        return bad(
+            "seen",
+            format!(
+                "the report saw {seen_total} indices but checked {} vectors; the report is corrupt",
+                r.vectors
+            ),
+        );
+    }
+    Ok(())
 }
 
 impl CheckReport {

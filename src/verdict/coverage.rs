@@ -193,6 +193,32 @@ impl CoverageCounts {
         sum(&mut self.class_hits, &other.class_hits);
         sum(&mut self.class_failures, &other.class_failures);
     }
+
+    /// Adds another report's counts, refusing (false, and `self` unchanged) when the lists
+    /// differ in length or a sum does not fit in 64 bits: merged counts are exact or absent.
+    pub fn checked_add(&mut self, other: &CoverageCounts) -> bool {
+        let sum = |a: &[u64], b: &[u64]| -> Option<Vec<u64>> {
+            if a.len() != b.len() {
+                return None;
+            }
+            a.iter().zip(b).map(|(x, y)| x.checked_add(*y)).collect()
+        };
+        let (Some(bh), Some(bf), Some(ch), Some(cf)) = (
+            sum(&self.bin_hits, &other.bin_hits),
+            sum(&self.bin_failures, &other.bin_failures),
+            sum(&self.class_hits, &other.class_hits),
+            sum(&self.class_failures, &other.class_failures),
+        ) else {
+            return false;
+        };
+        *self = CoverageCounts {
+            bin_hits: bh,
+            bin_failures: bf,
+            class_hits: ch,
+            class_failures: cf,
+        };
+        true
+    }
 }
 
 /// A class's coverage verdict.
