@@ -198,6 +198,17 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
             p.duplicate_count, p.duplicates
         ));
     }
+    if !p.overlapping.is_empty() {
+        let ranges: Vec<String> = p
+            .overlapping
+            .iter()
+            .map(|r| format!("{}..={}", r[0], r[1]))
+            .collect();
+        s.push_str(&format!(
+            "merged runs checked these indices more than once: {}\n",
+            ranges.join(", ")
+        ));
+    }
     if !p.out_of_range.is_empty() {
         s.push_str(&format!(
             "log has indices outside the vector set (index, line): {:?}\n",
