@@ -156,3 +156,24 @@ fn slurm_array_job_of_four_shards_equals_the_unsharded_run() {
     assert_same_as_unsharded(&merged, &whole);
     assert_eq!(merged["runs"].as_array().unwrap().len(), 4);
 }
+
+/// The same flow on GHDL (VHDL testbench and DUT, two shards): the VHDL testbench of shard 1
+/// logs global indices too, and the merge equals the unsharded Icarus run.
+#[test]
+fn gnu_parallel_farm_on_ghdl_equals_the_unsharded_icarus_run() {
+    if !(require("iverilog") && require("vvp") && require("ghdl") && require("parallel")) {
+        return;
+    }
+    let sb = Sandbox::new();
+    let spec = level_delta(&sb, COUNT);
+    let whole = unsharded(&sb, &spec);
+    let dut = [
+        crate::sim::hdl("vhdl/full_subtractor.vhd"),
+        crate::sim::hdl("vhdl/ripple_sub.vhd"),
+    ];
+    let mut args = vec![spec.as_str(), "2", "ghdl"];
+    args.extend(dut.iter().map(String::as_str));
+    let (status, output) = script(&sb, "scripts/farm-parallel.sh", &args, &[("OUT", "farm")]);
+    assert_eq!(status, 0, "farm-parallel.sh on GHDL failed:\n{output}");
+    assert_same_as_unsharded(&sb.json("farm/merged.json"), &whole);
+}
