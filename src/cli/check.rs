@@ -7,8 +7,8 @@ use clap::Args;
 
 use arithvec::{
     merge_reports, read_manifest, render_junit, render_text, verdict_line, CheckOptions,
-    CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Problem, Radix, Spec,
-    Verdict,
+    CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Mix, Problem, Radix,
+    Spec, Verdict,
 };
 
 use crate::cli::util::{
@@ -157,7 +157,33 @@ pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Er
         Some(s) => (s.source_random, s.source_directed),
         None => (manifest.random, manifest.directed),
     };
-    let generator = Generator::new(spec, Some(random), Some(manifest.seed));
+    // The set's own [random] draw (mix, corner share) determines its random vectors, as its
+    // own count and seed do; the spec's [random] table may differ (it is not in the identity).
+    let mut set_spec = spec.clone();
+    let r = &manifest.spec["random"];
+    set_spec.random.mix = match r["mix"].as_str() {
+        Some("uniform") => Mix::Uniform,
+        Some("corner") => Mix::Corner,
+        _ => {
+            return Err(Error::problem(
+                Problem::new(mpath, "the manifest's spec has no valid random.mix")
+                    .field("spec.random.mix"),
+            ))
+        }
+    };
+    set_spec.random.corner_share = match r["corner_share"].as_u64().map(u32::try_from) {
+        Some(Ok(share)) if share <= 100 => share,
+        _ => {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    "the manifest's spec has no valid random.corner_share",
+                )
+                .field("spec.random.corner_share"),
+            ))
+        }
+    };
+    let generator = Generator::new(&set_spec, Some(random), Some(manifest.seed));
     if generator.directed().len() as u64 != directed {
         return Err(Error::problem(
             Problem::new(

@@ -60,3 +60,34 @@ fn issue9_item10_dut_is_not_part_of_the_set_identity() {
         .expect_code(2)
         .expect_stderr("different spec");
 }
+
+/// The `[random]` table is not in the identity, so the set's own random draw must be used:
+/// a set generated with `mix = "corner"` and checked with a spec that has the default mix was
+/// reported "out of step" (exit 1), the checker regenerating uniform operands. The manifest's
+/// mix and corner share determine the set's vectors now.
+#[test]
+fn issue9_item10_the_sets_own_random_mix_regenerates_its_vectors() {
+    let sb = Sandbox::new();
+    let corner = sb.write(
+        "corner.toml",
+        &RESERVOIR_LEVEL.replace(
+            "seed = 3\n",
+            "seed = 3\nmix = \"corner\"\ncorner_share = 60\n",
+        ),
+    );
+    assert_ne!(
+        sb.read(&corner),
+        RESERVOIR_LEVEL,
+        "the fixture's [random] moved"
+    );
+    let plain = sb.write("plain.toml", RESERVOIR_LEVEL);
+    sb.gen(&corner, "vec", &[]);
+    let csv = VectorCsv::read(&sb, "vec");
+    // Outputs only: the operands come from the set by index.
+    let outputs: Vec<&str> = ["delta", "bout", "ovf", "empty", "neg"].to_vec();
+    let mut columns = vec!["index"];
+    columns.extend(outputs);
+    let log = sb.write("log.csv", &csv.table(&columns).csv());
+    let (_, report) = sb.check(&plain, &log, &["--vectors", "vec"], 0);
+    assert!(report["log_problems"]["out_of_step"].is_null());
+}
