@@ -238,6 +238,13 @@ fn gen(
             b.set_position(n);
         }
     };
+    // The directories this run creates, deepest first: a failed run removes them again (when
+    // they are still empty), so it leaves nothing behind.
+    let created: Vec<PathBuf> = dir
+        .ancestors()
+        .filter(|d| !d.as_os_str().is_empty() && !d.exists())
+        .map(Path::to_path_buf)
+        .collect();
     let manifest = write_vector_set(
         &generator,
         &spec,
@@ -247,7 +254,13 @@ fn gen(
             progress: Some(&mut tick),
             threads: 0,
         },
-    )?;
+    )
+    .inspect_err(|_| {
+        for d in &created {
+            // remove_dir refuses a directory that is not empty: only what this run made goes.
+            let _ = std::fs::remove_dir(d);
+        }
+    })?;
     if let Some(b) = bar {
         b.finish_and_clear();
     }

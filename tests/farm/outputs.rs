@@ -144,3 +144,38 @@ fn issue9_item12_dash_means_standard_output() {
     .expect_stderr("standard output");
     assert!(!sb.path("-").exists(), "a file named - was written");
 }
+
+/// Item 11: a failed `gen` left the (empty) output directory behind. A write that fails part
+/// way (here: a file-size limit of 1 KiB, `ulimit -f 1` with SIGXFSZ ignored, so the write
+/// returns EFBIG) leaves no directory it created; a directory that existed before stays.
+#[test]
+fn issue9_item11_a_failed_gen_leaves_no_directory() {
+    let (sb, spec) = set_and_log();
+    std::fs::create_dir(sb.path("existing")).unwrap();
+    for out in ["new/deeper/set", "existing"] {
+        let status = std::process::Command::new("bash")
+            .arg("-c")
+            .arg(format!(
+                "trap '' XFSZ; ulimit -f 1; exec \"$0\" gen {spec} --out {out} -q"
+            ))
+            .arg(crate::util::BIN)
+            .current_dir(sb.root())
+            .output()
+            .expect("run bash");
+        assert_eq!(
+            status.status.code(),
+            Some(2),
+            "{}",
+            String::from_utf8_lossy(&status.stderr)
+        );
+        assert!(String::from_utf8_lossy(&status.stderr).contains("File too large"));
+    }
+    assert!(
+        !sb.path("new").exists(),
+        "gen left the directories it created"
+    );
+    assert!(
+        sb.list("existing").is_empty(),
+        "gen left files in the existing directory"
+    );
+}
