@@ -82,9 +82,10 @@ pub use spec::{
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,
-    FieldValueReport, LogProblems, Observed, OutOfStep, OutputReport, Verdict, EVIDENCE_NOTE,
+    FieldValueReport, LogProblems, Observed, OutOfStep, OutputReport, OutputTally, Verdict,
+    EVIDENCE_NOTE,
 };
 pub use verdict::coverage::{
-    BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
+    surprise, BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
 };
-pub use verdict::report::{render_junit, render_text, verdict_line, ClassRows};
+pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict_line, ClassRows};

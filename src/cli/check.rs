@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 use clap::Args;
 
 use arithvec::{
-    merge_reports, read_manifest, render_junit, render_text, verdict_line, CheckOptions,
+    merge_reports, read_manifest, render_junit_timed, render_text, verdict_line, CheckOptions,
     CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Problem, Radix, Spec,
     Verdict,
 };
@@ -62,6 +62,10 @@ pub struct CheckArgs {
     /// List only classes that are not covered in the text report.
     #[arg(long)]
     brief: bool,
+    /// Compare only these output ports (comma-separated port names, e.g. y,co). Without it
+    /// every output of the spec must be in the log; the reports state the narrowing.
+    #[arg(long, value_name = "PORTS", value_delimiter = ',')]
+    outputs: Option<Vec<String>>,
 }
 
 #[derive(Args)]
@@ -161,7 +165,46 @@ pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Er
     Ok((manifest, generator))
 }
 
+/// The signals of `--outputs`: each name must be an output port of the spec.
+fn output_signals(spec: &Spec, names: &[String]) -> Result<Vec<arithvec::Signal>, Error> {
+    let outputs = spec.outputs();
+    let mut chosen = Vec::new();
+    let mut problems = Vec::new();
+    for name in names.iter().map(|n| n.trim()) {
+        match outputs.iter().find(|(_, port)| *port == name) {
+            Some((sig, _)) if !chosen.contains(sig) => chosen.push(*sig),
+            Some(_) => problems.push(
+                Problem::new("--outputs", format!("output \"{name}\" is named twice"))
+                    .field("outputs"),
+            ),
+            None => problems.push(
+                Problem::new(
+                    "--outputs",
+                    format!(
+                        "\"{name}\" is not an output port of the spec; its outputs are {}",
+                        outputs
+                            .iter()
+                            .map(|(_, p)| *p)
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ),
+                )
+                .field("outputs"),
+            ),
+        }
+    }
+    if chosen.is_empty() && problems.is_empty() {
+        problems.push(Problem::new("--outputs", "names no output port").field("outputs"));
+    }
+    if problems.is_empty() {
+        Ok(chosen)
+    } else {
+        Err(Error::input(problems))
+    }
+}
+
 pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
+    let started = std::time::Instant::now();
     let spec = read_spec(&args.spec)?;
     let (manifest, generator) = match &args.vectors {
         Some(dir) => {
@@ -178,12 +221,18 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         Box::new(BufReader::with_capacity(1 << 20, f))
     };
     let mut reader = LogReader::new(input, &log_name, &spec, args.radix)?;
+    let outputs = args
+        .outputs
+        .as_deref()
+        .map(|names| output_signals(&spec, names))
+        .transpose()?;
     let options = CheckOptions {
         max_failures: args.max_failures,
         at_least: args.at_least,
         require: args.require,
         repro_command: format!("arithvec repro {}", args.spec.display()),
         threads: 0,
+        outputs,
     };
     let mut checker = Checker::new(
         &spec,
@@ -219,6 +268,7 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
     let report = checker.finish();
     emit(
         &report,
+        started,
         args.json.as_deref(),
         args.junit.as_deref(),
         quiet,
@@ -243,6 +293,7 @@ fn spinner(quiet: bool) -> Option<indicatif::ProgressBar> {
 
 fn emit(
     report: &CheckReport,
+    started: std::time::Instant,
     json: Option<&Path>,
     junit: Option<&Path>,
     quiet: bool,
@@ -254,7 +305,10 @@ fn emit(
         write_atomic(path, text.as_bytes())?;
     }
     if let Some(path) = junit {
-        write_atomic(path, render_junit(report).as_bytes())?;
+        write_atomic(
+            path,
+            render_junit_timed(report, Some(started.elapsed())).as_bytes(),
+        )?;
     }
     let mut o = out();
     if quiet {
@@ -271,6 +325,7 @@ fn emit(
 }
 
 pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
+    let started = std::time::Instant::now();
     let mut reports = Vec::new();
     for path in &args.reports {
         let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
@@ -294,10 +349,12 @@ pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
         require: args.require,
         repro_command: String::new(),
         threads: 1,
+        outputs: None,
     };
     let merged = merge_reports(&spec, &generator, &reports, &options).map_err(Error::problem)?;
     emit(
         &merged,
+        started,
         args.output.as_deref(),
         args.junit.as_deref(),
         quiet,
