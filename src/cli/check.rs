@@ -5,10 +5,11 @@ use std::path::{Path, PathBuf};
 
 use clap::Args;
 
+use arithvec::verify_files;
 use arithvec::{
-    merge_reports, read_manifest, render_junit_timed, render_text, verdict_line, CheckOptions,
-    CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Problem, Radix, Spec,
-    Verdict,
+    merge_reports, read_manifest_unverified, render_junit_timed, render_text, verdict_line,
+    CheckOptions, CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Problem,
+    Radix, Spec, Verdict,
 };
 
 use crate::cli::util::{out, read_spec, stdout_error, write_atomic, Outcome};
@@ -109,7 +110,7 @@ fn parse_percent(s: &str) -> Result<f64, String> {
     }
 }
 
-fn outcome(r: &CheckReport) -> Outcome {
+fn outcome_of(r: &CheckReport) -> Outcome {
     match r.verdict {
         Verdict::Pass => Outcome::Success,
         Verdict::Fail => Outcome::Mismatch,
@@ -117,9 +118,18 @@ fn outcome(r: &CheckReport) -> Outcome {
     }
 }
 
-/// Reads the vector set's manifest and checks it belongs to this spec and this version.
+/// Reads the vector set's manifest, verifies the files against it, and checks it belongs to
+/// this spec and this version.
 pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error> {
-    let manifest = read_manifest(dir)?;
+    let opened = open_vectors_unverified(dir, spec)?;
+    verify_files(dir, &opened.0)?;
+    Ok(opened)
+}
+
+/// [`open_vectors`] without the files' verification, for a caller that verifies them on
+/// another thread while it works and refuses the set before giving any verdict.
+fn open_vectors_unverified(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error> {
+    let manifest = read_manifest_unverified(dir)?;
     let mpath = dir.join(arithvec::MANIFEST_JSON).display().to_string();
     if manifest.spec_sha256 != arithvec::spec_identity(spec) {
         return Err(Error::problem(
@@ -208,11 +218,46 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
     let spec = read_spec(&args.spec)?;
     let (manifest, generator) = match &args.vectors {
         Some(dir) => {
-            let (m, g) = open_vectors(dir, &spec)?;
+            let (m, g) = open_vectors_unverified(dir, &spec)?;
             (Some(m), g)
         }
         None => (None, Generator::new(&spec, None, None)),
     };
+    // The set's files are hashed on a thread of their own while the log is checked (one
+    // streaming pass each); a mismatch refuses the set (exit 2) before any verdict is shown.
+    let verification = match (&args.vectors, &manifest) {
+        (Some(dir), Some(m)) => {
+            let (dir, m) = (dir.clone(), m.clone());
+            Some(std::thread::spawn(move || verify_files(&dir, &m)))
+        }
+        _ => None,
+    };
+    let outcome = check_log(&args, quiet, &spec, &generator, manifest.as_ref());
+    if let Some(handle) = verification {
+        handle
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic))?;
+    }
+    let report = outcome?;
+    emit(
+        &report,
+        started,
+        args.json.as_deref(),
+        args.junit.as_deref(),
+        quiet,
+        args.brief,
+    )?;
+    Ok(outcome_of(&report))
+}
+
+/// The log half of `check`: reads and judges every row and returns the report.
+fn check_log(
+    args: &CheckArgs,
+    quiet: bool,
+    spec: &Spec,
+    generator: &Generator,
+    manifest: Option<&Manifest>,
+) -> Result<CheckReport, Error> {
     let log_name = args.log.display().to_string();
     let input: Box<dyn BufRead> = if args.log.as_os_str() == "-" {
         Box::new(BufReader::with_capacity(1 << 20, std::io::stdin()))
@@ -220,11 +265,11 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         let f = std::fs::File::open(&args.log).map_err(|e| Error::io(&args.log, e))?;
         Box::new(BufReader::with_capacity(1 << 20, f))
     };
-    let mut reader = LogReader::new(input, &log_name, &spec, args.radix)?;
+    let mut reader = LogReader::new(input, &log_name, spec, args.radix)?;
     let outputs = args
         .outputs
         .as_deref()
-        .map(|names| output_signals(&spec, names))
+        .map(|names| output_signals(spec, names))
         .transpose()?;
     let options = CheckOptions {
         max_failures: args.max_failures,
@@ -234,19 +279,13 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         threads: 0,
         outputs,
     };
-    let mut checker = Checker::new(
-        &spec,
-        &generator,
-        manifest.as_ref(),
-        reader.columns(),
-        options,
-    )
-    .map_err(|p| {
-        Error::problem(Problem {
-            file: log_name.clone(),
-            ..p
-        })
-    })?;
+    let mut checker =
+        Checker::new(spec, generator, manifest, reader.columns(), options).map_err(|p| {
+            Error::problem(Problem {
+                file: log_name.clone(),
+                ..p
+            })
+        })?;
     checker.add_log(&log_name);
     let bar = spinner(quiet);
     let bad = checker.check_log(&mut reader, args.lenient, |n| {
@@ -265,16 +304,7 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         ));
         return Err(Error::input(problems));
     }
-    let report = checker.finish();
-    emit(
-        &report,
-        started,
-        args.json.as_deref(),
-        args.junit.as_deref(),
-        quiet,
-        args.brief,
-    )?;
-    Ok(outcome(&report))
+    Ok(checker.finish())
 }
 
 fn spinner(quiet: bool) -> Option<indicatif::ProgressBar> {
@@ -360,5 +390,5 @@ pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
         quiet,
         args.brief,
     )?;
-    Ok(outcome(&merged))
+    Ok(outcome_of(&merged))
 }
