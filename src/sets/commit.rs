@@ -206,3 +206,44 @@ fn exchange(a: &Path, b: &Path) -> std::io::Result<()> {
 fn exchange(_a: &Path, _b: &Path) -> std::io::Result<()> {
     Err(std::io::Error::from(std::io::ErrorKind::Unsupported))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A staging dropped before its commit removes itself and the parents it created.
+    #[test]
+    fn an_uncommitted_staging_removes_what_it_created() {
+        let root = tempfile::tempdir().expect("temp dir");
+        let target = root.path().join("new/deeper/set");
+        let staging = Staging::begin(&target).expect("begin");
+        std::fs::write(staging.path().join(VECTORS_CSV), "partial").expect("write");
+        drop(staging);
+        let left: Vec<_> = std::fs::read_dir(root.path()).expect("list").collect();
+        assert!(left.is_empty(), "left behind: {left:?}");
+    }
+
+    /// A commit over an old set leaves exactly the new files and nothing beside them.
+    #[test]
+    fn a_commit_replaces_the_old_set_whole() {
+        let root = tempfile::tempdir().expect("temp dir");
+        let target = root.path().join("set");
+        for (round, names) in [
+            (1, &[VECTORS_CSV, MANIFEST_JSON][..]),
+            (2, &[STIMULUS_HEX][..]),
+        ] {
+            let staging = Staging::begin(&target).expect("begin");
+            for name in names {
+                std::fs::write(staging.path().join(name), format!("{round}")).expect("write");
+            }
+            staging.commit().expect("commit");
+        }
+        let mut left: Vec<String> = std::fs::read_dir(&target)
+            .expect("list")
+            .map(|e| e.expect("entry").file_name().to_string_lossy().into_owned())
+            .collect();
+        left.sort();
+        assert_eq!(left, [STIMULUS_HEX]);
+        assert_eq!(std::fs::read_dir(root.path()).expect("list").count(), 1);
+    }
+}
