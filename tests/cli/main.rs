@@ -9,3 +9,4 @@ mod gen;
 mod merge;
 mod repro;
 mod util;
+mod verdict;
