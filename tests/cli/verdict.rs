@@ -312,9 +312,9 @@ fn issue9_the_verdict_line_gives_the_reason() {
     let (i, a, b) = (swapped.col("index"), swapped.col("a"), swapped.col("b"));
     let (r10, r11) = (swapped.rows[10].clone(), swapped.rows[11].clone());
     for (dst, src) in [(10, &r11), (11, &r10)] {
-        for c in 0..swapped.header.len() {
+        for (c, value) in src.iter().enumerate() {
             if c != i {
-                swapped.rows[dst][c] = src[c].clone();
+                swapped.rows[dst][c] = value.clone();
             }
         }
     }
