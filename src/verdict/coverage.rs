@@ -386,8 +386,13 @@ pub fn summarise(
                 ),
             })
             .collect();
-        // Worst first: the bins whose failures are least likely by chance point at the bug.
-        failing.sort_by(rank_failing_bins);
+        // Worst ratio first (bins where every hit failed), then by surprise; the text
+        // report's strongest pointers re-rank this list by surprise alone.
+        failing.sort_by(|x, y| {
+            let rx = x.failures as f64 / x.hits.max(1) as f64;
+            let ry = y.failures as f64 / y.hits.max(1) as f64;
+            ry.total_cmp(&rx).then_with(|| rank_failing_bins(x, y))
+        });
         failing.truncate(20);
         let status = if reachable.is_empty() {
             ClassStatus::Unreachable
