@@ -852,15 +852,18 @@ pub struct VectorSet {
 pub fn read_manifest(dir: &Path) -> Result<Manifest> {
     let path = dir.join(MANIFEST_JSON);
     let text = std::fs::read_to_string(&path).map_err(|e| Error::io(&path, e))?;
-    serde_json::from_str(&text).map_err(|e| {
-        Error::problem(
-            Problem::new(
-                path.display().to_string(),
-                format!("not an arithvec manifest: {e}"),
+    Manifest::from_json(&text, &path.display().to_string())
+}
+
+impl Manifest {
+    /// Reads a manifest from its JSON text; `file` names it in messages.
+    pub fn from_json(text: &str, file: &str) -> Result<Manifest> {
+        serde_json::from_str(text).map_err(|e| {
+            Error::problem(
+                Problem::new(file, format!("not an arithvec manifest: {e}")).at_line(e.line()),
             )
-            .at_line(e.line()),
-        )
-    })
+        })
+    }
 }
 
 impl VectorSet {
