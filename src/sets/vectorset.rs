@@ -896,7 +896,9 @@ impl VectorSet {
             let mut reader = BufReader::new(file);
             let packer = Packer::new(word);
             let mut line = String::new();
-            let mut rows = Vec::with_capacity(manifest.vectors as usize);
+            // The manifest's count is not trusted for the allocation: a damaged one could ask
+            // for more memory than the machine has (found by fuzzing the manifest reader).
+            let mut rows = Vec::with_capacity(manifest.vectors.min(1 << 16) as usize);
             let mut hasher = Sha256::new();
             let mut n = 0;
             loop {
