@@ -181,7 +181,7 @@ pub fn manifest(data: &[u8], scratch: &Scratch) {
 pub fn hex(data: &[u8], scratch: &Scratch) {
     let text = String::from_utf8_lossy(data);
     let set = &SETS[pick_set(&text)];
-    if data.len() % 2 == 0 {
+    if data.len().is_multiple_of(2) {
         read_set(
             scratch,
             set,
