@@ -5,10 +5,11 @@ use std::path::{Path, PathBuf};
 
 use clap::Args;
 
+use arithvec::verify_files;
 use arithvec::{
-    merge_reports, read_manifest, render_junit, render_text, verdict_line, CheckOptions,
-    CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Problem, Radix, Spec,
-    Verdict,
+    merge_reports, read_manifest_unverified, render_junit_timed, render_text, verdict_line,
+    CheckOptions, CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Problem,
+    Radix, Spec, Verdict,
 };
 
 use crate::cli::util::{out, read_spec, stdout_error, write_atomic, Outcome};
@@ -62,6 +63,10 @@ pub struct CheckArgs {
     /// List only classes that are not covered in the text report.
     #[arg(long)]
     brief: bool,
+    /// Compare only these output ports (comma-separated port names, e.g. y,co). Without it
+    /// every output of the spec must be in the log; the reports state the narrowing.
+    #[arg(long, value_name = "PORTS", value_delimiter = ',')]
+    outputs: Option<Vec<String>>,
 }
 
 #[derive(Args)]
@@ -105,7 +110,7 @@ fn parse_percent(s: &str) -> Result<f64, String> {
     }
 }
 
-fn outcome(r: &CheckReport) -> Outcome {
+fn outcome_of(r: &CheckReport) -> Outcome {
     match r.verdict {
         Verdict::Pass => Outcome::Success,
         Verdict::Fail => Outcome::Mismatch,
@@ -113,9 +118,18 @@ fn outcome(r: &CheckReport) -> Outcome {
     }
 }
 
-/// Reads the vector set's manifest and checks it belongs to this spec and this version.
+/// Reads the vector set's manifest, verifies the files against it, and checks it belongs to
+/// this spec and this version.
 pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error> {
-    let manifest = read_manifest(dir)?;
+    let opened = open_vectors_unverified(dir, spec)?;
+    verify_files(dir, &opened.0)?;
+    Ok(opened)
+}
+
+/// [`open_vectors`] without the files' verification, for a caller that verifies them on
+/// another thread while it works and refuses the set before giving any verdict.
+fn open_vectors_unverified(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error> {
+    let manifest = read_manifest_unverified(dir)?;
     let mpath = dir.join(arithvec::MANIFEST_JSON).display().to_string();
     if manifest.spec_sha256 != arithvec::spec_identity(spec) {
         return Err(Error::problem(
@@ -161,15 +175,89 @@ pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Er
     Ok((manifest, generator))
 }
 
+/// The signals of `--outputs`: each name must be an output port of the spec.
+fn output_signals(spec: &Spec, names: &[String]) -> Result<Vec<arithvec::Signal>, Error> {
+    let outputs = spec.outputs();
+    let mut chosen = Vec::new();
+    let mut problems = Vec::new();
+    for name in names.iter().map(|n| n.trim()) {
+        match outputs.iter().find(|(_, port)| *port == name) {
+            Some((sig, _)) if !chosen.contains(sig) => chosen.push(*sig),
+            Some(_) => problems.push(
+                Problem::new("--outputs", format!("output \"{name}\" is named twice"))
+                    .field("outputs"),
+            ),
+            None => problems.push(
+                Problem::new(
+                    "--outputs",
+                    format!(
+                        "\"{name}\" is not an output port of the spec; its outputs are {}",
+                        outputs
+                            .iter()
+                            .map(|(_, p)| *p)
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ),
+                )
+                .field("outputs"),
+            ),
+        }
+    }
+    if chosen.is_empty() && problems.is_empty() {
+        problems.push(Problem::new("--outputs", "names no output port").field("outputs"));
+    }
+    if problems.is_empty() {
+        Ok(chosen)
+    } else {
+        Err(Error::input(problems))
+    }
+}
+
 pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
+    let started = std::time::Instant::now();
     let spec = read_spec(&args.spec)?;
     let (manifest, generator) = match &args.vectors {
         Some(dir) => {
-            let (m, g) = open_vectors(dir, &spec)?;
+            let (m, g) = open_vectors_unverified(dir, &spec)?;
             (Some(m), g)
         }
         None => (None, Generator::new(&spec, None, None)),
     };
+    // The set's files are hashed on a thread of their own while the log is checked (one
+    // streaming pass each); a mismatch refuses the set (exit 2) before any verdict is shown.
+    let verification = match (&args.vectors, &manifest) {
+        (Some(dir), Some(m)) => {
+            let (dir, m) = (dir.clone(), m.clone());
+            Some(std::thread::spawn(move || verify_files(&dir, &m)))
+        }
+        _ => None,
+    };
+    let outcome = check_log(&args, quiet, &spec, &generator, manifest.as_ref());
+    if let Some(handle) = verification {
+        handle
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic))?;
+    }
+    let report = outcome?;
+    emit(
+        &report,
+        started,
+        args.json.as_deref(),
+        args.junit.as_deref(),
+        quiet,
+        args.brief,
+    )?;
+    Ok(outcome_of(&report))
+}
+
+/// The log half of `check`: reads and judges every row and returns the report.
+fn check_log(
+    args: &CheckArgs,
+    quiet: bool,
+    spec: &Spec,
+    generator: &Generator,
+    manifest: Option<&Manifest>,
+) -> Result<CheckReport, Error> {
     let log_name = args.log.display().to_string();
     let input: Box<dyn BufRead> = if args.log.as_os_str() == "-" {
         Box::new(BufReader::with_capacity(1 << 20, std::io::stdin()))
@@ -177,27 +265,27 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         let f = std::fs::File::open(&args.log).map_err(|e| Error::io(&args.log, e))?;
         Box::new(BufReader::with_capacity(1 << 20, f))
     };
-    let mut reader = LogReader::new(input, &log_name, &spec, args.radix)?;
+    let mut reader = LogReader::new(input, &log_name, spec, args.radix)?;
+    let outputs = args
+        .outputs
+        .as_deref()
+        .map(|names| output_signals(spec, names))
+        .transpose()?;
     let options = CheckOptions {
         max_failures: args.max_failures,
         at_least: args.at_least,
         require: args.require,
         repro_command: format!("arithvec repro {}", args.spec.display()),
         threads: 0,
+        outputs,
     };
-    let mut checker = Checker::new(
-        &spec,
-        &generator,
-        manifest.as_ref(),
-        reader.columns(),
-        options,
-    )
-    .map_err(|p| {
-        Error::problem(Problem {
-            file: log_name.clone(),
-            ..p
-        })
-    })?;
+    let mut checker =
+        Checker::new(spec, generator, manifest, reader.columns(), options).map_err(|p| {
+            Error::problem(Problem {
+                file: log_name.clone(),
+                ..p
+            })
+        })?;
     checker.add_log(&log_name);
     let bar = spinner(quiet);
     let bad = checker.check_log(&mut reader, args.lenient, |n| {
@@ -216,15 +304,7 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         ));
         return Err(Error::input(problems));
     }
-    let report = checker.finish();
-    emit(
-        &report,
-        args.json.as_deref(),
-        args.junit.as_deref(),
-        quiet,
-        args.brief,
-    )?;
-    Ok(outcome(&report))
+    Ok(checker.finish())
 }
 
 fn spinner(quiet: bool) -> Option<indicatif::ProgressBar> {
@@ -243,6 +323,7 @@ fn spinner(quiet: bool) -> Option<indicatif::ProgressBar> {
 
 fn emit(
     report: &CheckReport,
+    started: std::time::Instant,
     json: Option<&Path>,
     junit: Option<&Path>,
     quiet: bool,
@@ -254,7 +335,10 @@ fn emit(
         write_atomic(path, text.as_bytes())?;
     }
     if let Some(path) = junit {
-        write_atomic(path, render_junit(report).as_bytes())?;
+        write_atomic(
+            path,
+            render_junit_timed(report, Some(started.elapsed())).as_bytes(),
+        )?;
     }
     let mut o = out();
     if quiet {
@@ -271,6 +355,7 @@ fn emit(
 }
 
 pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
+    let started = std::time::Instant::now();
     let mut reports = Vec::new();
     for path in &args.reports {
         let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
@@ -294,14 +379,16 @@ pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
         require: args.require,
         repro_command: String::new(),
         threads: 1,
+        outputs: None,
     };
     let merged = merge_reports(&spec, &generator, &reports, &options).map_err(Error::problem)?;
     emit(
         &merged,
+        started,
         args.output.as_deref(),
         args.junit.as_deref(),
         quiet,
         args.brief,
     )?;
-    Ok(outcome(&merged))
+    Ok(outcome_of(&merged))
 }

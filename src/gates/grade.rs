@@ -20,6 +20,7 @@ use crate::gates::fault::{
     PatternSet, SimulationMode,
 };
 use crate::gates::netlist::Netlist;
+use crate::sets::commit::Staging;
 use crate::sets::hexfile::{header, Packer};
 use crate::sets::layout::Layout;
 use crate::sets::vectorset::{
@@ -398,7 +399,8 @@ pub fn write_selection(
     dir: &Path,
     source_indices: &[u64],
 ) -> Result<Manifest> {
-    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    // Written into a staging directory that one rename makes the set (`sets::commit`).
+    let staging = Staging::begin(dir)?;
     let layout = Layout::for_spec(spec);
     let stim = Packer::new(&layout.stimulus);
     let exp = Packer::new(&layout.expected);
@@ -461,20 +463,15 @@ pub fn write_selection(
     let all = files
         .into_iter()
         .chain(std::iter::once((MANIFEST_JSON, text.into_bytes())));
-    let mut tmps = Vec::new();
     for (name, bytes) in all {
-        let tmp = dir.join(format!(".{name}.tmp"));
-        if let Err(err) = std::fs::write(&tmp, &bytes) {
-            for (t, _) in &tmps {
-                let _ = std::fs::remove_file(t);
-            }
-            let _ = std::fs::remove_file(&tmp);
-            return Err(Error::io(&tmp, err));
-        }
-        tmps.push((tmp, dir.join(name)));
+        let path = staging.path().join(name);
+        std::fs::File::create(&path)
+            .and_then(|mut f| {
+                std::io::Write::write_all(&mut f, &bytes)?;
+                f.sync_all()
+            })
+            .map_err(|e| Error::io(&path, e))?;
     }
-    for (tmp, path) in &tmps {
-        std::fs::rename(tmp, path).map_err(|e| Error::io(path, e))?;
-    }
+    staging.commit()?;
     Ok(manifest)
 }

@@ -22,6 +22,7 @@ use crate::arith::word::Word;
 use crate::corners::classes::Hits;
 use crate::corners::generate::{evaluate_vector, Generator};
 use crate::error::{Error, Problem, Result};
+use crate::sets::commit::Staging;
 use crate::sets::hexfile::{header, Packer};
 use crate::sets::layout::{Layout, WordLayout};
 use crate::spec::{Signal, Spec};
@@ -668,6 +669,10 @@ impl PendingFile {
     /// Flushes and syncs; returns the record. The file keeps its temporary name.
     fn finish(mut self) -> Result<(FileRecord, PathBuf, PathBuf)> {
         self.file.flush().map_err(|e| Error::io(&self.tmp, e))?;
+        self.file
+            .get_ref()
+            .sync_all()
+            .map_err(|e| Error::io(&self.tmp, e))?;
         let name = self
             .path
             .file_name()
@@ -690,7 +695,11 @@ pub fn write(
     dir: &Path,
     mut options: WriteOptions<'_>,
 ) -> Result<Manifest> {
-    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    // Everything goes into a staging directory beside `dir`, which one rename makes the set
+    // (see `sets::commit`); a failure anywhere removes the staging directory (on drop).
+    let target = dir;
+    let staging = Staging::begin(target)?;
+    let dir = staging.path();
     let total = generator.total();
     let range = options.shard.map(|s| s.range(total)).unwrap_or(0..total);
     let first_shard = options.shard.is_none_or(|s| s.index == 0);
@@ -826,6 +835,7 @@ pub fn write(
         remove_temporaries(dir);
         return Err(e);
     }
+    staging.commit()?;
     Ok(manifest)
 }
 
@@ -848,8 +858,18 @@ pub struct VectorSet {
     pub expected: Vec<Outputs>,
 }
 
-/// Reads the manifest of the set in `dir`.
+/// Reads the manifest of the set in `dir` and verifies the set against it (see
+/// [`verify_files`]): every reader of a set goes through here, so a set whose files were
+/// edited, truncated or left from another run is refused before anything is judged.
 pub fn read_manifest(dir: &Path) -> Result<Manifest> {
+    let manifest = read_manifest_unverified(dir)?;
+    verify_files(dir, &manifest)?;
+    Ok(manifest)
+}
+
+/// Reads the manifest of the set in `dir` without looking at the data files (for tools that
+/// report on a set's provenance; readers of the data use [`read_manifest`]).
+pub fn read_manifest_unverified(dir: &Path) -> Result<Manifest> {
     let path = dir.join(MANIFEST_JSON);
     let text = std::fs::read_to_string(&path).map_err(|e| Error::io(&path, e))?;
     Manifest::from_json(&text, &path.display().to_string())
@@ -864,6 +884,98 @@ impl Manifest {
             )
         })
     }
+}
+
+/// Checks the data files of the set in `dir` against `manifest`: the manifest must list
+/// `vectors.csv`, `stimulus.hex` and `expected.hex` once each, and each file must have the
+/// recorded size (checked first, from the file system, so a truncated file is refused at
+/// once) and SHA-256 (one streaming pass over the file; the files are hashed on parallel
+/// threads). A mismatch is bad input naming the file.
+pub fn verify_files(dir: &Path, manifest: &Manifest) -> Result<()> {
+    let mpath = dir.join(MANIFEST_JSON).display().to_string();
+    let mut records = Vec::new();
+    for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX] {
+        let mut found = manifest.files.iter().filter(|f| f.name == name);
+        match (found.next(), found.next()) {
+            (Some(rec), None) => records.push(rec),
+            (None, _) => {
+                return Err(Error::problem(
+                    Problem::new(mpath, format!("lists no {name}; regenerate the set"))
+                        .field("files"),
+                ))
+            }
+            (Some(_), Some(_)) => {
+                return Err(Error::problem(
+                    Problem::new(mpath, format!("lists {name} twice; regenerate the set"))
+                        .field("files"),
+                ))
+            }
+        }
+    }
+    for rec in &records {
+        let path = dir.join(&rec.name);
+        let size = std::fs::metadata(&path)
+            .map_err(|e| Error::io(&path, e))?
+            .len();
+        if size != rec.bytes {
+            return Err(Error::problem(
+                Problem::new(
+                    path.display().to_string(),
+                    format!(
+                        "is {size} bytes but manifest.json records {} (truncated, edited or \
+                         from another run?); regenerate the set",
+                        rec.bytes
+                    ),
+                )
+                .field("bytes"),
+            ));
+        }
+    }
+    let results: Vec<Result<()>> = std::thread::scope(|scope| {
+        let handles: Vec<_> = records
+            .iter()
+            .map(|rec| scope.spawn(move || verify_file(&dir.join(&rec.name), rec)))
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| h.join().unwrap_or_else(|p| std::panic::resume_unwind(p)))
+            .collect()
+    });
+    results.into_iter().collect()
+}
+
+/// Hashes one file in a single streaming pass and compares it with its record.
+fn verify_file(path: &Path, rec: &FileRecord) -> Result<()> {
+    use std::io::Read;
+    let mut file = File::open(path).map_err(|e| Error::io(path, e))?;
+    let mut hasher = Sha256::new();
+    let mut buf = vec![0u8; 1 << 20];
+    let mut bytes = 0u64;
+    loop {
+        let n = match file.read(&mut buf) {
+            Ok(0) => break,
+            Ok(n) => n,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+            Err(e) => return Err(Error::io(path, e)),
+        };
+        hasher.update(&buf[..n]);
+        bytes += n as u64;
+    }
+    let digest = hex_of(&hasher.finalize());
+    if bytes != rec.bytes || digest != rec.sha256 {
+        return Err(Error::problem(
+            Problem::new(
+                path.display().to_string(),
+                format!(
+                    "does not match manifest.json: SHA-256 {digest}, recorded {} (edited, \
+                     truncated or from another run?); regenerate the set",
+                    rec.sha256
+                ),
+            )
+            .field("sha256"),
+        ));
+    }
+    Ok(())
 }
 
 impl VectorSet {

@@ -16,7 +16,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::arith::encoding::Value;
 use crate::arith::model::{Inputs, Outputs};
-use crate::arith::word::{Word, LIMBS};
+use crate::arith::word::{Word, LIMBS, MAX_WIDTH};
 use crate::corners::classes::Hits;
 use crate::corners::generate::{Generator, RandomStream};
 use crate::error::Error;
@@ -47,6 +47,10 @@ pub struct CheckOptions {
     /// Threads judging and classifying rows (0: one per core, at most 8; 1: all on the
     /// calling thread). The report is the same for every value.
     pub threads: usize,
+    /// Compare only these outputs (the user narrowed the check on purpose; the reports say
+    /// so). None, the default: every output the spec names must be compared, and an output
+    /// the log lacks fails the run ("outputs never compared").
+    pub outputs: Option<Vec<Signal>>,
 }
 
 impl Default for CheckOptions {
@@ -57,6 +61,7 @@ impl Default for CheckOptions {
             require: None,
             repro_command: "arithvec repro SPEC".into(),
             threads: 0,
+            outputs: None,
         }
     }
 }
@@ -224,6 +229,35 @@ pub struct CheckReport {
     pub note: String,
     /// Exact coverage counts, for merge.
     pub counts: CoverageCounts,
+    /// Per output port of the spec: whether it was compared, and how many rows had it wrong
+    /// or unknown (the headline tally).
+    #[serde(default)]
+    pub output_ports: Vec<OutputTally>,
+    /// True when the user narrowed the comparison on purpose (`--outputs`): ports with
+    /// `compared: false` were left out deliberately, not forgotten.
+    #[serde(default)]
+    pub outputs_narrowed: bool,
+    /// Why the verdict is what it is, one short reason each ("4 mismatches (co: 4)").
+    #[serde(default)]
+    pub verdict_reasons: Vec<String>,
+    /// The vector set's seed, when a set was given.
+    #[serde(default)]
+    pub seed: Option<u64>,
+}
+
+/// One output port's line in the headline tally.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct OutputTally {
+    /// The DUT's port name.
+    pub port: String,
+    /// arithvec's signal key.
+    pub signal: String,
+    /// Whether the log's values of this port were compared with the model.
+    pub compared: bool,
+    /// Rows where a known bit of this port was wrong.
+    pub wrong: u64,
+    /// Rows where this port had x/z bits (and operands were known).
+    pub unknown: u64,
 }
 
 /// Where a worker gets a vector's inputs by index: the directed list, or the random stream,
@@ -314,6 +348,11 @@ struct Shared {
     fields: Vec<(Signal, u32)>,
     /// How many of `fields` are inputs.
     inputs: usize,
+    /// Every output of the spec (signal, port name) and whether it is compared (it is in
+    /// `fields`).
+    outputs: Vec<(Signal, String, bool)>,
+    /// The vector set's seed, when a set was given.
+    seed: Option<u64>,
     options: CheckOptions,
     /// 64-bit limbs stored per value (the unit's width in limbs).
     limbs: usize,
@@ -378,6 +417,8 @@ struct Verdicts {
     /// The batch's first failures (at most `max_failures`), in log order.
     failures: Vec<Failure>,
     out_of_step: Option<OutOfStep>,
+    /// Per compared output (in `fields` order after the inputs): rows wrong, rows unknown.
+    ports: Vec<(u64, u64)>,
 }
 
 /// A worker's own state: its coverage share and scratch space.
@@ -435,11 +476,11 @@ impl Worker {
                 from_log = true;
                 if narrow {
                     operand_unknown |= values[k * 2 + 1] != 0;
-                    inputs.set(sig, Word::from_u64(values[k * 2]));
+                    inputs.set(sig, Word::from_u64(values[k * 2] & !values[k * 2 + 1]));
                 } else {
                     let o = shared.observed(values, k);
                     operand_unknown |= !o.unknown.is_zero();
-                    inputs.set(sig, o.bits);
+                    inputs.set(sig, o.bits.and(&o.unknown.not(MAX_WIDTH)));
                 }
             }
         }
@@ -497,6 +538,9 @@ impl Worker {
             }
         }
         let failed = wrong || unknown;
+        if failed && !operand_unknown {
+            tally_ports(shared, values, row.present, &expected, &mut v.ports);
+        }
         self.coverage.record(&self.hits, failed);
         if wrong {
             v.failed += 1;
@@ -514,6 +558,37 @@ impl Worker {
                 shared, &self.hits, index, line, &inputs, &expected, &field, wrong,
             );
             v.failures.push(f);
+        }
+    }
+}
+
+/// Adds a failing row to the per-port tally: for each compared output, whether a known bit
+/// differs from the model or a bit is x/z. Only failing rows come here, so the cost is off
+/// the hot path.
+fn tally_ports(
+    shared: &Shared,
+    values: &[u64],
+    present: u16,
+    expected: &Outputs,
+    ports: &mut Vec<(u64, u64)>,
+) {
+    let outputs = &shared.fields[shared.inputs..];
+    if ports.len() < outputs.len() {
+        ports.resize(outputs.len(), (0, 0));
+    }
+    for (j, &(sig, w)) in outputs.iter().enumerate() {
+        let k = shared.inputs + j;
+        if present >> k & 1 == 0 {
+            continue;
+        }
+        let o = shared.observed(values, k);
+        let unknown = o.unknown.masked(w);
+        let e = expected.get(sig).masked(w);
+        let diff = o.bits.xor(&e).and(&unknown.not(w)).masked(w);
+        if !diff.is_zero() {
+            ports[j].0 += 1;
+        } else if !unknown.is_zero() {
+            ports[j].1 += 1;
         }
     }
 }
@@ -538,6 +613,13 @@ impl Merger {
         m.passed += v.passed;
         m.failed += v.failed;
         m.unknown += v.unknown;
+        if m.ports.len() < v.ports.len() {
+            m.ports.resize(v.ports.len(), (0, 0));
+        }
+        for (sum, (wrong, unknown)) in m.ports.iter_mut().zip(v.ports) {
+            sum.0 += wrong;
+            sum.1 += unknown;
+        }
         let room = self.max_failures.saturating_sub(m.failures.len());
         m.failures.extend(v.failures.into_iter().take(room));
         if let Some(s) = v.out_of_step {
@@ -857,6 +939,36 @@ impl<'g> Checker<'g> {
                 "the log has no output column to check",
             ));
         }
+        // The outputs to compare: those the user chose, or every output of the spec. A
+        // chosen output the log lacks is bad input; an unchosen one the log lacks fails the
+        // run in the report ("outputs never compared").
+        if let Some(chosen) = &options.outputs {
+            let absent: Vec<&str> = spec
+                .outputs()
+                .into_iter()
+                .filter(|(s, _)| chosen.contains(s) && !columns.contains(s))
+                .map(|(_, n)| n)
+                .collect();
+            if !absent.is_empty() {
+                return Err(Problem::new(
+                    "<log>",
+                    format!(
+                        "--outputs names {}, but the log has no column for it; the log's \
+                         header must name every output to compare",
+                        absent.join(", ")
+                    ),
+                )
+                .field("outputs"));
+            }
+        }
+        let outputs: Vec<(Signal, String, bool)> = spec
+            .outputs()
+            .into_iter()
+            .map(|(s, n)| {
+                let wanted = options.outputs.as_ref().is_none_or(|c| c.contains(&s));
+                (s, n.to_string(), wanted && columns.contains(&s))
+            })
+            .collect();
         let threads = match options.threads {
             0 => std::thread::available_parallelism().map_or(1, |n| n.get().min(8)),
             n => n,
@@ -869,10 +981,13 @@ impl<'g> Checker<'g> {
             selection: set.and_then(|m| m.selection.as_ref().map(|s| s.indices.clone())),
             fields: inputs
                 .iter()
-                .chain(spec.outputs().iter())
-                .map(|&(s, _)| (s, s.width(spec.width)))
+                .map(|&(s, _)| s)
+                .chain(outputs.iter().filter(|o| o.2).map(|o| o.0))
+                .map(|s| (s, s.width(spec.width)))
                 .collect(),
             inputs: inputs.len(),
+            outputs,
+            seed: set.map(|m| m.seed),
             options,
             limbs: spec.width.div_ceil(64) as usize,
         });
@@ -1247,6 +1362,31 @@ impl<'g> Checker<'g> {
         }
         let merged = std::mem::take(&mut self.merger.verdicts);
         self.problems.out_of_step = merged.out_of_step;
+        let mut compared = merged.ports.iter();
+        let output_ports = self
+            .shared
+            .outputs
+            .iter()
+            .map(|(sig, port, is_compared)| {
+                let (wrong, unknown) = if *is_compared {
+                    compared.next().copied().unwrap_or((0, 0))
+                } else {
+                    (0, 0)
+                };
+                OutputTally {
+                    port: port.clone(),
+                    signal: sig.key().to_string(),
+                    compared: *is_compared,
+                    wrong,
+                    unknown,
+                }
+            })
+            .collect();
+        let outputs = OutputsSeen {
+            ports: output_ports,
+            narrowed: self.shared.options.outputs.is_some(),
+            seed: self.shared.seed,
+        };
         build_report(
             &self.shared.spec,
             self.generator,
@@ -1255,6 +1395,7 @@ impl<'g> Checker<'g> {
             counts,
             merged.failures,
             std::mem::take(&mut self.problems),
+            outputs,
             &self.shared.options,
         )
     }
@@ -1392,6 +1533,13 @@ fn decoded(sig: Signal, v: &Word, width: u32, enc: Encoding) -> String {
     }
 }
 
+/// What a report says about the spec's outputs.
+struct OutputsSeen {
+    ports: Vec<OutputTally>,
+    narrowed: bool,
+    seed: Option<u64>,
+}
+
 #[allow(clippy::too_many_arguments)]
 fn build_report(
     spec: &Spec,
@@ -1401,17 +1549,34 @@ fn build_report(
     counts: CoverageCounts,
     failures: Vec<Failure>,
     problems: LogProblems,
+    outputs: OutputsSeen,
     options: &CheckOptions,
 ) -> CheckReport {
-    let (coverage, classes) = summarise(generator.catalogue(), &counts, options.at_least);
+    let (coverage, classes) = summarise(
+        generator.catalogue(),
+        &counts,
+        options.at_least,
+        (vectors, failed + unknown),
+    );
     let met = options.require.is_none_or(|r| coverage.percent >= r);
-    let verdict = if failed > 0 || unknown > 0 || problems.any() || vectors == 0 {
+    // An output the spec names that no row compared fails the run, unless the user left
+    // it out on purpose.
+    let never_compared = !outputs.narrowed && outputs.ports.iter().any(|p| !p.compared);
+    let verdict = if failed > 0 || unknown > 0 || problems.any() || vectors == 0 || never_compared {
         Verdict::Fail
     } else if !met {
         Verdict::CoverageShort
     } else {
         Verdict::Pass
     };
+    let reasons = verdict_reasons(
+        verdict,
+        (vectors, failed, unknown),
+        &problems,
+        &outputs,
+        &coverage,
+        options.require,
+    );
     CheckReport {
         tool: "arithvec".into(),
         version: env!("CARGO_PKG_VERSION").into(),
@@ -1434,7 +1599,107 @@ fn build_report(
         verdict,
         note: EVIDENCE_NOTE.into(),
         counts,
+        output_ports: outputs.ports,
+        outputs_narrowed: outputs.narrowed,
+        verdict_reasons: reasons,
+        seed: outputs.seed,
     }
+}
+
+/// Per-port counts as "co: 4, y: 1" (ports with a count only).
+fn port_counts(ports: &[OutputTally], count: impl Fn(&OutputTally) -> u64) -> String {
+    ports
+        .iter()
+        .filter(|p| count(p) > 0)
+        .map(|p| format!("{}: {}", p.port, count(p)))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+fn plural(n: u64, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
+}
+
+/// The reasons behind a verdict, most fundamental first: what was not compared, what is
+/// missing or out of step, then what was wrong.
+fn verdict_reasons(
+    verdict: Verdict,
+    (vectors, failed, unknown): (u64, u64, u64),
+    p: &LogProblems,
+    outputs: &OutputsSeen,
+    coverage: &CoverageSummary,
+    require: Option<f64>,
+) -> Vec<String> {
+    let mut r = Vec::new();
+    let not_compared: Vec<&str> = outputs
+        .ports
+        .iter()
+        .filter(|o| !o.compared)
+        .map(|o| o.port.as_str())
+        .collect();
+    if !not_compared.is_empty() && !outputs.narrowed {
+        r.push(format!(
+            "outputs never compared: {}",
+            not_compared.join(", ")
+        ));
+    }
+    if vectors == 0 {
+        r.push("the log has no rows to check".into());
+    }
+    if p.missing > 0 {
+        r.push(format!(
+            "log incomplete ({} of {} rows)",
+            vectors,
+            vectors.saturating_add(p.missing)
+        ));
+    }
+    if let Some(o) = &p.out_of_step {
+        r.push(format!("out of step at line {}", o.first_line));
+    }
+    if failed > 0 {
+        let by_port = port_counts(&outputs.ports, |o| o.wrong);
+        r.push(if by_port.is_empty() {
+            plural(failed, "mismatch", "mismatches")
+        } else {
+            format!("{} ({by_port})", plural(failed, "mismatch", "mismatches"))
+        });
+    }
+    if unknown > 0 {
+        let by_port = port_counts(&outputs.ports, |o| o.unknown);
+        let what = plural(
+            unknown,
+            "row with unknown (x/z) values",
+            "rows with unknown (x/z) values",
+        );
+        r.push(if by_port.is_empty() {
+            what
+        } else {
+            format!("{what} ({by_port})")
+        });
+    }
+    if p.duplicate_count > 0 {
+        let at = p.duplicates.first().map_or(String::new(), |(i, l)| {
+            format!(", first index {i} at line {l}")
+        });
+        r.push(format!(
+            "log repeats {}{at}",
+            plural(p.duplicate_count, "index", "indices")
+        ));
+    }
+    if let Some((i, l)) = p.out_of_range.first() {
+        r.push(format!(
+            "rows outside the vector set (first index {i} at line {l})"
+        ));
+    }
+    if verdict == Verdict::CoverageShort {
+        if let Some(req) = require {
+            r.push(format!(
+                "class coverage {:.2}% is below the required {req}%",
+                coverage.percent
+            ));
+        }
+    }
+    r
 }
 
 /// Combines reports of several runs or shards of one spec into one verdict. Errors (as a
@@ -1451,6 +1716,9 @@ pub fn merge(
     let mut failures = Vec::new();
     let mut problems = LogProblems::default();
     let mut logs = Vec::new();
+    let mut ports: Option<Vec<OutputTally>> = None;
+    let mut narrowed = false;
+    let mut seed = None;
     for (name, r) in reports {
         if r.spec_sha256 != identity {
             return Err(Problem::new(
@@ -1513,8 +1781,31 @@ pub fn merge(
             problems.out_of_step = p.out_of_step.clone();
         }
         logs.extend(r.logs.iter().cloned());
+        // An output is compared in the merge only when every run compared it.
+        match &mut ports {
+            None => ports = Some(r.output_ports.clone()),
+            Some(sum) => {
+                for p in sum.iter_mut() {
+                    match r.output_ports.iter().find(|q| q.signal == p.signal) {
+                        Some(q) => {
+                            p.compared &= q.compared;
+                            p.wrong = p.wrong.saturating_add(q.wrong);
+                            p.unknown = p.unknown.saturating_add(q.unknown);
+                        }
+                        None => p.compared = false,
+                    }
+                }
+            }
+        }
+        narrowed |= r.outputs_narrowed;
+        seed = seed.or(r.seed);
     }
     let counts = counts.ok_or_else(|| Problem::new("merge", "no reports given"))?;
+    let outputs = OutputsSeen {
+        ports: ports.unwrap_or_default(),
+        narrowed,
+        seed,
+    };
     Ok(build_report(
         spec,
         generator,
@@ -1523,6 +1814,7 @@ pub fn merge(
         counts,
         failures,
         problems,
+        outputs,
         options,
     ))
 }

@@ -690,12 +690,19 @@ fn junit_has_one_test_case_per_class_plus_log_completeness() {
         .iter()
         .map(|c| c["id"].as_str().unwrap().to_string())
         .collect();
-    let mut want = ids.clone();
+    // The gate, one case per output port, one per class, then the log's completeness.
+    let ports: Vec<String> = output_ports(&sb, "vec")
+        .iter()
+        .map(|p| format!("output.{p}"))
+        .collect();
+    let mut want = vec!["gate".to_string()];
+    want.extend(ports.iter().cloned());
+    want.extend(ids.iter().cloned());
     want.push("log.complete".into());
     let names: Vec<String> = cases.iter().map(|c| c.0.clone()).collect();
     assert_eq!(
         names, want,
-        "one test case per class, then the log's completeness"
+        "the gate, one test case per output port and per class, then the log's completeness"
     );
     assert!(
         cases.iter().all(|c| !c.1),
@@ -710,9 +717,13 @@ fn junit_has_one_test_case_per_class_plus_log_completeness() {
     let file = sb.write("bad.csv", &log.csv());
     let (_, report) = sb.check(&spec, &file, &["--vectors", "vec", "--junit", "bad.xml"], 1);
     let cases = junit_cases(&sb.read("bad.xml"));
-    assert_eq!(cases.len(), ids.len() + 1);
+    assert_eq!(cases.len(), want.len());
     let failing: Vec<String> = cases.iter().filter(|c| c.1).map(|c| c.0.clone()).collect();
-    let mut failing_sorted = failing.clone();
+    assert_eq!(
+        failing[..2],
+        ["gate".to_string(), "output.delta".to_string()]
+    );
+    let mut failing_sorted = failing[2..].to_vec();
     failing_sorted.sort();
     assert_eq!(failing_sorted, csv.classes(k));
     assert_eq!(failing_sorted, strings(&report["failures"][0]["classes"]));

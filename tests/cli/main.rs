@@ -10,3 +10,4 @@ mod machine_output;
 mod merge;
 mod repro;
 mod util;
+mod verdict;
