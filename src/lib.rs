@@ -79,7 +79,8 @@ pub use sim::testbench::{
 };
 pub use spec::{
     is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
-    NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
+    NegativeZero, OffsetCarry, Operation, ParamValue, Ports, RandomSettings, Signal, Spec,
+    ZeroFlag,
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,

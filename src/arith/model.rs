@@ -13,8 +13,8 @@ use crate::arith::encoding::{
 };
 use crate::arith::word::Word;
 use crate::spec::{
-    CarryInConvention, CarryOutConvention, Encoding, NegativeZero, Operation, Signal, Spec,
-    ZeroFlag,
+    CarryInConvention, CarryOutConvention, Encoding, NegativeZero, OffsetCarry, Operation, Signal,
+    Spec, ZeroFlag,
 };
 
 /// The inputs of one vector. Fields the unit lacks are zero / false.
@@ -285,6 +285,8 @@ pub struct Model {
     carry_in: CarryInConvention,
     negative_zero: NegativeZero,
     zero_flag: ZeroFlag,
+    /// `conventions.offset_carry = "codes"` on an offset add, sub or addsub unit.
+    codes_carry: bool,
     has_carry_in: bool,
     force_wide: bool,
     /// [`Model::ripple_view`] for mode false and true, worked out once.
@@ -302,6 +304,12 @@ impl Model {
             carry_in: spec.conventions.carry_in,
             negative_zero: spec.conventions.negative_zero,
             zero_flag: spec.conventions.zero_flag,
+            codes_carry: spec.encoding == Encoding::Offset
+                && spec.conventions.offset_carry == OffsetCarry::Codes
+                && matches!(
+                    spec.operation,
+                    Operation::Add | Operation::Sub | Operation::AddSub
+                ),
             has_carry_in: spec.has(Signal::CarryIn),
             force_wide: false,
             views: [None; 2],
@@ -552,6 +560,12 @@ impl Model {
                         out,
                     )
                 } else {
+                    // An offset unit that adds the codes carries out of its own top bit.
+                    let out = if self.codes_carry {
+                        offset_carries(view.cell, x, y, c0, w).1
+                    } else {
+                        out
+                    };
                     (
                         raw.and(mask).xor(flip),
                         Path::Ripple {
@@ -662,6 +676,21 @@ impl Model {
     pub(crate) fn encode_value<B: Bits>(&self, v: B) -> Option<B> {
         representable(v, self.width, self.encoding).then(|| encode(v, self.width, self.encoding))
     }
+}
+
+/// The raw carry (borrow, for a subtractor cell) out of the top bit of an offset-binary
+/// ripple datapath with operands `x`, `y` and carry-in `c0` as the inner two's-complement
+/// datapath sees them: (the inner datapath's, that of the same cell fed the codes, whose top
+/// bits are the inverse). They differ exactly when the top bits of `x` and `y` are equal for
+/// an adder cell, and differ for a subtractor cell.
+pub(crate) fn offset_carries<B: Bits>(cell: Cell, x: B, y: B, c0: bool, w: u32) -> (bool, bool) {
+    let flip = B::single_bit(w - 1);
+    let c = B::from_bool(c0);
+    let raw = |x: B, y: B| match cell {
+        Cell::Adder => x.add(y).add(c),
+        Cell::Subtractor => x.sub(y).sub(c),
+    };
+    (raw(x, y).bit(w), raw(x.xor(flip), y.xor(flip)).bit(w))
 }
 
 #[cfg(test)]

@@ -5,6 +5,7 @@ use std::io::Write;
 use std::path::PathBuf;
 
 use clap::{Args, ValueEnum};
+use serde::Serialize;
 
 use arithvec::{
     write_selection, BuiltinModel, Error, GradeOutcome, Grader, Netlist, Problem, VectorSet,
@@ -24,6 +25,21 @@ verification plan.";
 pub enum GradeFormat {
     Table,
     Json,
+}
+
+/// How `--compact` chooses its subset (the text line and the JSON `compaction.method`).
+const COMPACTION_METHOD: &str = "greedy set cover: every fault detected and every bin hit by \
+     the full set still is; small, not proven minimum";
+
+/// The `compaction` object of `grade --format json --compact`.
+#[derive(Serialize)]
+struct Compaction {
+    /// Vectors in the graded set.
+    before: u64,
+    /// Vectors in the compacted set written to `out`.
+    after: u64,
+    method: &'static str,
+    out: String,
 }
 
 #[derive(Args)]
@@ -92,7 +108,42 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
     let report = match grader.grade(&set.inputs, &set.expected)? {
         GradeOutcome::Graded(r) => r,
         GradeOutcome::NotTheSpec(bad) => {
+            let index_of = |position: usize| {
+                manifest
+                    .selection
+                    .as_ref()
+                    .and_then(|s| s.indices.get(position).copied())
+                    .unwrap_or(manifest.first_index + position as u64)
+            };
             let mut o = out();
+            if args.format == GradeFormat::Json {
+                // One document on stdout, as for a graded netlist: a consumer parsing it sees
+                // why there are no fault figures.
+                let disagreements: Vec<serde_json::Value> = bad
+                    .iter()
+                    .map(|m| {
+                        let index = index_of(m.position);
+                        serde_json::json!({
+                            "index": index,
+                            "port": m.port,
+                            "expected": m.expected,
+                            "got": m.got,
+                            "repro": format!("arithvec repro {} --index {index}", args.spec.display()),
+                        })
+                    })
+                    .collect();
+                let doc = serde_json::json!({
+                    "module": netlist.module(),
+                    "status": "not_the_spec",
+                    "message": "the fault-free netlist does not reproduce the golden model, so it is \
+                                not the unit the spec describes; grading stopped",
+                    "disagreements": disagreements,
+                });
+                let text = serde_json::to_string_pretty(&doc).expect("json");
+                writeln!(o, "{text}").map_err(stdout_error)?;
+                o.flush().map_err(stdout_error)?;
+                return Ok(Outcome::Mismatch);
+            }
             writeln!(
                 o,
                 "the fault-free netlist (module {}) does not reproduce the golden model, so it is \
@@ -101,11 +152,7 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             )
             .map_err(stdout_error)?;
             for m in &bad {
-                let index = manifest
-                    .selection
-                    .as_ref()
-                    .and_then(|s| s.indices.get(m.position).copied())
-                    .unwrap_or(manifest.first_index + m.position as u64);
+                let index = index_of(m.position);
                 writeln!(
                     o,
                     "  vector {index}: port {} expected 0x{} got 0x{} (arithvec repro {} --index {index})",
@@ -120,9 +167,37 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         }
     };
     let short = args.require.is_some_and(|r| report.coverage_percent < r);
+    // Compaction runs before anything is printed so the JSON document can hold its figures.
+    let compaction = if args.compact {
+        let dir = args.out.as_ref().expect("clap requires --out");
+        let chosen = grader.compact(&generator, &set.inputs)?;
+        let source: Vec<u64> = chosen
+            .iter()
+            .map(|&p| match &manifest.selection {
+                Some(s) => s.indices[p],
+                None => manifest.first_index + p as u64,
+            })
+            .collect();
+        let m = write_selection(&generator, &spec, dir, &source)?;
+        Some(Compaction {
+            before: set.inputs.len() as u64,
+            after: m.vectors,
+            method: COMPACTION_METHOD,
+            out: dir.display().to_string(),
+        })
+    } else {
+        None
+    };
     let mut o = out();
     if args.format == GradeFormat::Json {
-        let text = serde_json::to_string_pretty(&report).expect("report serialises");
+        let mut doc = serde_json::to_value(&report).expect("report serialises");
+        if let (Some(c), Some(map)) = (&compaction, doc.as_object_mut()) {
+            map.insert(
+                "compaction".into(),
+                serde_json::to_value(c).expect("compaction serialises"),
+            );
+        }
+        let text = serde_json::to_string_pretty(&doc).expect("report serialises");
         writeln!(o, "{text}").map_err(stdout_error)?;
     } else if !quiet {
         let rows = vec![[
@@ -234,25 +309,12 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         )
         .map_err(stdout_error)?;
     }
-    if args.compact {
-        let dir = args.out.as_ref().expect("clap requires --out");
-        let chosen = grader.compact(&generator, &set.inputs)?;
-        let source: Vec<u64> = chosen
-            .iter()
-            .map(|&p| match &manifest.selection {
-                Some(s) => s.indices[p],
-                None => manifest.first_index + p as u64,
-            })
-            .collect();
-        let m = write_selection(&generator, &spec, dir, &source)?;
-        if !quiet {
+    if let Some(c) = &compaction {
+        if !quiet && args.format != GradeFormat::Json {
             writeln!(
                 o,
-                "compacted {} vectors to {} (greedy set cover: every fault detected and every \
-                 bin hit by the full set still is; small, not proven minimum) in {}",
-                set.inputs.len(),
-                m.vectors,
-                dir.display()
+                "compacted {} vectors to {} ({}) in {}",
+                c.before, c.after, c.method, c.out
             )
             .map_err(stdout_error)?;
         }

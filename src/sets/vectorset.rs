@@ -878,15 +878,18 @@ pub fn read_manifest(dir: &Path) -> Result<Manifest> {
 pub fn read_manifest_unverified(dir: &Path) -> Result<Manifest> {
     let path = dir.join(MANIFEST_JSON);
     let text = std::fs::read_to_string(&path).map_err(|e| Error::io(&path, e))?;
-    serde_json::from_str(&text).map_err(|e| {
-        Error::problem(
-            Problem::new(
-                path.display().to_string(),
-                format!("not an arithvec manifest: {e}"),
+    Manifest::from_json(&text, &path.display().to_string())
+}
+
+impl Manifest {
+    /// Reads a manifest from its JSON text; `file` names it in messages.
+    pub fn from_json(text: &str, file: &str) -> Result<Manifest> {
+        serde_json::from_str(text).map_err(|e| {
+            Error::problem(
+                Problem::new(file, format!("not an arithvec manifest: {e}")).at_line(e.line()),
             )
-            .at_line(e.line()),
-        )
-    })
+        })
+    }
 }
 
 /// Checks the data files of the set in `dir` against `manifest`: the manifest must list
@@ -1011,7 +1014,9 @@ impl VectorSet {
             let mut reader = BufReader::new(file);
             let packer = Packer::new(word);
             let mut line = String::new();
-            let mut rows = Vec::with_capacity(manifest.vectors as usize);
+            // The manifest's count is not trusted for the allocation: a damaged one could ask
+            // for more memory than the machine has (found by fuzzing the manifest reader).
+            let mut rows = Vec::with_capacity(manifest.vectors.min(1 << 16) as usize);
             let mut hasher = Sha256::new();
             let mut n = 0;
             loop {

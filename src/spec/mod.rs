@@ -17,6 +17,9 @@ use toml::Spanned;
 
 use crate::error::{Error, Problem, Result};
 
+mod conventions;
+use conventions::ConventionKey;
+
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
 
@@ -273,6 +276,27 @@ pub enum NegativeZero {
     Either,
 }
 
+/// Which datapath an offset-binary add, sub or addsub unit's carry_out comes from. Both are
+/// built: they give the same result and differ in the carry out of the top bit exactly when
+/// the adder's two operand codes have equal top bits (class `offset.carry_source`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum OffsetCarry {
+    /// The inner two's-complement datapath: each operand's top bit is inverted on the way in,
+    /// the result's on the way out, and the carry is the inner adder's (the default). At 8
+    /// bits 0x80 + 0x80 carries out 0.
+    Inner,
+    /// The codes are added (or subtracted) as they are and the result's top bit is inverted;
+    /// the carry is that adder's. At 8 bits 0x80 + 0x80 carries out 1.
+    Codes,
+}
+
+impl OffsetCarry {
+    fn is_inner(&self) -> bool {
+        *self == OffsetCarry::Inner
+    }
+}
+
 /// When the zero flag is set.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
 #[serde(rename_all = "lowercase")]
@@ -323,6 +347,10 @@ pub struct Conventions {
     pub negative_zero: NegativeZero,
     /// See [`ZeroFlag`].
     pub zero_flag: ZeroFlag,
+    /// See [`OffsetCarry`]. Left out of the normalised JSON when it is the default, so the
+    /// identity of every spec written before the key existed is unchanged.
+    #[serde(skip_serializing_if = "OffsetCarry::is_inner")]
+    pub offset_carry: OffsetCarry,
 }
 
 impl Default for Conventions {
@@ -332,6 +360,7 @@ impl Default for Conventions {
             carry_in: CarryInConvention::Borrow,
             negative_zero: NegativeZero::Hardware,
             zero_flag: ZeroFlag::Value,
+            offset_carry: OffsetCarry::Inner,
         }
     }
 }
@@ -461,35 +490,34 @@ impl Spec {
         }
         let c = &self.conventions;
         let mut conv = String::new();
-        if self.subtracts() && self.encoding.is_binary_datapath() && self.has(Signal::CarryOut) {
-            let v = match c.carry_out {
-                CarryOutConvention::Borrow => "borrow",
-                CarryOutConvention::Carry => "carry",
+        for key in ConventionKey::ALL {
+            if self.convention_without_effect(key).is_some() {
+                continue;
+            }
+            let v = match key {
+                ConventionKey::CarryOut => match c.carry_out {
+                    CarryOutConvention::Borrow => "borrow",
+                    CarryOutConvention::Carry => "carry",
+                },
+                ConventionKey::CarryIn => match c.carry_in {
+                    CarryInConvention::Borrow => "borrow",
+                    CarryInConvention::Carry => "carry",
+                },
+                ConventionKey::NegativeZero => match c.negative_zero {
+                    NegativeZero::Hardware => "hardware",
+                    NegativeZero::Positive => "positive",
+                    NegativeZero::Either => "either",
+                },
+                ConventionKey::ZeroFlag => match c.zero_flag {
+                    ZeroFlag::Value => "value",
+                    ZeroFlag::Bits => "bits",
+                },
+                ConventionKey::OffsetCarry => match c.offset_carry {
+                    OffsetCarry::Inner => "inner",
+                    OffsetCarry::Codes => "codes",
+                },
             };
-            conv.push_str(&format!("carry_out = {}\n", q(v)));
-        }
-        if matches!(self.operation, Operation::Sub | Operation::AddSub) && self.has(Signal::CarryIn)
-        {
-            let v = match c.carry_in {
-                CarryInConvention::Borrow => "borrow",
-                CarryInConvention::Carry => "carry",
-            };
-            conv.push_str(&format!("carry_in = {}\n", q(v)));
-        }
-        if self.encoding.has_negative_zero() && self.operation != Operation::Compare {
-            let v = match c.negative_zero {
-                NegativeZero::Hardware => "hardware",
-                NegativeZero::Positive => "positive",
-                NegativeZero::Either => "either",
-            };
-            conv.push_str(&format!("negative_zero = {}\n", q(v)));
-        }
-        if self.has(Signal::Zero) && self.encoding != Encoding::Offset {
-            let v = match c.zero_flag {
-                ZeroFlag::Value => "value",
-                ZeroFlag::Bits => "bits",
-            };
-            conv.push_str(&format!("zero_flag = {}\n", q(v)));
+            conv.push_str(&format!("{} = {}\n", key.name(), q(v)));
         }
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
@@ -821,6 +849,7 @@ impl<'a> Reader<'a> {
         if let Some(t) = conv_table {
             self.read_conventions(t, &mut spec);
         }
+        self.require_addsub_carry_in(&spec, conv_table, ports_table);
         if let Some(t) = random_table {
             self.read_random(t, &mut spec.random);
         }
@@ -937,9 +966,18 @@ impl<'a> Reader<'a> {
         self.check_keys(
             t,
             "conventions.",
-            &["carry_out", "carry_in", "negative_zero", "zero_flag"],
+            &[
+                "carry_out",
+                "carry_in",
+                "negative_zero",
+                "zero_flag",
+                "offset_carry",
+            ],
         );
         let p = "conventions.";
+        // Every value is read first: whether one key has an effect can depend on another
+        // (negative_zero and zero_flag).
+        let mut present: Vec<(ConventionKey, usize)> = Vec::new();
         if let Some((v, at)) = self.choice(
             t,
             p,
@@ -950,18 +988,7 @@ impl<'a> Reader<'a> {
             ],
         ) {
             spec.conventions.carry_out = v;
-            if !(spec.subtracts()
-                && spec.encoding.is_binary_datapath()
-                && spec.has(Signal::CarryOut))
-            {
-                self.problem(
-                    at..at,
-                    "conventions.carry_out",
-                    "has no effect: it applies to a carry_out port of a subtracting unit \
-                     (sub, addsub, negate, decrement) in unsigned, twos or offset encoding; \
-                     remove it",
-                );
-            }
+            present.push((ConventionKey::CarryOut, at));
         }
         if let Some((v, at)) = self.choice(
             t,
@@ -973,16 +1000,7 @@ impl<'a> Reader<'a> {
             ],
         ) {
             spec.conventions.carry_in = v;
-            if !(matches!(spec.operation, Operation::Sub | Operation::AddSub)
-                && spec.has(Signal::CarryIn))
-            {
-                self.problem(
-                    at..at,
-                    "conventions.carry_in",
-                    "has no effect: it applies to the carry_in port of a sub or addsub unit; \
-                     remove it",
-                );
-            }
+            present.push((ConventionKey::CarryIn, at));
         }
         if let Some((v, at)) = self.choice(
             t,
@@ -995,13 +1013,7 @@ impl<'a> Reader<'a> {
             ],
         ) {
             spec.conventions.negative_zero = v;
-            if !spec.encoding.has_negative_zero() || spec.operation == Operation::Compare {
-                self.problem(
-                    at..at,
-                    "conventions.negative_zero",
-                    "has no effect: it applies to the result of a ones or signmag unit; remove it",
-                );
-            }
+            present.push((ConventionKey::NegativeZero, at));
         }
         if let Some((v, at)) = self.choice(
             t,
@@ -1014,16 +1026,55 @@ impl<'a> Reader<'a> {
                 self.problem(
                     at..at,
                     "conventions.zero_flag",
-                    "\"bits\" is not meaningful for offset binary, whose zero is 10..0; use \"value\"",
+                    "\"bits\" is not meaningful for offset binary, whose zero is 10..0; remove \
+                     the key (the zero flag is set for the value 0)",
                 );
-            } else if !spec.has(Signal::Zero) {
-                self.problem(
-                    at..at,
-                    "conventions.zero_flag",
-                    "has no effect: the unit has no zero port; remove it",
-                );
+            } else {
+                present.push((ConventionKey::ZeroFlag, at));
             }
         }
+        if let Some((v, at)) = self.choice(
+            t,
+            p,
+            "offset_carry",
+            &[("inner", OffsetCarry::Inner), ("codes", OffsetCarry::Codes)],
+        ) {
+            spec.conventions.offset_carry = v;
+            present.push((ConventionKey::OffsetCarry, at));
+        }
+        for (key, at) in present {
+            if let Some(why) = spec.convention_without_effect(key) {
+                self.problem(at..at, &format!("conventions.{}", key.name()), why);
+            }
+        }
+    }
+
+    /// An addsub unit's carry_in port means a carry in one mode and, in the other, either a
+    /// borrow or the raw adder carry-in; both are built, so the spec must say which.
+    fn require_addsub_carry_in(
+        &mut self,
+        spec: &Spec,
+        conventions: Option<&Table<'_>>,
+        ports: Option<&Table<'_>>,
+    ) {
+        if spec.operation != Operation::AddSub || !spec.has(Signal::CarryIn) {
+            return;
+        }
+        if conventions.is_some_and(|t| Self::get(t, "carry_in").is_some()) {
+            return;
+        }
+        let at = ports
+            .and_then(|t| Self::get(t, "carry_in"))
+            .map_or(0..0, |(k, _)| k.span());
+        self.problem(
+            at,
+            "conventions.carry_in",
+            "an addsub unit with a carry_in port must say what the port means when subtracting: \
+             carry_in = \"borrow\" (mode 1 computes a - b - cin, as a borrow-in) or \
+             carry_in = \"carry\" (the port feeds the adder's carry-in, as in a plain \
+             a + (b ^ m) + cin unit, so mode 1 computes a - b - 1 + cin); add one of them \
+             under [conventions]",
+        );
     }
 
     fn read_random(&mut self, t: &Table<'_>, random: &mut RandomSettings) {

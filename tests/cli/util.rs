@@ -71,6 +71,9 @@ overflow = "ovf"
 zero = "zf"
 negative = "nf"
 
+[conventions]
+carry_in = "borrow"
+
 [random]
 count = 30
 seed = 11
@@ -128,6 +131,10 @@ pub fn spec_text(
     );
     for (key, port) in ports {
         text.push_str(&format!("{key} = \"{port}\"\n"));
+    }
+    if operation == "addsub" && text.contains("carry_in = ") {
+        // An addsub carry_in port must say what it means when subtracting.
+        text.push_str("\n[conventions]\ncarry_in = \"borrow\"\n");
     }
     text.push_str(&format!("\n[random]\ncount = {count}\nseed = {seed}\n"));
     text

@@ -14,7 +14,7 @@
 
 use crate::arith::bits::{Bits, Wide};
 use crate::arith::encoding::{decode, max_value, min_value, negative_zero};
-use crate::arith::model::{Cell, Inputs, Model, Outputs, Path, Trace};
+use crate::arith::model::{offset_carries, Cell, Inputs, Model, Outputs, Path, Trace};
 use crate::arith::word::Word;
 use crate::spec::{Encoding, Operation, Signal, Spec};
 
@@ -119,6 +119,7 @@ pub(crate) enum Kind {
     SignMagEffectiveSub,
     SignMagOpposites,
     OffsetMidpoint,
+    OffsetCarrySource,
     CompareOutcome,
     CompareEqual,
     CompareOffByOne,
@@ -788,6 +789,15 @@ impl Catalogue {
                     {
                         if ma == mb && !ma.is_zero() {
                             bin(hits, a.bit(w - 1) as u32);
+                        }
+                    }
+                }
+                Kind::OffsetCarrySource => {
+                    if let Path::Ripple { cell, x, y, c0, .. } = t.path {
+                        match offset_carries(cell, x, y, c0, w) {
+                            (true, false) => bin(hits, 0),
+                            (false, true) => bin(hits, 1),
+                            _ => {}
                         }
                     }
                 }
