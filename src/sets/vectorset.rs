@@ -503,7 +503,7 @@ fn formatter<'a>(generator: &'a Generator, spec: &Spec) -> Formatter<'a> {
         .inputs()
         .into_iter()
         .chain(spec.outputs())
-        .map(|(s, _)| (s as usize, s.width(spec.width).div_ceil(4) as usize))
+        .map(|(s, _)| (s as usize, spec.signal_width(s).div_ceil(4) as usize))
         .collect();
     let narrow = match (
         spec.width <= 64,
@@ -525,12 +525,12 @@ fn formatter<'a>(generator: &'a Generator, spec: &Spec) -> Formatter<'a> {
         inputs: spec
             .inputs()
             .iter()
-            .map(|(s, _)| (*s, s.width(spec.width)))
+            .map(|(s, _)| (*s, spec.signal_width(*s)))
             .collect(),
         outputs: spec
             .outputs()
             .iter()
-            .map(|(s, _)| (*s, s.width(spec.width)))
+            .map(|(s, _)| (*s, spec.signal_width(*s)))
             .collect(),
     }
 }

@@ -870,7 +870,7 @@ impl<'g> Checker<'g> {
             fields: inputs
                 .iter()
                 .chain(spec.outputs().iter())
-                .map(|&(s, _)| (s, s.width(spec.width)))
+                .map(|&(s, _)| (s, spec.signal_width(s)))
                 .collect(),
             inputs: inputs.len(),
             options,
@@ -1277,7 +1277,7 @@ fn describe(
         .inputs()
         .into_iter()
         .map(|(sig, port)| {
-            let w = sig.width(spec.width);
+            let w = spec.signal_width(sig);
             let v = inputs.get(sig);
             FieldValueReport {
                 port: port.to_string(),
@@ -1290,7 +1290,7 @@ fn describe(
     let mut outputs = Vec::new();
     for (sig, port) in spec.outputs() {
         let Some(o) = field(sig) else { continue };
-        let w = sig.width(spec.width);
+        let w = spec.signal_width(sig);
         let e = expected.get(sig).masked(w);
         let unknown = o.unknown.masked(w);
         let diff = o.bits.xor(&e).and(&unknown.not(w)).masked(w);
