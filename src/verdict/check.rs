@@ -874,7 +874,14 @@ impl<'g> Checker<'g> {
                 .collect(),
             inputs: inputs.len(),
             options,
-            limbs: spec.width.div_ceil(64) as usize,
+            limbs: Signal::ALL
+                .into_iter()
+                .filter(|&s| spec.has(s))
+                .map(|s| spec.signal_width(s))
+                .max()
+                .unwrap_or(spec.width)
+                .max(spec.width)
+                .div_ceil(64) as usize,
         });
         let (pool, local) = if threads > 1 {
             (Some(Pool::start(&shared, threads)), None)
