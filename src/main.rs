@@ -533,7 +533,7 @@ fn testbench(
 }
 
 fn field_row(role: &str, sig: Signal, name: &str, v: &arithvec::Word, spec: &Spec) -> [String; 5] {
-    let w = sig.width(spec.width);
+    let w = spec.signal_width(sig);
     let value = if matches!(sig, Signal::A | Signal::B | Signal::Result) {
         format!("{} ({})", Value::decode(v, w, spec.encoding), spec.encoding)
     } else {

@@ -7,10 +7,11 @@
 //! them, the carry or borrow into every bit, the true result), which the corner-class
 //! catalogue reads. The model knows nothing about files, ports or formats.
 
-use crate::arith::bits::{Bits, Wide};
+use crate::arith::bits::{Bits, Huge, Wide};
 use crate::arith::encoding::{
     decode, encode, is_negative_zero, negative_zero, representable, sign_bit,
 };
+use crate::arith::ops::OpUnit;
 use crate::arith::word::Word;
 use crate::spec::{
     CarryInConvention, CarryOutConvention, Encoding, NegativeZero, OffsetCarry, Operation, Signal,
@@ -59,6 +60,7 @@ impl Inputs {
             Signal::B => self.b,
             Signal::CarryIn => Word::from_u64(self.carry_in as u64),
             Signal::Mode => Word::from_u64(self.mode as u64),
+            Signal::Amount => self.b,
             _ => Word::ZERO,
         }
     }
@@ -70,6 +72,7 @@ impl Inputs {
             Signal::B => self.b = value,
             Signal::CarryIn => self.carry_in = value.bit(0),
             Signal::Mode => self.mode = value.bit(0),
+            Signal::Amount => self.b = value,
             _ => {}
         }
     }
@@ -291,6 +294,8 @@ pub struct Model {
     force_wide: bool,
     /// [`Model::ripple_view`] for mode false and true, worked out once.
     views: [Option<RippleView>; 2],
+    /// The shift, rotate or multiply unit, for those operations.
+    unit: Option<OpUnit>,
 }
 
 impl Model {
@@ -313,6 +318,14 @@ impl Model {
             has_carry_in: spec.has(Signal::CarryIn),
             force_wide: false,
             views: [None; 2],
+            unit: spec.options.map(|options| OpUnit {
+                operation: spec.operation,
+                encoding: spec.encoding,
+                width: spec.width,
+                options,
+                negative_zero: spec.conventions.negative_zero,
+                zero_flag: spec.conventions.zero_flag,
+            }),
         };
         model.views = [model.find_ripple_view(false), model.find_ripple_view(true)];
         model
@@ -341,7 +354,21 @@ impl Model {
     }
 
     pub(crate) fn uses_fast_path(&self) -> bool {
-        self.width <= 64 && !self.force_wide
+        // A u128 holds a 63 x 63-bit signed product; a 64-bit multiplier takes the wide path.
+        self.width <= 64
+            && !self.force_wide
+            && !(self.operation == Operation::Mul && self.width > 63)
+    }
+
+    /// True when the exact results need more than the 576-bit wide integer (products of
+    /// operands above 286 bits).
+    pub(crate) fn needs_huge(&self) -> bool {
+        self.operation == Operation::Mul && 2 * self.width + 2 > Wide::CAPACITY
+    }
+
+    /// The shift, rotate or multiply unit (None for the other operations).
+    pub(crate) fn unit(&self) -> Option<&OpUnit> {
+        self.unit.as_ref()
     }
 
     /// The ripple datapath for the operation in `mode` (ignored unless addsub), or None when
@@ -374,6 +401,15 @@ impl Model {
             }
         };
         let (cell, x, y, c0) = match (self.encoding, self.operation) {
+            (
+                _,
+                Operation::Shl
+                | Operation::Shr
+                | Operation::Sra
+                | Operation::Rol
+                | Operation::Ror
+                | Operation::Mul,
+            ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,
             (Encoding::Ones, Operation::Negate) => return None,
             (Encoding::Ones, Operation::Add) => (Cell::Adder, A, B, CarrySource::Fixed(false)),
@@ -411,6 +447,8 @@ impl Model {
     pub fn evaluate(&self, inputs: &Inputs) -> Outputs {
         if self.uses_fast_path() {
             self.outputs_of(&self.trace::<u128>(inputs))
+        } else if self.needs_huge() {
+            self.outputs_of(&self.trace::<Huge>(inputs))
         } else {
             self.outputs_of(&self.trace::<Wide>(inputs))
         }
@@ -474,6 +512,25 @@ impl Model {
 
     /// Runs the model and keeps the datapath trace.
     pub(crate) fn trace<B: Bits>(&self, inputs: &Inputs) -> Trace<B> {
+        if let Some(unit) = &self.unit {
+            let r = unit.evaluate(B::from_word(&inputs.a), B::from_word(&inputs.b));
+            return Trace {
+                va: r.va,
+                vb: r.vb,
+                cin: false,
+                subtracting: false,
+                truth: r.truth,
+                result: r.result,
+                path: Path::None,
+                outputs_flags: Flags {
+                    carry_out: r.carry_out,
+                    overflow: r.overflow,
+                    zero: r.zero,
+                    negative: r.negative,
+                    ..Flags::default()
+                },
+            };
+        }
         let w = self.width;
         let enc = self.encoding;
         let mask = B::low_mask(w);
@@ -505,6 +562,8 @@ impl Model {
             Operation::Increment => va.add(B::one()),
             Operation::Decrement => va.sub(B::one()),
             Operation::Compare => va.sub(vb),
+            // Shifts, rotates and mul returned above with their own unit's trace.
+            _ => unreachable!("extended operations have their own model"),
         };
 
         if self.operation == Operation::Compare {
@@ -593,6 +652,7 @@ impl Model {
                         return self.finish(va, vb, cin, subtracting, truth, r, Path::None, false);
                     }
                     Operation::Compare => unreachable!("handled above"),
+                    _ => unreachable!("extended operations have their own model"),
                 };
                 let (sa, sb) = (a.bit(m), b_eff.bit(m));
                 let (ma, mb) = (a.mask(m), b_eff.mask(m));

@@ -127,7 +127,7 @@ fn match_ports(spec: &Spec, netlist: &Netlist) -> Result<PortMap> {
     for port in netlist.inputs() {
         match by_name(port.name()).filter(|s| s.is_input()) {
             Some(sig) => {
-                let w = sig.width(spec.width);
+                let w = spec.signal_width(sig);
                 if port.width() != w {
                     problems.push(
                         Problem::new(
@@ -172,7 +172,7 @@ fn match_ports(spec: &Spec, netlist: &Netlist) -> Result<PortMap> {
     for port in netlist.outputs() {
         let sig = by_name(port.name()).filter(|s| !s.is_input());
         if let Some(s) = sig {
-            if port.width() != s.width(spec.width) {
+            if port.width() != spec.signal_width(s) {
                 problems.push(
                     Problem::new(
                         &src,
@@ -180,7 +180,7 @@ fn match_ports(spec: &Spec, netlist: &Netlist) -> Result<PortMap> {
                             "output port is {} bits wide; the spec's {} is {}",
                             port.width(),
                             s.key(),
-                            s.width(spec.width)
+                            spec.signal_width(s)
                         ),
                     )
                     .field(format!("port {}", port.name())),
@@ -320,7 +320,7 @@ impl<'a> Grader<'a> {
                 .zip(got)
             {
                 let Some(sig) = sig else { continue };
-                let w = sig.width(self.spec.width);
+                let w = self.spec.signal_width(*sig);
                 let want = e.get(*sig).masked(w);
                 if g.masked(w) != want {
                     out.push(NetlistMismatch {

@@ -222,7 +222,7 @@ struct NarrowRows {
 /// Every signal's value (low 64 bits), indexed by `Signal as usize`, so the row writer
 /// reads fields by number instead of matching on the signal per field.
 #[inline]
-fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 12] {
+fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 13] {
     [
         i.a.low_u64(),
         i.b.low_u64(),
@@ -236,6 +236,7 @@ fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 12] {
         o.less as u64,
         o.equal as u64,
         o.greater as u64,
+        i.b.low_u64(),
     ]
 }
 
@@ -263,7 +264,7 @@ impl NarrowWord {
 
     /// The packed word, as [`Packer::push_line`] packs it.
     #[inline]
-    fn pack(&self, values: &[u64; 12]) -> u128 {
+    fn pack(&self, values: &[u64; 13]) -> u128 {
         let mut packed = 0u128;
         for &(signal, lsb, mask) in &self.fields {
             packed |= ((values[signal] & mask) as u128) << lsb;
@@ -510,10 +511,13 @@ fn formatter<'a>(generator: &'a Generator, spec: &Spec) -> Formatter<'a> {
         .inputs()
         .into_iter()
         .chain(spec.outputs())
-        .map(|(s, _)| (s as usize, s.width(spec.width).div_ceil(4) as usize))
+        .map(|(s, _)| (s as usize, spec.signal_width(s).div_ceil(4) as usize))
         .collect();
     let narrow = match (
-        spec.width <= 64,
+        spec.width <= 64
+            && Signal::ALL
+                .into_iter()
+                .all(|s| !spec.has(s) || spec.signal_width(s) <= 64),
         NarrowWord::of(&layout.stimulus),
         NarrowWord::of(&layout.expected),
     ) {
@@ -532,12 +536,12 @@ fn formatter<'a>(generator: &'a Generator, spec: &Spec) -> Formatter<'a> {
         inputs: spec
             .inputs()
             .iter()
-            .map(|(s, _)| (*s, s.width(spec.width)))
+            .map(|(s, _)| (*s, spec.signal_width(*s)))
             .collect(),
         outputs: spec
             .outputs()
             .iter()
-            .map(|(s, _)| (*s, s.width(spec.width)))
+            .map(|(s, _)| (*s, spec.signal_width(*s)))
             .collect(),
     }
 }

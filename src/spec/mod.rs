@@ -19,6 +19,8 @@ use crate::error::{Error, Problem, Result};
 
 mod conventions;
 use conventions::ConventionKey;
+mod ops;
+pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -42,6 +44,18 @@ pub enum Operation {
     Decrement,
     /// Orders `a` against `b` by value under the encoding.
     Compare,
+    /// `a << amount`, zeros shifted in.
+    Shl,
+    /// `a >> amount`, zeros shifted in.
+    Shr,
+    /// `a >> amount`, copies of the sign bit shifted in (twos only).
+    Sra,
+    /// `a` rotated left by `amount` modulo N.
+    Rol,
+    /// `a` rotated right by `amount` modulo N.
+    Ror,
+    /// `a * b`, an R-bit result (default R = 2N).
+    Mul,
 }
 
 impl Operation {
@@ -56,6 +70,16 @@ impl Operation {
         Operation::Compare,
     ];
 
+    /// The shift, rotate and multiply operations (models in `arith::ops`).
+    pub const EXTENDED: [Operation; 6] = [
+        Operation::Shl,
+        Operation::Shr,
+        Operation::Sra,
+        Operation::Rol,
+        Operation::Ror,
+        Operation::Mul,
+    ];
+
     /// The spec-file spelling.
     pub fn name(self) -> &'static str {
         match self {
@@ -66,6 +90,12 @@ impl Operation {
             Operation::Increment => "increment",
             Operation::Decrement => "decrement",
             Operation::Compare => "compare",
+            Operation::Shl => "shl",
+            Operation::Shr => "shr",
+            Operation::Sra => "sra",
+            Operation::Rol => "rol",
+            Operation::Ror => "ror",
+            Operation::Mul => "mul",
         }
     }
 
@@ -73,7 +103,11 @@ impl Operation {
     pub fn is_binary(self) -> bool {
         matches!(
             self,
-            Operation::Add | Operation::Sub | Operation::AddSub | Operation::Compare
+            Operation::Add
+                | Operation::Sub
+                | Operation::AddSub
+                | Operation::Compare
+                | Operation::Mul
         )
     }
 
@@ -91,6 +125,10 @@ impl Operation {
                 &[A, Result, CarryOut, Overflow, Zero, Negative]
             }
             Operation::Compare => &[A, B, Less, Equal, Greater],
+            Operation::Shl | Operation::Shr | Operation::Sra | Operation::Rol | Operation::Ror => {
+                &[A, Amount, Result, CarryOut, Zero, Negative]
+            }
+            Operation::Mul => &[A, B, Result, Overflow, Zero, Negative],
         }
     }
 }
@@ -187,11 +225,13 @@ pub enum Signal {
     Equal,
     /// Compare: a > b.
     Greater,
+    /// Shift amount (width `amount_width`).
+    Amount,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 12] = [
+    pub const ALL: [Signal; 13] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -204,6 +244,7 @@ impl Signal {
         Signal::Less,
         Signal::Equal,
         Signal::Greater,
+        Signal::Amount,
     ];
 
     /// The key used in `[ports]`.
@@ -221,6 +262,7 @@ impl Signal {
             Signal::Less => "less",
             Signal::Equal => "equal",
             Signal::Greater => "greater",
+            Signal::Amount => "amount",
         }
     }
 
@@ -231,7 +273,10 @@ impl Signal {
 
     /// True for inputs of the unit.
     pub fn is_input(self) -> bool {
-        matches!(self, Signal::A | Signal::B | Signal::CarryIn | Signal::Mode)
+        matches!(
+            self,
+            Signal::A | Signal::B | Signal::CarryIn | Signal::Mode | Signal::Amount
+        )
     }
 
     /// The signal's width in bits for a unit of operand width `width`.
@@ -428,6 +473,9 @@ pub struct Spec {
     /// The DUT to instantiate in testbenches and netlists, if given.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub dut: Option<Dut>,
+    /// Options of the shift, rotate and multiply operations (None for the others).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub options: Option<OpOptions>,
 }
 
 impl Spec {
@@ -483,6 +531,10 @@ impl Spec {
             self.width,
             q(self.encoding.name())
         );
+        let (option_root, option_conv) = self.options_toml();
+        if !option_root.is_empty() {
+            t.insert_str(t.len() - "\n[ports]\n".len(), &option_root);
+        }
         for sig in Signal::ALL {
             if let Some(p) = self.ports.get(sig) {
                 t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
@@ -519,6 +571,7 @@ impl Spec {
             };
             conv.push_str(&format!("{} = {}\n", key.name(), q(v)));
         }
+        conv.push_str(&option_conv);
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
             t.push_str(&conv);
@@ -569,6 +622,7 @@ impl Spec {
             conventions: Conventions::default(),
             random: RandomSettings::default(),
             dut: None,
+            options: Spec::default_options(operation, encoding, width),
         }
     }
 }
@@ -764,6 +818,8 @@ impl<'a> Reader<'a> {
                 "conventions",
                 "random",
                 "dut",
+                ops::ROOT_KEYS[0],
+                ops::ROOT_KEYS[1],
             ],
         );
         let name = self.string(root, "", "name");
@@ -784,7 +840,11 @@ impl<'a> Reader<'a> {
             root,
             "",
             "operation",
-            &Operation::ALL.map(|o| (o.name(), o)),
+            &Operation::ALL
+                .into_iter()
+                .chain(Operation::EXTENDED)
+                .map(|o| (o.name(), o))
+                .collect::<Vec<_>>(),
         );
         let encoding = self.choice(root, "", "encoding", &Encoding::ALL.map(|e| (e.name(), e)));
         let width = self.integer(root, "", "width");
@@ -845,11 +905,20 @@ impl<'a> Reader<'a> {
             conventions: Conventions::default(),
             random: RandomSettings::default(),
             dut: None,
+            options: None,
         };
+        spec.options = Spec::default_options(spec.operation, spec.encoding, spec.width);
+        if let Some(why) = spec.operation.refuses(spec.encoding) {
+            let at = Self::get(root, "encoding").map_or(0..0, |(_, v)| v.span());
+            self.problem(at, "encoding", why);
+        }
+        self.read_option_widths(root, &mut spec);
         if let Some(t) = conv_table {
             self.read_conventions(t, &mut spec);
+            self.read_option_conventions(t, &mut spec);
         }
         self.require_addsub_carry_in(&spec, conv_table, ports_table);
+        self.check_options(&spec);
         if let Some(t) = random_table {
             self.read_random(t, &mut spec.random);
         }
@@ -972,6 +1041,9 @@ impl<'a> Reader<'a> {
                 "negative_zero",
                 "zero_flag",
                 "offset_carry",
+                ops::CONVENTION_KEYS[0],
+                ops::CONVENTION_KEYS[1],
+                ops::CONVENTION_KEYS[2],
             ],
         );
         let p = "conventions.";

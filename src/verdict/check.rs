@@ -1005,13 +1005,20 @@ impl<'g> Checker<'g> {
                 .iter()
                 .map(|&(s, _)| s)
                 .chain(outputs.iter().filter(|o| o.2).map(|o| o.0))
-                .map(|s| (s, s.width(spec.width)))
+                .map(|s| (s, spec.signal_width(s)))
                 .collect(),
             inputs: inputs.len(),
             outputs,
             seed: set.map(|m| m.seed),
             options,
-            limbs: spec.width.div_ceil(64) as usize,
+            limbs: Signal::ALL
+                .into_iter()
+                .filter(|&s| spec.has(s))
+                .map(|s| spec.signal_width(s))
+                .max()
+                .unwrap_or(spec.width)
+                .max(spec.width)
+                .div_ceil(64) as usize,
         });
         let (pool, local) = if threads > 1 {
             (Some(Pool::start(&shared, threads)), None)
@@ -1476,7 +1483,7 @@ fn describe(
         .inputs()
         .into_iter()
         .map(|(sig, port)| {
-            let w = sig.width(spec.width);
+            let w = spec.signal_width(sig);
             let v = inputs.get(sig);
             FieldValueReport {
                 port: port.to_string(),
@@ -1489,7 +1496,7 @@ fn describe(
     let mut outputs = Vec::new();
     for (sig, port) in spec.outputs() {
         let Some(o) = field(sig) else { continue };
-        let w = sig.width(spec.width);
+        let w = spec.signal_width(sig);
         let e = expected.get(sig).masked(w);
         let unknown = o.unknown.masked(w);
         let diff = o.bits.xor(&e).and(&unknown.not(w)).masked(w);

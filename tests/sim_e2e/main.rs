@@ -11,6 +11,7 @@
 //! be watched.
 
 mod behav;
+mod behav_ops;
 mod bugs;
 mod flow;
 mod reference;

@@ -18,8 +18,10 @@ use crate::arith::model::{offset_carries, Cell, Inputs, Model, Outputs, Path, Tr
 use crate::arith::word::Word;
 use crate::spec::{Encoding, Operation, Signal, Spec};
 
+mod ext;
 mod program;
 mod templates;
+pub(crate) use ext::{booth_digits, booth_operand, ExtKind};
 use program::*;
 use templates::*;
 
@@ -125,6 +127,8 @@ pub(crate) enum Kind {
     CompareOffByOne,
     CompareSignsDiffer,
     CompareExtremes,
+    /// A class of the shift, rotate and multiply operations (see `ext`).
+    Ext(ExtKind),
 }
 
 /// One corner class.
@@ -477,6 +481,10 @@ impl Catalogue {
         if self.model.uses_fast_path() {
             let t = self.model.trace::<u128>(inputs);
             self.classify_narrow(inputs, &t, hits, detail);
+            self.model.outputs_of(&t)
+        } else if self.model.needs_huge() {
+            let t = self.model.trace::<crate::arith::bits::Huge>(inputs);
+            self.classify(inputs, &t, hits, detail);
             self.model.outputs_of(&t)
         } else {
             let t = self.model.trace::<Wide>(inputs);
@@ -867,6 +875,9 @@ impl Catalogue {
                     if let Some(k) = k {
                         bin(hits, k);
                     }
+                }
+                Kind::Ext(kind) => {
+                    ext::ext_bins(&self.model, kind, a, b, t, |k| bin(hits, k));
                 }
             }
         }

@@ -76,6 +76,11 @@ pub(super) fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) ->
         ));
     }
 
+    if op.is_extended() {
+        super::ext::ext_templates(model, spec, &mut out);
+        return out;
+    }
+
     if op == Operation::Compare {
         out.push((
             "compare.outcome".into(),

@@ -696,7 +696,7 @@ fn parse_header(
             present |= 1 << slot(signal);
             Target::Value {
                 slot: slot(signal),
-                width: signal.width(spec.width),
+                width: spec.signal_width(signal),
             }
         } else if i == 0 && name.bytes().all(|b| b.is_ascii_digit()) {
             // A data line where the header should be: one problem says it all.
