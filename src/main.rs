@@ -226,6 +226,30 @@ fn gen(
     let spec = read_spec(spec_path)?;
     let shard = shard.map(parse_shard).transpose()?;
     let generator = Generator::new(&spec, count, seed);
+    // The index of every vector must fit in 64 bits; a total that overflows would wrap and
+    // write a handful of vectors under a count nobody asked for.
+    if (generator.directed().len() as u64)
+        .checked_add(generator.random_count())
+        .is_none()
+    {
+        let (file, field) = match count {
+            Some(_) => ("--count".to_string(), "count"),
+            None => (spec_path.display().to_string(), "random.count"),
+        };
+        return Err(Error::problem(
+            Problem::new(
+                file,
+                format!(
+                    "{} random vectors plus {} directed ones is more than 2^64 - 1 vectors; \
+                     the largest count for this spec is {}",
+                    generator.random_count(),
+                    generator.directed().len(),
+                    u64::MAX - generator.directed().len() as u64
+                ),
+            )
+            .field(field),
+        ));
+    }
     let total = shard.map_or(generator.total(), |s| {
         let r = s.range(generator.total());
         r.end - r.start
@@ -236,6 +260,10 @@ fn gen(
             b.set_position(n);
         }
     };
+    // Interrupted by SIGINT/SIGTERM, the run removes its temporaries (and the directory when
+    // it created it) before exiting.
+    let _new_dir = cli::signals::guard_new_dir(dir);
+    let _temporaries = cli::signals::guard_vector_set(dir);
     let manifest = write_vector_set(
         &generator,
         &spec,

@@ -11,7 +11,7 @@ use arithvec::{
     Verdict,
 };
 
-use crate::cli::util::{out, read_spec, stdout_error, write_atomic, Outcome};
+use crate::cli::util::{out, parse_percent, read_spec, stdout_error, write_atomic, Outcome};
 
 pub const CHECK_HELP: &str = "Example:\n  arithvec check unit.toml --log results.csv --vectors vec/ --require 100 \\\n      --junit check.xml --json check.json\n\n\
 The log has a header row naming columns after the spec's ports (and optionally `index`), \
@@ -91,18 +91,6 @@ pub struct MergeArgs {
 
 fn parse_radix(s: &str) -> Result<Radix, String> {
     s.parse()
-}
-
-fn parse_percent(s: &str) -> Result<f64, String> {
-    let v: f64 = s
-        .trim_end_matches('%')
-        .parse()
-        .map_err(|_| format!("\"{s}\" is not a percentage"))?;
-    if (0.0..=100.0).contains(&v) {
-        Ok(v)
-    } else {
-        Err(format!("{v} is not between 0 and 100"))
-    }
 }
 
 fn outcome(r: &CheckReport) -> Outcome {

@@ -11,7 +11,7 @@ use arithvec::{
 };
 
 use crate::cli::check::open_vectors;
-use crate::cli::util::{out, read_spec, stdout_error, Outcome};
+use crate::cli::util::{out, parse_percent, read_spec, stdout_error, Outcome};
 
 pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n\n\
 The netlist's module is [dut] module unless --module says otherwise; its ports are matched by \
@@ -47,7 +47,7 @@ pub struct GradeArgs {
     #[arg(long, value_enum, default_value_t = GradeFormat::Table)]
     format: GradeFormat,
     /// Fault coverage required, in percent (exit 3 when short).
-    #[arg(long, value_name = "PCT")]
+    #[arg(long, value_name = "PCT", value_parser = parse_percent)]
     require: Option<f64>,
     /// Write the smallest subset found that keeps class and fault coverage to --out.
     #[arg(long, requires = "out")]
@@ -236,6 +236,8 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                 None => manifest.first_index + p as u64,
             })
             .collect();
+        let _new_dir = crate::cli::signals::guard_new_dir(dir);
+        let _temporaries = crate::cli::signals::guard_vector_set(dir);
         let m = write_selection(&generator, &spec, dir, &source)?;
         if !quiet {
             writeln!(
