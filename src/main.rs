@@ -86,6 +86,13 @@ enum Command {
         /// Random seed (overrides [random] seed).
         #[arg(long)]
         seed: Option<u64>,
+        /// Number of random vectors in the set (overrides [random] count), as given to `gen`.
+        #[arg(long)]
+        count: Option<u64>,
+        /// Allow an index past the end of the set: random vector j is defined for every j, so
+        /// this shows the vector a longer set would hold there.
+        #[arg(long)]
+        beyond: bool,
         /// Output format: text, or csv (the header and the vector's row of vectors.csv).
         #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
         format: ReproFormat,
@@ -180,8 +187,10 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             spec,
             index,
             seed,
+            count,
+            beyond,
             format,
-        } => repro(&spec, index, seed, format),
+        } => repro(&spec, index, seed, count, beyond, format),
         Command::Testbench {
             spec,
             vectors,
@@ -403,11 +412,38 @@ fn repro(
     spec_path: &Path,
     index: u64,
     seed: Option<u64>,
+    count: Option<u64>,
+    beyond: bool,
     format: ReproFormat,
 ) -> Result<Outcome, Error> {
     let spec = read_spec(spec_path)?;
-    // The random part is unbounded here: vector j is a pure function of (spec, seed, j).
+    // Vector j is a pure function of (spec, seed, j), so the random part can be unbounded;
+    // the set's own size (the spec's count or --count) decides what "past the end" means.
+    let set_random = count.unwrap_or(spec.random.count);
     let generator = Generator::new(&spec, Some(u64::MAX - 1_000_000), seed);
+    let directed = generator.directed().len() as u64;
+    let set_total = directed.saturating_add(set_random);
+    if index >= set_total && !beyond {
+        return Err(Error::problem(
+            Problem::new(
+                "--index",
+                format!(
+                    "index {index} is past the end of the set: it has {set_total} vectors \
+                     ({directed} directed + {set_random} random, {}), so the last index is {}; \
+                     give the set's --count, or pass --beyond to see random vector {} of the \
+                     seed's stream anyway",
+                    if count.is_some() {
+                        "from --count"
+                    } else {
+                        "from the spec's [random] count"
+                    },
+                    set_total.saturating_sub(1),
+                    index.saturating_sub(directed)
+                ),
+            )
+            .field("index"),
+        ));
+    }
     let inputs = generator.vector(index).ok_or_else(|| {
         Error::problem(Problem::new("--index", "index out of range").field("index"))
     })?;
@@ -429,7 +465,16 @@ fn repro(
     let origin = if index < d {
         format!("directed vector {index} of {d}")
     } else {
-        format!("random vector {} (seed {})", index - d, generator.seed())
+        let past = if index >= set_total {
+            format!(", past the end of the set's {set_total} vectors (--beyond)")
+        } else {
+            String::new()
+        };
+        format!(
+            "random vector {} (seed {}){past}",
+            index - d,
+            generator.seed()
+        )
     };
     writeln!(
         o,

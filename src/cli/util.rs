@@ -41,9 +41,7 @@ pub fn parse_percent(s: &str) -> Result<f64, String> {
     if v.is_finite() && (0.0..=100.0).contains(&v) {
         Ok(v)
     } else {
-        Err(format!(
-            "\"{s}\" is not a percentage from 0 to 100"
-        ))
+        Err(format!("\"{s}\" is not a percentage from 0 to 100"))
     }
 }
 
