@@ -226,15 +226,8 @@ fn issue9_grade_require_must_be_a_finite_percentage() {
     let spec = sb.spec("add", Unit::Add, 8, 0, Flags::All);
     sb.gen(&spec, "vec", &[]);
     for bad in ["nan", "101", "inf", "-1", "x"] {
-        let run = sb.run(&[
-            "grade",
-            &spec,
-            "--vectors",
-            "vec",
-            "--builtin",
-            "--require",
-            bad,
-        ]);
+        let arg = format!("--require={bad}");
+        let run = sb.run(&["grade", &spec, "--vectors", "vec", "--builtin", &arg]);
         run.expect_code(2);
         assert!(run.stderr.contains("--require"), "{}", run.describe());
     }
