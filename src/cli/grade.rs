@@ -76,7 +76,32 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                     ))
                 }
             };
-            Netlist::from_yosys_json(&text, &path.display().to_string(), &module)?
+            let netlist = Netlist::from_yosys_json(&text, &path.display().to_string(), &module)?;
+            // Every output the spec names must be in the netlist, as every input must: a
+            // spec output the netlist lacks could never be compared, so grading without it
+            // would overstate. The built-in models build no zero or negative flag, so the
+            // check is for netlist files only.
+            let missing: Vec<Problem> = spec
+                .outputs()
+                .into_iter()
+                .filter(|(_, name)| netlist.output_port(name).is_none())
+                .map(|(sig, name)| {
+                    Problem::new(
+                        path.display().to_string(),
+                        format!(
+                            "module `{}` has no output port \"{name}\" (the spec's {}); rename \
+                             the port or remove it from the spec's [ports]",
+                            netlist.module(),
+                            sig.key()
+                        ),
+                    )
+                    .field(format!("port {name}"))
+                })
+                .collect();
+            if !missing.is_empty() {
+                return Err(Error::input(missing));
+            }
+            netlist
         }
         None => BuiltinModel::for_spec(&spec)?.build(&spec)?,
     };

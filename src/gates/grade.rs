@@ -188,24 +188,6 @@ fn match_ports(spec: &Spec, netlist: &Netlist) -> Result<PortMap> {
         }
         outputs.push(sig);
     }
-    // Every output the spec names must be in the netlist, as every input must: a spec
-    // output the netlist lacks could never be compared, so grading it would overstate.
-    for (sig, name) in spec.outputs() {
-        if netlist.output_port(name).is_none() {
-            problems.push(
-                Problem::new(
-                    &src,
-                    format!(
-                        "module `{}` has no output port \"{name}\" (the spec's {}); rename \
-                         the port or remove it from the spec's [ports]",
-                        netlist.module(),
-                        sig.key()
-                    ),
-                )
-                .field(format!("port {name}")),
-            );
-        }
-    }
     if !outputs.iter().any(Option::is_some) {
         problems.push(Problem::new(
             &src,
