@@ -67,10 +67,11 @@ pub use gates::netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder,
 pub use sets::hexfile::Packer;
 pub use sets::layout::{Field, Layout, WordLayout};
 pub use sets::vectorset::{
-    csv_header, csv_row, read_manifest, read_manifest_unverified, sha256_hex, spec_identity,
-    verify_files, write as write_vector_set, FileRecord, Manifest, ManifestField, ManifestLayout,
-    ManifestWord, Selection, Shard, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON,
-    STIMULUS_HEX, VECTORS_CSV,
+    csv_header, csv_row, read_manifest, read_manifest_unverified,
+    remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
+    write as write_vector_set, FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord,
+    Selection, Shard, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX,
+    VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{

@@ -86,6 +86,13 @@ enum Command {
         /// Random seed (overrides [random] seed).
         #[arg(long)]
         seed: Option<u64>,
+        /// Number of random vectors in the set (overrides [random] count), as given to `gen`.
+        #[arg(long)]
+        count: Option<u64>,
+        /// Allow an index past the end of the set: random vector j is defined for every j, so
+        /// this shows the vector a longer set would hold there.
+        #[arg(long)]
+        beyond: bool,
         /// Output format: text, or csv (the header and the vector's row of vectors.csv).
         #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
         format: ReproFormat,
@@ -181,8 +188,10 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             spec,
             index,
             seed,
+            count,
+            beyond,
             format,
-        } => repro(&spec, index, seed, format),
+        } => repro(&spec, index, seed, count, beyond, format),
         Command::Testbench {
             spec,
             vectors,
@@ -228,6 +237,30 @@ fn gen(
     let spec = read_spec(spec_path)?;
     let shard = shard.map(parse_shard).transpose()?;
     let generator = Generator::new(&spec, count, seed);
+    // The index of every vector must fit in 64 bits; a total that overflows would wrap and
+    // write a handful of vectors under a count nobody asked for.
+    if (generator.directed().len() as u64)
+        .checked_add(generator.random_count())
+        .is_none()
+    {
+        let (file, field) = match count {
+            Some(_) => ("--count".to_string(), "count"),
+            None => (spec_path.display().to_string(), "random.count"),
+        };
+        return Err(Error::problem(
+            Problem::new(
+                file,
+                format!(
+                    "{} random vectors plus {} directed ones is more than 2^64 - 1 vectors; \
+                     the largest count for this spec is {}",
+                    generator.random_count(),
+                    generator.directed().len(),
+                    u64::MAX - generator.directed().len() as u64
+                ),
+            )
+            .field(field),
+        ));
+    }
     let total = shard.map_or(generator.total(), |s| {
         let r = s.range(generator.total());
         r.end - r.start
@@ -245,6 +278,10 @@ fn gen(
         .filter(|d| !d.as_os_str().is_empty() && !d.exists())
         .map(Path::to_path_buf)
         .collect();
+    // Interrupted by SIGINT/SIGTERM, the run removes its temporaries (and the directory when
+    // it created it) before exiting.
+    let _new_dir = cli::signals::guard_new_dir(dir);
+    let _temporaries = cli::signals::guard_vector_set(dir);
     let manifest = write_vector_set(
         &generator,
         &spec,
@@ -390,11 +427,38 @@ fn repro(
     spec_path: &Path,
     index: u64,
     seed: Option<u64>,
+    count: Option<u64>,
+    beyond: bool,
     format: ReproFormat,
 ) -> Result<Outcome, Error> {
     let spec = read_spec(spec_path)?;
-    // The random part is unbounded here: vector j is a pure function of (spec, seed, j).
+    // Vector j is a pure function of (spec, seed, j), so the random part can be unbounded;
+    // the set's own size (the spec's count or --count) decides what "past the end" means.
+    let set_random = count.unwrap_or(spec.random.count);
     let generator = Generator::new(&spec, Some(u64::MAX - 1_000_000), seed);
+    let directed = generator.directed().len() as u64;
+    let set_total = directed.saturating_add(set_random);
+    if index >= set_total && !beyond {
+        return Err(Error::problem(
+            Problem::new(
+                "--index",
+                format!(
+                    "index {index} is past the end of the set: it has {set_total} vectors \
+                     ({directed} directed + {set_random} random, {}), so the last index is {}; \
+                     give the set's --count, or pass --beyond to see random vector {} of the \
+                     seed's stream anyway",
+                    if count.is_some() {
+                        "from --count"
+                    } else {
+                        "from the spec's [random] count"
+                    },
+                    set_total.saturating_sub(1),
+                    index.saturating_sub(directed)
+                ),
+            )
+            .field("index"),
+        ));
+    }
     let inputs = generator.vector(index).ok_or_else(|| {
         Error::problem(Problem::new("--index", "index out of range").field("index"))
     })?;
@@ -416,7 +480,16 @@ fn repro(
     let origin = if index < d {
         format!("directed vector {index} of {d}")
     } else {
-        format!("random vector {} (seed {})", index - d, generator.seed())
+        let past = if index >= set_total {
+            format!(", past the end of the set's {set_total} vectors (--beyond)")
+        } else {
+            String::new()
+        };
+        format!(
+            "random vector {} (seed {}){past}",
+            index - d,
+            generator.seed()
+        )
     };
     writeln!(
         o,

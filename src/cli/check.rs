@@ -13,7 +13,8 @@ use arithvec::{
 };
 
 use crate::cli::util::{
-    is_stdout, out, read_spec, refuse_collisions, stdout_error, write_output, Outcome,
+    is_stdout, out, parse_percent, read_spec, refuse_collisions, stdout_error, write_output,
+    Outcome,
 };
 
 pub const CHECK_HELP: &str = "Example:\n  arithvec check unit.toml --log results.csv --vectors vec/ --require 100 \\\n      --junit check.xml --json check.json\n\n\
@@ -105,18 +106,6 @@ pub struct MergeArgs {
 
 fn parse_radix(s: &str) -> Result<Radix, String> {
     s.parse()
-}
-
-fn parse_percent(s: &str) -> Result<f64, String> {
-    let v: f64 = s
-        .trim_end_matches('%')
-        .parse()
-        .map_err(|_| format!("\"{s}\" is not a percentage"))?;
-    if (0.0..=100.0).contains(&v) {
-        Ok(v)
-    } else {
-        Err(format!("{v} is not between 0 and 100"))
-    }
 }
 
 fn outcome_of(r: &CheckReport) -> Outcome {

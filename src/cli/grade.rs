@@ -12,7 +12,7 @@ use arithvec::{
 };
 
 use crate::cli::check::open_vectors;
-use crate::cli::util::{out, read_spec, stdout_error, Outcome};
+use crate::cli::util::{out, parse_percent, read_spec, stdout_error, Outcome};
 
 pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n\n\
 The netlist's module is [dut] module unless --module says otherwise; its ports are matched by \
@@ -63,7 +63,7 @@ pub struct GradeArgs {
     #[arg(long, value_enum, default_value_t = GradeFormat::Table)]
     format: GradeFormat,
     /// Fault coverage required, in percent (exit 3 when short).
-    #[arg(long, value_name = "PCT")]
+    #[arg(long, value_name = "PCT", value_parser = parse_percent)]
     require: Option<f64>,
     /// Write the smallest subset found that keeps class and fault coverage to --out.
     #[arg(long, requires = "out")]
@@ -100,7 +100,32 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                     ))
                 }
             };
-            Netlist::from_yosys_json(&text, &path.display().to_string(), &module)?
+            let netlist = Netlist::from_yosys_json(&text, &path.display().to_string(), &module)?;
+            // Every output the spec names must be in the netlist, as every input must: a
+            // spec output the netlist lacks could never be compared, so grading without it
+            // would overstate. The built-in models build no zero or negative flag, so the
+            // check is for netlist files only.
+            let missing: Vec<Problem> = spec
+                .outputs()
+                .into_iter()
+                .filter(|(_, name)| netlist.output_port(name).is_none())
+                .map(|(sig, name)| {
+                    Problem::new(
+                        path.display().to_string(),
+                        format!(
+                            "module `{}` has no output port \"{name}\" (the spec's {}); rename \
+                             the port or remove it from the spec's [ports]",
+                            netlist.module(),
+                            sig.key()
+                        ),
+                    )
+                    .field(format!("port {name}"))
+                })
+                .collect();
+            if !missing.is_empty() {
+                return Err(Error::input(missing));
+            }
+            netlist
         }
         None => BuiltinModel::for_spec(&spec)?.build(&spec)?,
     };
@@ -178,6 +203,8 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                 None => manifest.first_index + p as u64,
             })
             .collect();
+        let _new_dir = crate::cli::signals::guard_new_dir(dir);
+        let _temporaries = crate::cli::signals::guard_vector_set(dir);
         let m = write_selection(&generator, &spec, dir, &source)?;
         Some(Compaction {
             before: set.inputs.len() as u64,

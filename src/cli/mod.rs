@@ -5,4 +5,5 @@
 
 pub(crate) mod check;
 pub(crate) mod grade;
+pub(crate) mod signals;
 pub(crate) mod util;

@@ -30,6 +30,21 @@ impl Outcome {
     }
 }
 
+/// The one parser of every `--require PCT`: a finite number from 0 to 100, with an optional
+/// `%` sign. `nan`, `inf` and `101` are refused (exit 2) the same way in every command.
+pub fn parse_percent(s: &str) -> Result<f64, String> {
+    let v: f64 = s
+        .trim()
+        .trim_end_matches('%')
+        .parse()
+        .map_err(|_| format!("\"{s}\" is not a percentage (a number from 0 to 100)"))?;
+    if v.is_finite() && (0.0..=100.0).contains(&v) {
+        Ok(v)
+    } else {
+        Err(format!("\"{s}\" is not a percentage from 0 to 100"))
+    }
+}
+
 /// Reads and validates a spec file.
 pub fn read_spec(path: &Path) -> Result<Spec, Error> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
@@ -85,6 +100,7 @@ pub fn write_atomic(path: &Path, text: &[u8]) -> Result<(), Error> {
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| "out".into());
     let tmp = dir.join(format!(".{name}.tmp"));
+    let _interrupted = crate::cli::signals::guard_file(&tmp);
     let written = (|| {
         let mut f = std::fs::File::create(&tmp).map_err(|e| Error::io(&tmp, e))?;
         f.write_all(text).map_err(|e| Error::io(&tmp, e))?;

@@ -849,8 +849,9 @@ pub fn write(
     Ok(manifest)
 }
 
-/// Removes whatever temporary files an unfinished [`write`] left in `dir`.
-fn remove_temporaries(dir: &Path) {
+/// Removes whatever temporary files an unfinished [`write`] (or [`write_selection`] of the
+/// gate-level grader) left in `dir`. The command line calls it when interrupted by a signal.
+pub fn remove_temporaries(dir: &Path) {
     for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX, MANIFEST_JSON] {
         let _ = std::fs::remove_file(dir.join(format!(".{name}.tmp")));
     }

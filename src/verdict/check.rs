@@ -1564,10 +1564,12 @@ fn describe(
     for &c in hits.classes() {
         classes.push(cat.classes()[c as usize].id().to_string());
     }
-    let seed_part = match shared.set {
-        Some(_) => format!(" --seed {}", shared.generator.seed()),
-        None => String::new(),
-    };
+    // Always the seed (the spec's may change later), and the count when the set's differs
+    // from the spec's, so the command names this vector whatever the spec says tomorrow.
+    let mut seed_part = format!(" --seed {}", shared.generator.seed());
+    if shared.generator.random_count() != shared.spec.random.count {
+        seed_part.push_str(&format!(" --count {}", shared.generator.random_count()));
+    }
     // In a selected (compacted) set, position `index` is vector `source` of the source set.
     let source = shared.source_index(index).unwrap_or(index);
     Failure {
