@@ -58,6 +58,8 @@ enum Command {
         /// unsharded files.
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
+        #[command(flatten)]
+        threads: cli::threads::ThreadsArg,
     },
     /// List the corner classes of a spec with their bins and directed hits.
     #[command(
@@ -174,7 +176,8 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             count,
             seed,
             shard,
-        } => gen(&spec, &dir, count, seed, shard.as_deref(), quiet),
+            threads,
+        } => gen(&spec, &dir, count, seed, shard.as_deref(), threads, quiet),
         Command::Classes { spec, format, bins } => classes(&spec, format, bins),
         Command::Repro {
             spec,
@@ -221,10 +224,12 @@ fn gen(
     count: Option<u64>,
     seed: Option<u64>,
     shard: Option<&str>,
+    threads: cli::threads::ThreadsArg,
     quiet: bool,
 ) -> Result<Outcome, Error> {
     let spec = read_spec(spec_path)?;
     let shard = shard.map(parse_shard).transpose()?;
+    let threads = threads.resolve()?;
     let generator = Generator::new(&spec, count, seed);
     let total = shard.map_or(generator.total(), |s| {
         let r = s.range(generator.total());
@@ -243,7 +248,7 @@ fn gen(
         WriteOptions {
             shard,
             progress: Some(&mut tick),
-            threads: 0,
+            threads,
         },
     )?;
     if let Some(b) = bar {

@@ -62,6 +62,8 @@ pub struct CheckArgs {
     /// List only classes that are not covered in the text report.
     #[arg(long)]
     brief: bool,
+    #[command(flatten)]
+    threads: crate::cli::threads::ThreadsArg,
 }
 
 #[derive(Args)]
@@ -183,7 +185,7 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         at_least: args.at_least,
         require: args.require,
         repro_command: format!("arithvec repro {}", args.spec.display()),
-        threads: 0,
+        threads: args.threads.resolve()?,
     };
     let mut checker = Checker::new(
         &spec,

@@ -5,4 +5,5 @@
 
 pub(crate) mod check;
 pub(crate) mod grade;
+pub(crate) mod threads;
 pub(crate) mod util;

@@ -8,4 +8,7 @@ mod errors;
 mod gen;
 mod merge;
 mod repro;
+#[path = "../support/mod.rs"]
+mod support;
+mod threads;
 mod util;

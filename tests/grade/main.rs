@@ -8,4 +8,6 @@ mod compact;
 mod ctest;
 mod errors;
 mod icarus;
+#[path = "../support/mod.rs"]
+mod support;
 mod util;

@@ -15,4 +15,6 @@ mod bugs;
 mod flow;
 mod reference;
 mod spec;
+#[path = "../support/mod.rs"]
+mod support;
 mod tools;
