@@ -24,6 +24,8 @@ pub(super) struct Engine<'a> {
     pub(super) gate_seen: Vec<u32>,
     pub(super) seen_mark: u32,
     pub(super) stack: Vec<u32>,
+    /// Faulty values of wide passes (allocated on the first one).
+    pub(super) faulty_wide: Vec<WideSlot>,
 }
 
 impl<'a> Engine<'a> {
@@ -37,6 +39,17 @@ impl<'a> Engine<'a> {
             gate_seen: vec![0; nl.gates().len()],
             seen_mark: 0,
             stack: Vec::new(),
+            faulty_wide: Vec::new(),
+        }
+    }
+
+    /// Starts a new fault: every faulty value recorded so far becomes stale.
+    pub(super) fn next_mark(&mut self) {
+        self.mark = self.mark.wrapping_add(1);
+        if self.mark == 0 {
+            self.faulty.fill(Slot::default());
+            self.faulty_wide.fill(WideSlot::default());
+            self.mark = 1;
         }
     }
 
@@ -101,11 +114,7 @@ impl<'a> Engine<'a> {
     /// when one of its inputs carries a fault effect, and the walk ends once no net carrying
     /// an effect has readers left.
     pub(super) fn detect(&mut self, fault: &Fault, cone: &[u32], good: &[u64], mask: u64) -> u64 {
-        self.mark = self.mark.wrapping_add(1);
-        if self.mark == 0 {
-            self.faulty.fill(Slot::default());
-            self.mark = 1;
-        }
+        self.next_mark();
         self.horizon = 0;
         let stuck = if fault.stuck_at { !0u64 } else { 0 };
         let mut detected = 0u64;
@@ -330,11 +339,28 @@ pub(super) fn grade_inner(
     let mut remaining: Vec<usize> = (0..classes).collect();
     let mut engine = Engine::new(nl, topo);
     let mut cones = ConeCache::new(classes);
+    let mut wide = WideChunk::default();
+    let use_wide = options.mode == SimulationMode::BitParallel;
     for_each_chunk(nl, patterns, lanes, |chunk| {
+        if use_wide {
+            wide.fill(chunk);
+        }
         remaining.retain(|&c| {
             let rep = faults.representative(c);
             let cone = cones.get(&mut engine, c, rep.site);
-            for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
+            // Whole groups of four blocks in wide passes, the rest block by block; the
+            // first lane detected is the same either way.
+            for g in 0..wide.groups * use_wide as usize {
+                let (good, mask) = wide.group(g);
+                let detected = engine.detect_wide(&rep, cone, good, mask);
+                if let Some(w) = detected.iter().position(|&d| d != 0) {
+                    let start = chunk.blocks[g * WIDE + w].0;
+                    first[c] = Some(start + detected[w].trailing_zeros() as usize);
+                    return false;
+                }
+            }
+            let done = if use_wide { wide.groups * WIDE } else { 0 };
+            for (k, &(start, count)) in chunk.blocks.iter().enumerate().skip(done) {
                 let detected = engine.detect(&rep, cone, chunk.good(k), lane_mask(count));
                 if detected != 0 {
                     first[c] = Some(start + detected.trailing_zeros() as usize);

@@ -80,10 +80,25 @@ pub fn detection_matrix(
     let reps: Vec<Fault> = (0..classes).map(|c| faults.representative(c)).collect();
     let mut engine = Engine::new(netlist, &topo);
     let mut cones = ConeCache::new(classes);
+    let mut wide = WideChunk::default();
+    let use_wide = mode == SimulationMode::BitParallel;
     for_each_chunk(netlist, patterns, mode.lanes(), |chunk| {
+        if use_wide {
+            wide.fill(chunk);
+        }
+        let done = if use_wide { wide.groups * WIDE } else { 0 };
         for (c, rep) in reps.iter().enumerate() {
             let cone = cones.get(&mut engine, c, rep.site);
-            for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
+            // Whole groups of four 64-vector blocks in wide passes, the rest block by block.
+            for g in 0..done / WIDE {
+                let (good, mask) = wide.group(g);
+                let detected = engine.detect_wide(rep, cone, good, mask);
+                for (w, &d) in detected.iter().enumerate() {
+                    let start = chunk.blocks[g * WIDE + w].0;
+                    rows[c * words_per_row + start / 64] |= d;
+                }
+            }
+            for (k, &(start, count)) in chunk.blocks.iter().enumerate().skip(done) {
                 let detected = engine.detect(rep, cone, chunk.good(k), lane_mask(count));
                 rows[c * words_per_row + start / 64] |= detected << (start % 64);
             }
