@@ -10,4 +10,5 @@ mod errors;
 mod icarus;
 #[path = "../support/mod.rs"]
 mod support;
+mod threads;
 mod util;

@@ -37,6 +37,7 @@ mod matrix;
 mod wide;
 use engine::*;
 pub use engine::{grade, grade_with};
+pub(crate) use matrix::detection_matrix_on;
 pub use matrix::{compact, detection_matrix, DetectionMatrix};
 use wide::*;
 
@@ -646,6 +647,9 @@ pub struct GradeOptions {
     /// bits are simulated exhaustively to prove them redundant (default 20; values above 32
     /// count as 32).
     pub proof_limit: u32,
+    /// Threads simulating faults, each a share of the fault classes (0, the default: one
+    /// per core). The report is the same for every value.
+    pub threads: usize,
 }
 
 impl Default for GradeOptions {
@@ -653,6 +657,7 @@ impl Default for GradeOptions {
         GradeOptions {
             mode: SimulationMode::BitParallel,
             proof_limit: 20,
+            threads: 0,
         }
     }
 }
