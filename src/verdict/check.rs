@@ -1753,9 +1753,7 @@ mod tests {
                 pool.send(Job::Fail);
             }
             let finished = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| c.finish()));
-            let panic = finished
-                .err()
-                .expect("the worker's panic reaches the caller");
+            let panic = finished.expect_err("the worker's panic reaches the caller");
             let message = panic.downcast_ref::<&str>().copied().unwrap_or_default();
             assert_eq!(message, "a test job failed on purpose", "{threads} threads");
         }
