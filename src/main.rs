@@ -58,6 +58,8 @@ enum Command {
         /// unsharded files.
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
+        #[command(flatten)]
+        threads: cli::threads::ThreadsArg,
     },
     /// List the corner classes of a spec with their bins and directed hits.
     #[command(
@@ -182,7 +184,8 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             count,
             seed,
             shard,
-        } => gen(&spec, &dir, count, seed, shard.as_deref(), quiet),
+            threads,
+        } => gen(&spec, &dir, count, seed, shard.as_deref(), threads, quiet),
         Command::Classes { spec, format, bins } => classes(&spec, format, bins),
         Command::Repro {
             spec,
@@ -231,11 +234,13 @@ fn gen(
     count: Option<u64>,
     seed: Option<u64>,
     shard: Option<&str>,
+    threads: cli::threads::ThreadsArg,
     quiet: bool,
 ) -> Result<Outcome, Error> {
     cli::util::refuse_collisions(&[("SPEC", spec_path)], &[("--out", dir)])?;
     let spec = read_spec(spec_path)?;
     let shard = shard.map(parse_shard).transpose()?;
+    let threads = threads.resolve()?;
     let generator = Generator::new(&spec, count, seed);
     // The index of every vector must fit in 64 bits; a total that overflows would wrap and
     // write a handful of vectors under a count nobody asked for.
@@ -289,7 +294,7 @@ fn gen(
         WriteOptions {
             shard,
             progress: Some(&mut tick),
-            threads: 0,
+            threads,
         },
     )
     .inspect_err(|_| {

@@ -74,6 +74,8 @@ pub struct CheckArgs {
     /// every output of the spec must be in the log; the reports state the narrowing.
     #[arg(long, value_name = "PORTS", value_delimiter = ',')]
     outputs: Option<Vec<String>>,
+    #[command(flatten)]
+    threads: crate::cli::threads::ThreadsArg,
 }
 
 #[derive(Args)]
@@ -312,7 +314,7 @@ fn check_log(
         at_least: args.at_least,
         require: args.require,
         repro_command: format!("arithvec repro {}", args.spec.display()),
-        threads: 0,
+        threads: args.threads.resolve()?,
         outputs,
     };
     let mut checker =

@@ -71,6 +71,8 @@ pub struct GradeArgs {
     /// Output directory for --compact.
     #[arg(long)]
     out: Option<PathBuf>,
+    #[command(flatten)]
+    threads: crate::cli::threads::ThreadsArg,
 }
 
 pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
@@ -129,7 +131,8 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         }
         None => BuiltinModel::for_spec(&spec)?.build(&spec)?,
     };
-    let grader = Grader::new(&spec, &netlist)?;
+    let mut grader = Grader::new(&spec, &netlist)?;
+    grader.set_threads(args.threads.resolve()?);
     let report = match grader.grade(&set.inputs, &set.expected)? {
         GradeOutcome::Graded(r) => r,
         GradeOutcome::NotTheSpec(bad) => {

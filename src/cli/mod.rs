@@ -6,4 +6,5 @@
 pub(crate) mod check;
 pub(crate) mod grade;
 pub(crate) mod signals;
+pub(crate) mod threads;
 pub(crate) mod util;

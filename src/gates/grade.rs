@@ -16,8 +16,8 @@ use crate::corners::classes::Hits;
 use crate::corners::generate::Generator;
 use crate::error::{Error, Problem, Result};
 use crate::gates::fault::{
-    compact, detection_matrix, grade_with, DetectionMatrix, FaultList, FaultReport, GradeOptions,
-    PatternSet, SimulationMode,
+    compact, detection_matrix_on, grade_with, DetectionMatrix, FaultList, FaultReport,
+    GradeOptions, PatternSet, SimulationMode,
 };
 use crate::gates::netlist::Netlist;
 use crate::sets::commit::Staging;
@@ -241,6 +241,8 @@ pub struct Grader<'a> {
     faults: FaultList,
     unchecked_outputs: Vec<String>,
     ungraded_gates: usize,
+    /// Fault-simulation threads (0: one per core).
+    threads: usize,
 }
 
 impl<'a> Grader<'a> {
@@ -276,7 +278,14 @@ impl<'a> Grader<'a> {
             faults,
             unchecked_outputs,
             ungraded_gates,
+            threads: 0,
         })
+    }
+
+    /// Sets the threads that simulate faults (0, the default: one per core). Reports,
+    /// matrices and compactions are the same for every value.
+    pub fn set_threads(&mut self, threads: usize) {
+        self.threads = threads;
     }
 
     /// The netlist as graded: only the outputs the spec checks and the gates feeding them.
@@ -349,7 +358,10 @@ impl<'a> Grader<'a> {
             &self.netlist,
             &self.faults,
             &patterns,
-            &GradeOptions::default(),
+            &GradeOptions {
+                threads: self.threads,
+                ..GradeOptions::default()
+            },
         )?;
         report.unchecked_outputs = self.unchecked_outputs.clone();
         report.ungraded_gates = self.ungraded_gates;
@@ -360,11 +372,12 @@ impl<'a> Grader<'a> {
     /// dropping); no fault-free check is made here.
     pub fn detection_matrix(&self, vectors: &[Inputs]) -> Result<DetectionMatrix> {
         let patterns = self.patterns(vectors)?;
-        detection_matrix(
+        detection_matrix_on(
             &self.netlist,
             &self.faults,
             &patterns,
             SimulationMode::BitParallel,
+            self.threads,
         )
     }
 

@@ -7,12 +7,12 @@
 //! manifest last; an interrupted run leaves the previous set intact. Same spec and seed give
 //! byte-identical files (no dates, no host names, fixed formatting).
 
+use std::collections::BTreeMap;
 use std::fs::File;
 use std::io::{BufRead, BufReader, Write};
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::{mpsc, Condvar, Mutex};
-use std::time::Duration;
+
+use crossbeam_channel as channel;
 
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
@@ -195,7 +195,8 @@ pub struct WriteOptions<'a> {
     pub shard: Option<Shard>,
     /// Called now and then with the number of vectors written so far.
     pub progress: Option<&'a mut dyn FnMut(u64)>,
-    /// Worker threads (0: as many as the machine has, at most 4).
+    /// Formatting threads (0: one per core), besides one writer thread per file. The files
+    /// are the same for every value.
     pub threads: usize,
 }
 
@@ -576,73 +577,38 @@ fn push_hex(w: &Word, width: u32, out: &mut Vec<u8>) {
     }
 }
 
-/// A file that takes chunks in order from several workers.
-struct Turn {
-    state: Mutex<TurnState>,
-    ready: Condvar,
+/// Buffers in circulation per file: enough to keep every worker busy while the writers
+/// catch up, few enough to keep memory flat.
+fn buffers_per_file(threads: usize) -> u64 {
+    2 * threads as u64 + 2
 }
 
-struct TurnState {
-    file: PendingFile,
-    /// The chunk the file takes next.
-    next: u64,
-    error: Option<Error>,
-}
-
-impl Turn {
-    fn new(file: PendingFile) -> Turn {
-        Turn {
-            state: Mutex::new(TurnState {
-                file,
-                next: 0,
-                error: None,
-            }),
-            ready: Condvar::new(),
-        }
-    }
-
-    /// Waits until the file has taken chunk `c - 1`, then appends `bytes` as chunk `c`.
-    /// False when the write failed or another worker's did (`abort`): stop.
-    fn append(&self, c: u64, bytes: &[u8], abort: &AtomicBool) -> bool {
-        let Ok(mut state) = self.state.lock() else {
-            abort.store(true, Ordering::Relaxed);
-            return false;
+/// A writer thread's loop: takes chunk `c`'s bytes of one file from any worker, in any
+/// order, writes and hashes them in chunk order, and hands each spent buffer back on
+/// `free`. `None` in place of bytes says a worker failed: the writer stops. On a write
+/// error it stops too; its dropped channels tell the others.
+fn write_in_order(
+    mut file: PendingFile,
+    parts: channel::Receiver<(u64, Option<Vec<u8>>)>,
+    free: channel::Sender<Vec<u8>>,
+) -> Result<PendingFile> {
+    let mut parked = BTreeMap::new();
+    let mut next = 0u64;
+    for (c, bytes) in parts {
+        let Some(bytes) = bytes else {
+            let failed = std::io::Error::other("a formatting worker failed");
+            return Err(Error::io(&file.tmp, failed));
         };
-        while state.next != c {
-            if abort.load(Ordering::Relaxed) {
-                return false;
-            }
-            // Timed, so a worker waiting here notices an abort raised at another file.
-            match self.ready.wait_timeout(state, Duration::from_millis(50)) {
-                Ok((s, _)) => state = s,
-                Err(_) => {
-                    abort.store(true, Ordering::Relaxed);
-                    return false;
-                }
-            }
-        }
-        if let Err(e) = state.file.write(bytes) {
-            state.error = Some(e);
-            abort.store(true, Ordering::Relaxed);
-            return false;
-        }
-        state.next += 1;
-        drop(state);
-        self.ready.notify_all();
-        true
-    }
-
-    /// The file back, or the error that stopped it.
-    fn finish(self) -> Result<PendingFile> {
-        let state = match self.state.into_inner() {
-            Ok(s) => s,
-            Err(poisoned) => poisoned.into_inner(),
-        };
-        match state.error {
-            Some(e) => Err(e),
-            None => Ok(state.file),
+        parked.insert(c, bytes);
+        while let Some(mut bytes) = parked.remove(&next) {
+            file.write(&bytes)?;
+            next += 1;
+            bytes.clear();
+            // The dispatcher may have stopped taking buffers back; nothing is lost then.
+            let _ = free.send(bytes);
         }
     }
+    Ok(file)
 }
 
 /// A file being written under a temporary name, hashing as it goes.
@@ -737,9 +703,7 @@ pub fn write(
         }
         let formatter = formatter(generator, spec);
         let threads = match options.threads {
-            0 => std::thread::available_parallelism()
-                .map_or(1, |n| n.get())
-                .min(4),
+            0 => std::thread::available_parallelism().map_or(1, |n| n.get()),
             n => n,
         } as u64;
         // Chunks small enough to keep memory flat, large enough to amortise hand-offs.
@@ -749,50 +713,99 @@ pub fn write(
             let s = range.start + c * chunk_len;
             s..(s + chunk_len).min(range.end)
         };
-        // Worker t formats chunks t, t + threads, ... and appends each to the three files
-        // itself, every file taking the chunks in order. The files are locked separately,
-        // so one worker can hash and write its chunk of vectors.csv while another writes the
-        // previous chunk's hex files: hashing, the one step that cannot be split, runs on
-        // several cores at once. A worker holds one chunk, so memory stays flat.
-        let files = [Turn::new(csv), Turn::new(stim), Turn::new(exp)];
-        let abort = AtomicBool::new(false);
-        let (done_tx, done_rx) = mpsc::channel::<u64>();
+        // The calling thread hands chunks out in order, each with one buffer per file; any
+        // idle worker formats the next chunk; three writer threads, one per file, take the
+        // bytes back in chunk order, write and hash them (hashing, the one step that cannot
+        // be split, runs on three cores at once) and return the buffers. A chunk is handed
+        // out only with buffers, so at most `buffers_per_file` chunks are in flight and
+        // memory stays flat; buffers go out in chunk order, so the chunk a writer waits for
+        // always has its buffers and nothing can wait forever. The channels are crossbeam's:
+        // a closed or dropped end wakes whoever waits on the other.
+        let buffers = buffers_per_file(threads as usize);
         std::thread::scope(|scope| {
-            for t in 0..threads {
-                let done_tx = done_tx.clone();
-                let (formatter, files, abort) = (&formatter, &files, &abort);
+            let (job_tx, job_rx) = channel::bounded::<(u64, [Vec<u8>; 3])>(threads as usize);
+            let mut free_rxs = Vec::new();
+            let mut part_txs = Vec::new();
+            let mut writers = Vec::new();
+            for file in [csv, stim, exp] {
+                let (part_tx, part_rx) = channel::unbounded();
+                let (free_tx, free_rx) = channel::unbounded();
+                writers.push(scope.spawn(move || write_in_order(file, part_rx, free_tx)));
+                part_txs.push(part_tx);
+                free_rxs.push(free_rx);
+            }
+            for _ in 0..threads {
+                let (job_rx, part_txs) = (job_rx.clone(), part_txs.clone());
+                let (formatter, chunk_range) = (&formatter, &chunk_range);
                 scope.spawn(move || {
-                    let mut chunk = Chunk::default();
-                    let mut c = t;
-                    while c < chunks && !abort.load(Ordering::Relaxed) {
-                        chunk.csv.clear();
-                        chunk.stimulus.clear();
-                        chunk.expected.clear();
-                        let rows = chunk_range(c);
-                        formatter.format_range(rows.clone(), &mut chunk);
-                        let parts = [&chunk.csv, &chunk.stimulus, &chunk.expected];
-                        for (file, bytes) in files.iter().zip(parts) {
-                            if !file.append(c, bytes, abort) {
-                                return;
+                    for (c, [csv, stimulus, expected]) in job_rx {
+                        let mut chunk = Chunk {
+                            csv,
+                            stimulus,
+                            expected,
+                        };
+                        let formatted =
+                            std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+                                formatter.format_range(chunk_range(c), &mut chunk)
+                            }));
+                        if let Err(panic) = formatted {
+                            for tx in &part_txs {
+                                let _ = tx.send((c, None));
                             }
+                            std::panic::resume_unwind(panic);
                         }
-                        let _ = done_tx.send(rows.end - rows.start);
-                        c += threads;
+                        // A writer that stopped on an error has dropped its end; the
+                        // others still take their parts, so nobody waits for this chunk.
+                        let parts = [chunk.csv, chunk.stimulus, chunk.expected];
+                        for (tx, bytes) in part_txs.iter().zip(parts) {
+                            let _ = tx.send((c, Some(bytes)));
+                        }
                     }
                 });
             }
-            drop(done_tx);
-            // Progress is a running sum, so the order chunks finish in does not matter.
-            let mut written = 0;
-            for n in done_rx {
-                written += n;
+            drop((job_rx, part_txs));
+            // Progress counts chunks whose vectors.csv bytes are written (they come back in
+            // order), so it is the same running sum on any thread count.
+            let mut written_chunks = 0u64;
+            let mut report = |written_chunks: u64| {
                 if let Some(p) = options.progress.as_mut() {
-                    p(written);
+                    p(chunk_range(written_chunks - 1).end - range.start);
+                }
+            };
+            'dispatch: for c in 0..chunks {
+                let mut parts: [Vec<u8>; 3] = Default::default();
+                if c >= buffers {
+                    for (f, free) in free_rxs.iter().enumerate() {
+                        // An error means that file's writer stopped: stop handing out.
+                        let Ok(buffer) = free.recv() else {
+                            break 'dispatch;
+                        };
+                        parts[f] = buffer;
+                        if f == 0 {
+                            written_chunks += 1;
+                            report(written_chunks);
+                        }
+                    }
+                }
+                if job_tx.send((c, parts)).is_err() {
+                    break;
                 }
             }
-        });
-        let [csv, stim, exp] = files;
-        Ok([csv.finish()?, stim.finish()?, exp.finish()?])
+            drop(job_tx);
+            // The vectors.csv writer ends, dropping its end, when the last chunk is in.
+            for _ in free_rxs[0].iter() {
+                written_chunks += 1;
+                report(written_chunks);
+            }
+            drop(free_rxs);
+            let mut finished = writers.into_iter().map(|w| {
+                w.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            });
+            let mut next = || finished.next().expect("three writers");
+            let (csv, stim, exp) = (next(), next(), next());
+            Ok([csv?, stim?, exp?])
+        })
     })();
     let finished =
         result.and_then(|[csv, stim, exp]| Ok([csv.finish()?, stim.finish()?, exp.finish()?]));

@@ -10,7 +10,9 @@
 
 use std::collections::BTreeMap;
 use std::io::BufRead;
-use std::sync::{mpsc, Arc, Mutex};
+use std::sync::Arc;
+
+use crossbeam_channel as channel;
 
 use serde::{Deserialize, Serialize};
 
@@ -673,15 +675,32 @@ struct Parsed {
 enum Job {
     Parse(Block, Batch, Arc<LineFormat>, Arc<str>),
     Judge(Batch),
+    /// Panics on the worker, to test that a failing worker cannot hang the caller.
+    #[cfg(test)]
+    Fail,
 }
 
 /// Finished work from a pool thread.
 enum Done {
     Parsed(Parsed),
     Judged(Verdicts, Batch),
+    /// The job panicked (a bug); the caller passes the panic on.
+    Panicked(Box<dyn std::any::Any + Send>),
 }
 
 impl Worker {
+    /// Does one pool job.
+    fn job(&mut self, shared: &Shared, job: Job) -> Done {
+        match job {
+            Job::Parse(block, batch, format, file) => {
+                Done::Parsed(self.parse(shared, block, batch, &format, &file))
+            }
+            Job::Judge(batch) => Done::Judged(self.run(shared, &batch), batch),
+            #[cfg(test)]
+            Job::Fail => panic!("a test job failed on purpose"),
+        }
+    }
+
     /// Parses the lines of `block` into a batch of staged rows.
     fn parse(
         &mut self,
@@ -749,13 +768,19 @@ fn stage_fields(shared: &Shared, row: &LogRow, values: &mut Vec<u64>) -> u16 {
 /// Bytes of log read per block: a few thousand lines of a narrow unit.
 const BLOCK_BYTES: usize = 256 * 1024;
 
-/// The worker threads of a parallel check and the work in flight.
+/// The worker threads of a parallel check and the work handed to them.
+///
+/// Jobs go out on one bounded multi-consumer channel (any idle worker takes the next one;
+/// a full queue makes the caller wait, which bounds memory) and every job comes back as
+/// exactly one message on the results channel, a worker's panic included. The caller blocks
+/// only on `results.recv()` while a message it knows of is outstanding, so no wake-up can be
+/// lost and nothing polls. The pool holds no results sender: once the jobs channel is closed
+/// and the workers have drained it, the results channel disconnects, which is how
+/// [`Checker::finish`] knows every job is back.
 struct Pool {
-    jobs: Option<mpsc::Sender<Job>>,
-    results: mpsc::Receiver<Done>,
+    jobs: Option<channel::Sender<Job>>,
+    results: channel::Receiver<Done>,
     workers: Vec<std::thread::JoinHandle<Coverage>>,
-    /// Jobs sent and not yet received back.
-    in_flight: usize,
     /// Verdicts received out of order, waiting for their turn.
     parked: BTreeMap<u64, Verdicts>,
     /// Parsed blocks received out of order, waiting for their turn.
@@ -767,32 +792,26 @@ struct Pool {
 
 impl Pool {
     fn start(shared: &Arc<Shared>, threads: usize) -> Pool {
-        let (job_tx, job_rx) = mpsc::channel::<Job>();
-        let job_rx = Arc::new(Mutex::new(job_rx));
-        let (result_tx, results) = mpsc::channel();
+        // A few jobs queued per worker keep them busy and memory bounded.
+        let (job_tx, job_rx) = channel::bounded::<Job>(2 * threads);
+        let (result_tx, results) = channel::unbounded();
         let workers = (0..threads)
             .map(|_| {
                 let shared = Arc::clone(shared);
-                let job_rx = Arc::clone(&job_rx);
+                let job_rx = job_rx.clone();
                 let result_tx = result_tx.clone();
                 std::thread::spawn(move || {
                     let mut worker = Worker::new(&shared);
-                    loop {
-                        // The lock is held only while taking one job.
-                        let job = match job_rx.lock() {
-                            Ok(rx) => rx.recv(),
-                            Err(_) => break,
-                        };
-                        let done = match job {
-                            Ok(Job::Parse(block, batch, format, file)) => {
-                                Done::Parsed(worker.parse(&shared, block, batch, &format, &file))
-                            }
-                            Ok(Job::Judge(batch)) => {
-                                Done::Judged(worker.run(&shared, &batch), batch)
-                            }
-                            Err(_) => break,
-                        };
-                        if result_tx.send(done).is_err() {
+                    for job in job_rx {
+                        // A panic (a bug: workers do not fail on input) is sent back like
+                        // any other result, so the caller never waits for a reply that
+                        // cannot come.
+                        let done = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+                            worker.job(&shared, job)
+                        }))
+                        .unwrap_or_else(Done::Panicked);
+                        let stop = matches!(done, Done::Panicked(_));
+                        if result_tx.send(done).is_err() || stop {
                             break;
                         }
                     }
@@ -804,7 +823,6 @@ impl Pool {
             jobs: Some(job_tx),
             results,
             workers,
-            in_flight: 0,
             parked: BTreeMap::new(),
             parsed: BTreeMap::new(),
             spare_batches: Vec::new(),
@@ -812,20 +830,21 @@ impl Pool {
         }
     }
 
-    /// Jobs in flight beyond which the caller waits: a few per worker keep them busy and
-    /// memory bounded.
-    fn limit(&self) -> usize {
-        3 * self.workers.len() + 1
+    /// Parsed blocks handed out and not yet taken back in order beyond which the caller
+    /// waits.
+    fn blocks_ahead(&self) -> u64 {
+        2 * self.workers.len() as u64 + 1
     }
 
+    /// Queues `job`, waiting while the queue is full.
     fn send(&mut self, job: Job) {
-        self.in_flight += 1;
         let sent = self
             .jobs
             .as_ref()
             .is_some_and(|jobs| jobs.send(job).is_ok());
         if !sent {
-            // Only possible when every worker is gone: receive() passes on why.
+            // Only possible when every worker is gone, each after sending back its panic:
+            // receive() passes it on.
             loop {
                 let _ = self.receive();
             }
@@ -848,40 +867,41 @@ impl Pool {
                     merger.merge(v);
                 }
             }
+            Done::Panicked(panic) => std::panic::resume_unwind(panic),
         }
     }
 
     /// Files whatever work is done, without waiting.
     fn accept_ready(&mut self, merger: &mut Merger) {
         while let Ok(done) = self.results.try_recv() {
-            self.in_flight -= 1;
             self.accept(done, merger);
         }
     }
 
-    /// Waits for one job to come back. A worker that died (it would be a bug: workers do
-    /// not fail on input) has its panic passed on rather than leaving the check hanging.
+    /// Waits for the next job to come back (the caller knows one is outstanding).
     fn receive(&mut self) -> Done {
-        loop {
-            match self
-                .results
-                .recv_timeout(std::time::Duration::from_millis(200))
-            {
-                Ok(done) => {
-                    self.in_flight -= 1;
-                    return done;
-                }
-                Err(_) => {
-                    if let Some(i) = self.workers.iter().position(|w| w.is_finished()) {
-                        let worker = self.workers.swap_remove(i);
-                        match worker.join() {
-                            Err(panic) => std::panic::resume_unwind(panic),
-                            Ok(_) => panic!("a check worker stopped early"),
-                        }
-                    }
-                }
-            }
+        match self.results.recv() {
+            Ok(Done::Panicked(panic)) => std::panic::resume_unwind(panic),
+            Ok(done) => done,
+            // Every worker ended: they end only when the jobs channel is closed or after
+            // sending back a panic, which would have come first.
+            Err(_) => panic!("the check workers stopped with work outstanding"),
         }
+    }
+
+    /// Closes the queue, files every outstanding result and returns the workers' coverage.
+    fn close(mut self, merger: &mut Merger) -> Vec<Coverage> {
+        self.jobs = None;
+        while let Ok(done) = self.results.recv() {
+            self.accept(done, merger);
+        }
+        self.workers
+            .into_iter()
+            .map(|w| {
+                w.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            })
+            .collect()
     }
 }
 
@@ -1174,6 +1194,7 @@ impl<'g> Checker<'g> {
         intake: &mut Intake,
         progress: &mut impl FnMut(u64),
     ) -> Result<(), Error> {
+        // Blocks are numbered as sent; `next_parsed` is the next one to take back in order.
         let (mut next_block, mut next_parsed) = (0u64, 0u64);
         let mut end = false;
         loop {
@@ -1181,7 +1202,7 @@ impl<'g> Checker<'g> {
                 return Ok(());
             };
             // Keep the workers fed, with a bounded number of blocks ahead.
-            while !end && !intake.stopped && p.in_flight + p.parsed.len() < p.limit() {
+            while !end && !intake.stopped && next_block - next_parsed < p.blocks_ahead() {
                 let mut block = p.spare_blocks.pop().unwrap_or_default();
                 match reader.read_block(&mut block.bytes, self.block_bytes)? {
                     Some(first) => {
@@ -1210,7 +1231,10 @@ impl<'g> Checker<'g> {
             let Some(p) = pool.as_mut() else {
                 return Ok(());
             };
-            if p.in_flight == 0 && (end || intake.stopped) {
+            // Every block sent is taken back (a stopped intake admits nothing), so no parsed
+            // block is left for a later call; a block not yet taken back is on its way, so
+            // the wait below always ends.
+            if (end || intake.stopped) && next_parsed == next_block {
                 return Ok(());
             }
             let done = p.receive();
@@ -1341,11 +1365,8 @@ impl<'g> Checker<'g> {
                 Some(batch)
             }
             Some(pool) => {
+                // The bounded queue makes this wait while the workers are behind.
                 pool.send(Job::Judge(batch));
-                while pool.in_flight >= pool.limit() {
-                    let done = pool.receive();
-                    pool.accept(done, &mut self.merger);
-                }
                 pool.accept_ready(&mut self.merger);
                 None
             }
@@ -1366,18 +1387,8 @@ impl<'g> Checker<'g> {
         if let Some(worker) = self.local.take() {
             add(worker.coverage);
         }
-        if let Some(mut pool) = self.pool.take() {
-            pool.jobs = None;
-            while pool.in_flight > 0 {
-                let done = pool.receive();
-                pool.accept(done, &mut self.merger);
-            }
-            for w in pool.workers {
-                match w.join() {
-                    Ok(c) => add(c),
-                    Err(panic) => std::panic::resume_unwind(panic),
-                }
-            }
+        if let Some(pool) = self.pool.take() {
+            pool.close(&mut self.merger).into_iter().for_each(&mut add);
         }
         let counts = counts.unwrap_or_else(|| Coverage::new(self.generator.catalogue()).totals());
         if let Some((first, count)) = self.shared.set {
@@ -2174,7 +2185,14 @@ mod tests {
         assert!(p.out_of_step.is_some() && p.bad_line_count > 0);
         let expected = serde_json::to_string(&reference).expect("json");
 
-        for (threads, tiny) in [(1, true), (2, false), (2, true), (3, true)] {
+        for (threads, tiny) in [
+            (1, true),
+            (2, false),
+            (2, true),
+            (3, true),
+            (8, true),
+            (8, false),
+        ] {
             let mut c = checker(&spec, &generator, &manifest, &columns, threads, tiny);
             let mut r = reader();
             c.check_log(&mut r, true, |_| {}).expect("read");
@@ -2231,13 +2249,37 @@ mod tests {
             }
         }
         assert_eq!(sequential.len(), 20);
-        for (threads, tiny) in [(1, false), (1, true), (2, true), (3, true)] {
+        for (threads, tiny) in [(1, false), (1, true), (2, true), (3, true), (8, true)] {
             let mut r = LogReader::new(text.as_bytes(), "log.csv", &spec, Radix::Hex).expect("log");
             let columns = r.columns().to_vec();
             let mut c = checker(&spec, &generator, &manifest, &columns, threads, tiny);
             let bad = c.check_log(&mut r, false, |_| {}).expect("read");
             let bad: Vec<String> = bad.iter().map(|p| p.to_string()).collect();
             assert_eq!(bad, sequential, "{threads} threads, tiny {tiny}");
+        }
+    }
+
+    /// A worker that panics (a bug) has its panic passed on to the caller, in place of a
+    /// check that waits for a reply that cannot come; the other workers' replies still count.
+    #[test]
+    fn a_failing_worker_cannot_hang_the_check() {
+        let spec = Spec::with_defaults(Operation::Add, Encoding::Unsigned, 8);
+        let generator = Generator::new(&spec, Some(500), Some(4));
+        let dir = tempfile::tempdir().expect("temp dir");
+        let manifest = write(&generator, &spec, dir.path(), WriteOptions::default()).expect("set");
+        let text = troubled_log(&spec, &generator, false);
+        for threads in [2, 3, 8] {
+            let mut r = LogReader::new(text.as_bytes(), "log.csv", &spec, Radix::Hex).expect("log");
+            let columns = r.columns().to_vec();
+            let mut c = checker(&spec, &generator, &manifest, &columns, threads, true);
+            c.check_log(&mut r, true, |_| {}).expect("read");
+            if let Some(pool) = c.pool.as_mut() {
+                pool.send(Job::Fail);
+            }
+            let finished = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| c.finish()));
+            let panic = finished.expect_err("the worker's panic reaches the caller");
+            let message = panic.downcast_ref::<&str>().copied().unwrap_or_default();
+            assert_eq!(message, "a test job failed on purpose", "{threads} threads");
         }
     }
 }

@@ -9,5 +9,8 @@ mod gen;
 mod machine_output;
 mod merge;
 mod repro;
+#[path = "../support/mod.rs"]
+mod support;
+mod threads;
 mod util;
 mod verdict;

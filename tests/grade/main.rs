@@ -8,4 +8,7 @@ mod compact;
 mod ctest;
 mod errors;
 mod icarus;
+#[path = "../support/mod.rs"]
+mod support;
+mod threads;
 mod util;

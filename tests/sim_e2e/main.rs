@@ -16,4 +16,6 @@ mod bugs;
 mod flow;
 mod reference;
 mod spec;
+#[path = "../support/mod.rs"]
+mod support;
 mod tools;
