@@ -10,7 +10,8 @@ use std::time::{Duration, Instant};
 use serde_json::Value;
 
 use crate::sim::{assert_same_as_unsharded, icarus, level_delta, level_delta_dut, require, ROOT};
-use crate::util::{Sandbox, BIN};
+use crate::support::BIN;
+use crate::util::Sandbox;
 
 /// Random vectors in the farm runs: enough for four shards of a few hundred vectors each.
 const COUNT: u64 = 400;

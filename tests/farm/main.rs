@@ -9,6 +9,8 @@
 //! error under CI and a loud SKIPPED line otherwise.
 
 // The CLI tests' plumbing, shared; not every helper is used here.
+#[path = "../support/mod.rs"]
+mod support;
 #[allow(dead_code)]
 #[path = "../cli/util.rs"]
 mod util;

@@ -158,7 +158,7 @@ fn issue9_item11_a_failed_gen_leaves_no_directory() {
             .arg(format!(
                 "trap '' XFSZ; ulimit -f 1; exec \"$0\" gen {spec} --out {out} -q"
             ))
-            .arg(crate::util::BIN)
+            .arg(crate::support::BIN)
             .current_dir(sb.root())
             .output()
             .expect("run bash");
