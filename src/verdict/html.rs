@@ -549,7 +549,7 @@ fn heat_map(
                 text x=(left) y="12" font-size="12" { "bit" }
                 @for bit in 0..bits {
                     @let x = left + cw * (bits - 1 - bit);
-                    @if bit % label_every == 0 || bit == bits - 1 {
+                    @if bit.is_multiple_of(label_every) || bit == bits - 1 {
                         text x=(x + cw / 2) y=(top - 8) font-size="11" text-anchor="middle" { (bit) }
                     }
                 }
@@ -724,7 +724,7 @@ fn histogram(
                             }
                         }
                     }
-                    @if j as u32 % label_every == 0 || j + 1 == labels.len() {
+                    @if (j as u32).is_multiple_of(label_every) || j + 1 == labels.len() {
                         text x=(x + bw / 2) y=(top + plot_h + 14) font-size="10" text-anchor="middle" { (j) }
                     }
                 }
@@ -1030,7 +1030,7 @@ fn bit_chart(by_bit: &BTreeMap<u32, usize>, no_bit: usize) -> Markup {
                                 text x=(x + bw / 2) y=(top + plot_h - h - 3) font-size="10" text-anchor="middle" { (n) }
                             }
                         }
-                        @if bit % label_every == 0 || bit == bits - 1 {
+                        @if bit.is_multiple_of(label_every) || bit == bits - 1 {
                             text x=(x + bw / 2) y=(top + plot_h + 14) font-size="10" text-anchor="middle" { (bit) }
                         }
                     }
