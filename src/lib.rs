@@ -91,5 +91,9 @@ pub use verdict::check::{
 pub use verdict::coverage::{
     surprise, BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
 };
+pub use verdict::html::{
+    render_check_html, render_grade_html, CompactedSet, GradeFault, GradeSummary, HtmlContext,
+    HtmlRun, HTML_FAILURES,
+};
 pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict_line, ClassRows};
 pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};

@@ -7,9 +7,9 @@ use clap::Args;
 
 use arithvec::verify_files;
 use arithvec::{
-    merge_reports, read_manifest_unverified, render_junit_timed, render_text, verdict_line,
-    CheckOptions, CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Mix,
-    Problem, Radix, Spec, Verdict,
+    merge_reports, read_manifest_unverified, render_check_html, render_junit_timed, render_text,
+    verdict_line, CheckOptions, CheckReport, Checker, ClassRows, Error, Generator, HtmlContext,
+    HtmlRun, LogReader, Manifest, Mix, Problem, Radix, Spec, Verdict, HTML_FAILURES,
 };
 
 use crate::cli::util::{
@@ -67,6 +67,9 @@ pub struct CheckArgs {
     /// Write the JSON report here ("-" for standard output).
     #[arg(long, value_name = "FILE")]
     json: Option<PathBuf>,
+    /// Write a self-contained HTML report here (lists the first 100 failures).
+    #[arg(long, value_name = "FILE")]
+    html: Option<PathBuf>,
     /// List only classes that are not covered in the text report.
     #[arg(long)]
     brief: bool,
@@ -98,6 +101,9 @@ pub struct MergeArgs {
     /// Write JUnit XML here ("-" for standard output).
     #[arg(long, value_name = "FILE")]
     junit: Option<PathBuf>,
+    /// Write a self-contained HTML report here (a row per run and the union).
+    #[arg(long, value_name = "FILE")]
+    html: Option<PathBuf>,
     /// Failures shown in detail.
     #[arg(long, default_value_t = 10)]
     max_failures: usize,
@@ -251,6 +257,9 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
     if let Some(j) = &args.junit {
         outputs.push(("--junit", j));
     }
+    if let Some(h) = &args.html {
+        outputs.push(("--html", h));
+    }
     refuse_collisions(&inputs, &outputs)?;
     let started = std::time::Instant::now();
     let spec = read_spec(&args.spec)?;
@@ -276,7 +285,21 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
             .join()
             .unwrap_or_else(|panic| std::panic::resume_unwind(panic))?;
     }
-    let report = outcome?;
+    let mut report = outcome?;
+    if let Some(path) = &args.html {
+        let ctx = HtmlContext {
+            seed: Some(manifest.as_ref().map_or(spec.random.seed, |m| m.seed)),
+            seed_source: if manifest.is_some() {
+                "vector set manifest".to_string()
+            } else {
+                "spec; no --vectors given".to_string()
+            },
+            runs: Vec::new(),
+        };
+        let page = render_check_html(&report, &spec, generator.catalogue(), &ctx);
+        write_output(path, page.as_bytes())?;
+        report.failures.truncate(args.max_failures);
+    }
     emit(
         &report,
         started,
@@ -309,8 +332,14 @@ fn check_log(
         .as_deref()
         .map(|names| output_signals(spec, names))
         .transpose()?;
+    // The HTML page lists up to HTML_FAILURES failures; the other reports keep --max-failures.
+    let kept = if args.html.is_some() {
+        args.max_failures.max(HTML_FAILURES)
+    } else {
+        args.max_failures
+    };
     let options = CheckOptions {
-        max_failures: args.max_failures,
+        max_failures: kept,
         at_least: args.at_least,
         require: args.require,
         repro_command: format!("arithvec repro {}", args.spec.display()),
@@ -445,14 +474,42 @@ pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
     let spec = Spec::parse(&first.spec_toml, &format!("{first_name} (spec_toml)"))?;
     let generator = Generator::new(&spec, Some(0), None);
     let options = CheckOptions {
-        max_failures: args.max_failures,
+        max_failures: if args.html.is_some() {
+            args.max_failures.max(HTML_FAILURES)
+        } else {
+            args.max_failures
+        },
         at_least: args.at_least,
         require: args.require,
         repro_command: String::new(),
         threads: 1,
         outputs: None,
     };
-    let merged = merge_reports(&spec, &generator, &reports, &options).map_err(Error::problem)?;
+    let mut merged =
+        merge_reports(&spec, &generator, &reports, &options).map_err(Error::problem)?;
+    if let Some(path) = &args.html {
+        let runs = reports
+            .iter()
+            .map(|(name, r)| HtmlRun {
+                name: name.clone(),
+                logs: r.logs.clone(),
+                seed: Spec::parse(&r.spec_toml, name).ok().map(|s| s.random.seed),
+                vectors: r.vectors,
+                passed: r.passed,
+                failed: r.failed,
+                unknown: r.unknown,
+                verdict: r.verdict,
+            })
+            .collect();
+        let ctx = HtmlContext {
+            seed: Some(spec.random.seed),
+            seed_source: format!("spec of {first_name}; each run's seed is in the run table"),
+            runs,
+        };
+        let page = render_check_html(&merged, &spec, generator.catalogue(), &ctx);
+        write_output(path, page.as_bytes())?;
+        merged.failures.truncate(args.max_failures);
+    }
     emit(
         &merged,
         started,

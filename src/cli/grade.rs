@@ -8,11 +8,12 @@ use clap::{Args, ValueEnum};
 use serde::Serialize;
 
 use arithvec::{
-    write_selection, BuiltinModel, Error, GradeOutcome, Grader, Netlist, Problem, VectorSet,
+    render_grade_html, write_selection, BuiltinModel, CompactedSet, Error, FaultEntry, FaultReport,
+    GradeFault, GradeOutcome, GradeSummary, Grader, Netlist, Problem, VectorSet,
 };
 
 use crate::cli::check::open_vectors;
-use crate::cli::util::{out, parse_percent, read_spec, stdout_error, Outcome};
+use crate::cli::util::{out, parse_percent, read_spec, stdout_error, write_output, Outcome};
 
 pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n\n\
 The netlist's module is [dut] module unless --module says otherwise; its ports are matched by \
@@ -73,6 +74,57 @@ pub struct GradeArgs {
     out: Option<PathBuf>,
     #[command(flatten)]
     threads: crate::cli::threads::ThreadsArg,
+    /// Write a self-contained HTML report here.
+    #[arg(long, value_name = "FILE")]
+    html: Option<PathBuf>,
+}
+
+/// The redundancy verdict of a fault in words, as the table and the HTML page show it.
+fn redundancy_words(f: &FaultEntry) -> String {
+    serde_json::to_value(&f.redundancy)
+        .ok()
+        .and_then(|v| v.get("status").and_then(|s| s.as_str()).map(str::to_string))
+        .unwrap_or_default()
+        .replace('_', " ")
+}
+
+/// The figures the HTML page shows, from the fault report and the compaction.
+fn grade_summary(
+    report: &FaultReport,
+    args: &GradeArgs,
+    seed: u64,
+    compacted: Option<CompactedSet>,
+) -> GradeSummary {
+    GradeSummary {
+        module: report.module.clone(),
+        vector_set: args.vectors.display().to_string(),
+        seed,
+        vectors: report.vectors,
+        faults: report.faults,
+        collapsed: report.collapsed,
+        detected: report.detected,
+        coverage_percent: report.coverage_percent,
+        testable_coverage_percent: report.testable_coverage_percent,
+        redundant: report.redundant.len(),
+        undetected: report
+            .undetected
+            .iter()
+            .map(|f| GradeFault {
+                net: f.net.clone(),
+                stuck_at: f.stuck_at,
+                site: f.site.clone(),
+                driver: match &f.driver_cell {
+                    Some(c) => format!("{c} ({})", f.driver_type),
+                    None => f.driver_type.clone(),
+                },
+                redundancy: redundancy_words(f),
+            })
+            .collect(),
+        unchecked_outputs: report.unchecked_outputs.clone(),
+        ungraded_gates: report.ungraded_gates,
+        require: args.require,
+        compacted,
+    }
 }
 
 pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
@@ -303,13 +355,7 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                             Some(c) => format!("{c} ({})", f.driver_type),
                             None => f.driver_type.clone(),
                         },
-                        serde_json::to_value(&f.redundancy)
-                            .ok()
-                            .and_then(|v| {
-                                v.get("status").and_then(|s| s.as_str()).map(str::to_string)
-                            })
-                            .unwrap_or_default()
-                            .replace('_', " "),
+                        redundancy_words(f),
                     ]
                 })
                 .collect();
@@ -348,6 +394,15 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             )
             .map_err(stdout_error)?;
         }
+    }
+    let compacted = compaction.as_ref().map(|c| CompactedSet {
+        from: c.before as usize,
+        to: c.after as usize,
+        dir: c.out.clone(),
+    });
+    if let Some(path) = &args.html {
+        let summary = grade_summary(&report, &args, manifest.seed, compacted);
+        write_output(path, render_grade_html(&spec, &summary).as_bytes())?;
     }
     o.flush().map_err(stdout_error)?;
     Ok(if short {

@@ -148,6 +148,9 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
             s.push_str(&format!("  {}: {}\n", k.id, list.join(", ")));
         }
     }
+    if let Some(line) = crate::verdict::bitmap::bit_map_line(r) {
+        s.push_str(&format!("{line}\n"));
+    }
     for f in &r.failures {
         s.push_str(&format!(
             "\n{} at vector {} (log line {})\n",
