@@ -6,4 +6,5 @@
 //! May import `crate::error`, `crate::spec` and `crate::arith`; never files, logs or reports.
 
 pub(crate) mod classes;
+pub(crate) mod compare;
 pub(crate) mod generate;
