@@ -595,7 +595,7 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
             } else {
                 compare::Lower::Fill
             };
-            let (a, b) = compare::first_difference(w, k / 2, k % 2 == 0, false, lower);
+            let (a, b) = compare::first_difference(w, k / 2, k.is_multiple_of(2), false, lower);
             vec![pair(a, b)]
         }
         Kind::CompareSignOnly => {
