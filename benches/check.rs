@@ -8,9 +8,14 @@
 //! lines, also sequentially (`threads = 1`); the CPU time printed beside the wall time shows
 //! how much of the machine the check used (CPU / wall = cores busy).
 //!
+//! The peer: `benches/csv_peer.py`, Python's `csv` reader parsing the same columns as hex,
+//! run with python3 on the same 1,000,000-line log file as arithvec; the ratio of their
+//! reading times is printed beside the goal (at least 15x).
+//!
 //! Run with `cargo bench --bench check`. Not a test: timings on shared machines are noisy.
-//! `ARITHVEC_BENCH_LINES=N` runs one size only (for instruction counting under callgrind) and
-//! `ARITHVEC_BENCH_THREADS=T` sets the thread count.
+//! `ARITHVEC_BENCH_LINES=N` runs one size only (for instruction counting under callgrind),
+//! `ARITHVEC_BENCH_THREADS=T` sets the thread count and `ARITHVEC_BENCH_BIG=1` adds a run of
+//! 100,000,000 lines, to show the peak RSS staying flat (the log is made on the fly: no disk).
 
 use std::io::{BufRead, BufReader, Read};
 use std::time::Instant;
@@ -153,6 +158,10 @@ fn main() {
         Some(n) => vec![n.parse().expect("ARITHVEC_BENCH_LINES is a number")],
         None => vec![250_000, 1_000_000, 4_000_000],
     };
+    let mut sizes = sizes;
+    if std::env::var_os("ARITHVEC_BENCH_BIG").is_some() {
+        sizes.push(100_000_000);
+    }
     let threads: usize = std::env::var("ARITHVEC_BENCH_THREADS")
         .map(|t| t.parse().expect("ARITHVEC_BENCH_THREADS is a number"))
         .unwrap_or(0);
@@ -205,4 +214,66 @@ fn main() {
     );
     println!("arithvec / bare scan: {:.2}", one_m / bare);
     println!("goal: >= 5 M lines/s on a 2-core machine");
+    python_peer(&spec, &generator, threads);
+}
+
+/// Checks a 1,000,000-line log file with arithvec and reads it with `benches/csv_peer.py`,
+/// and prints the ratio of their times beside the goal.
+fn python_peer(spec: &Spec, generator: &Generator, threads: usize) {
+    const LINES: u64 = 1_000_000;
+    let path = std::path::Path::new(env!("CARGO_TARGET_TMPDIR"))
+        .join(format!("arithvec-check-bench-{}.csv", std::process::id()));
+    let mut file = std::io::BufWriter::new(std::fs::File::create(&path).expect("log file"));
+    std::io::copy(&mut LogSource::new(spec, LINES), &mut file).expect("write the log");
+    std::io::Write::flush(&mut file).expect("write the log");
+    drop(file);
+    let mut best = f64::INFINITY;
+    // Best of three, for both sides: the machine is shared.
+    for _ in 0..3 {
+        let t = Instant::now();
+        let f = std::fs::File::open(&path).expect("log file");
+        let source = BufReader::with_capacity(1 << 20, f);
+        let mut reader = LogReader::new(source, "bench.csv", spec, Radix::Hex).expect("header");
+        let options = CheckOptions {
+            threads,
+            ..CheckOptions::default()
+        };
+        let mut checker =
+            Checker::new(spec, generator, None, reader.columns(), options).expect("checker");
+        let bad = checker.check_log(&mut reader, false, |_| {}).expect("read");
+        let report = checker.finish();
+        assert!(bad.is_empty() && report.vectors == LINES && report.failed == 0);
+        best = best.min(t.elapsed().as_secs_f64());
+    }
+    let script = concat!(env!("CARGO_MANIFEST_DIR"), "/benches/csv_peer.py");
+    let mut peer = f64::INFINITY;
+    for _ in 0..3 {
+        let out = std::process::Command::new("python3")
+            .arg(script)
+            .arg(&path)
+            .output();
+        let out = match out {
+            Ok(o) if o.status.success() => String::from_utf8_lossy(&o.stdout).into_owned(),
+            Ok(o) => {
+                println!("python peer failed: {}", String::from_utf8_lossy(&o.stderr));
+                break;
+            }
+            Err(e) => {
+                println!("python peer not run: python3 did not start ({e})");
+                break;
+            }
+        };
+        let fields: Vec<&str> = out.split_whitespace().collect();
+        assert_eq!(fields.first().copied(), Some("1000000"), "peer read {out}");
+        peer = peer.min(fields[2].parse::<f64>().expect("peer seconds"));
+    }
+    let _ = std::fs::remove_file(&path);
+    println!(
+        "check of a 1M-line log file: arithvec {best:.3} s, Python csv peer {peer:.3} s \
+         (best of 3 each)"
+    );
+    println!(
+        "arithvec / Python csv peer: {:.1}x   goal: >= 15x",
+        peer / best
+    );
 }

@@ -4,6 +4,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 bash scripts/install-simulators.sh
+bash scripts/install-farm-tools.sh
 # A missing simulator fails a test instead of skipping it when CI is set.
 export CI="${CI:-true}"
 cargo fmt --all -- --check

@@ -67,9 +67,11 @@ pub use gates::netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder,
 pub use sets::hexfile::Packer;
 pub use sets::layout::{Field, Layout, WordLayout};
 pub use sets::vectorset::{
-    csv_header, csv_row, read_manifest, sha256_hex, spec_identity, write as write_vector_set,
-    FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord, Selection, Shard, VectorSet,
-    WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
+    csv_header, csv_row, read_manifest, read_manifest_unverified,
+    remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
+    write as write_vector_set, FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord,
+    Selection, Shard, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX,
+    VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{
@@ -77,14 +79,17 @@ pub use sim::testbench::{
     MAX_TESTBENCH_VECTORS,
 };
 pub use spec::{
-    is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut, Encoding, Mix,
-    NegativeZero, Operation, ParamValue, Ports, RandomSettings, Signal, Spec, ZeroFlag,
+    default_amount_width, is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut,
+    Encoding, LargeAmount, Mix, NegativeZero, OffsetCarry, OpOptions, Operation, ParamValue, Ports,
+    RandomSettings, ResultPart, Signal, Signedness, Spec, ZeroFlag,
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,
-    FieldValueReport, LogProblems, Observed, OutOfStep, OutputReport, Verdict, EVIDENCE_NOTE,
+    FieldValueReport, LogProblems, Observed, OutOfStep, OutputReport, OutputTally, Verdict,
+    EVIDENCE_NOTE,
 };
 pub use verdict::coverage::{
-    BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
+    surprise, BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
 };
-pub use verdict::report::{render_junit, render_text, verdict_line, ClassRows};
+pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict_line, ClassRows};
+pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};

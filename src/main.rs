@@ -58,6 +58,8 @@ enum Command {
         /// unsharded files.
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
+        #[command(flatten)]
+        threads: cli::threads::ThreadsArg,
     },
     /// List the corner classes of a spec with their bins and directed hits.
     #[command(
@@ -86,6 +88,13 @@ enum Command {
         /// Random seed (overrides [random] seed).
         #[arg(long)]
         seed: Option<u64>,
+        /// Number of random vectors in the set (overrides [random] count), as given to `gen`.
+        #[arg(long)]
+        count: Option<u64>,
+        /// Allow an index past the end of the set: random vector j is defined for every j, so
+        /// this shows the vector a longer set would hold there.
+        #[arg(long)]
+        beyond: bool,
         /// Output format: text, or csv (the header and the vector's row of vectors.csv).
         #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
         format: ReproFormat,
@@ -103,7 +112,8 @@ enum Command {
         /// Hardware description language of the testbench.
         #[arg(long, value_enum, default_value_t = HdlArg::Verilog)]
         hdl: HdlArg,
-        /// Output file (default: the testbench's own name in the current directory).
+        /// Output file ("-" for standard output; default: the testbench's own name in the
+        /// current directory).
         #[arg(long, short)]
         output: Option<PathBuf>,
         /// Settle time per vector, in time units (ns for VHDL).
@@ -174,14 +184,17 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             count,
             seed,
             shard,
-        } => gen(&spec, &dir, count, seed, shard.as_deref(), quiet),
+            threads,
+        } => gen(&spec, &dir, count, seed, shard.as_deref(), threads, quiet),
         Command::Classes { spec, format, bins } => classes(&spec, format, bins),
         Command::Repro {
             spec,
             index,
             seed,
+            count,
+            beyond,
             format,
-        } => repro(&spec, index, seed, format),
+        } => repro(&spec, index, seed, count, beyond, format),
         Command::Testbench {
             spec,
             vectors,
@@ -221,11 +234,38 @@ fn gen(
     count: Option<u64>,
     seed: Option<u64>,
     shard: Option<&str>,
+    threads: cli::threads::ThreadsArg,
     quiet: bool,
 ) -> Result<Outcome, Error> {
+    cli::util::refuse_collisions(&[("SPEC", spec_path)], &[("--out", dir)])?;
     let spec = read_spec(spec_path)?;
     let shard = shard.map(parse_shard).transpose()?;
+    let threads = threads.resolve()?;
     let generator = Generator::new(&spec, count, seed);
+    // The index of every vector must fit in 64 bits; a total that overflows would wrap and
+    // write a handful of vectors under a count nobody asked for.
+    if (generator.directed().len() as u64)
+        .checked_add(generator.random_count())
+        .is_none()
+    {
+        let (file, field) = match count {
+            Some(_) => ("--count".to_string(), "count"),
+            None => (spec_path.display().to_string(), "random.count"),
+        };
+        return Err(Error::problem(
+            Problem::new(
+                file,
+                format!(
+                    "{} random vectors plus {} directed ones is more than 2^64 - 1 vectors; \
+                     the largest count for this spec is {}",
+                    generator.random_count(),
+                    generator.directed().len(),
+                    u64::MAX - generator.directed().len() as u64
+                ),
+            )
+            .field(field),
+        ));
+    }
     let total = shard.map_or(generator.total(), |s| {
         let r = s.range(generator.total());
         r.end - r.start
@@ -236,6 +276,17 @@ fn gen(
             b.set_position(n);
         }
     };
+    // The directories this run creates, deepest first: a failed run removes them again (when
+    // they are still empty), so it leaves nothing behind.
+    let created: Vec<PathBuf> = dir
+        .ancestors()
+        .filter(|d| !d.as_os_str().is_empty() && !d.exists())
+        .map(Path::to_path_buf)
+        .collect();
+    // Interrupted by SIGINT/SIGTERM, the run removes its temporaries (and the directory when
+    // it created it) before exiting.
+    let _new_dir = cli::signals::guard_new_dir(dir);
+    let _temporaries = cli::signals::guard_vector_set(dir);
     let manifest = write_vector_set(
         &generator,
         &spec,
@@ -243,9 +294,15 @@ fn gen(
         WriteOptions {
             shard,
             progress: Some(&mut tick),
-            threads: 0,
+            threads,
         },
-    )?;
+    )
+    .inspect_err(|_| {
+        for d in &created {
+            // remove_dir refuses a directory that is not empty: only what this run made goes.
+            let _ = std::fs::remove_dir(d);
+        }
+    })?;
     if let Some(b) = bar {
         b.finish_and_clear();
     }
@@ -375,11 +432,38 @@ fn repro(
     spec_path: &Path,
     index: u64,
     seed: Option<u64>,
+    count: Option<u64>,
+    beyond: bool,
     format: ReproFormat,
 ) -> Result<Outcome, Error> {
     let spec = read_spec(spec_path)?;
-    // The random part is unbounded here: vector j is a pure function of (spec, seed, j).
+    // Vector j is a pure function of (spec, seed, j), so the random part can be unbounded;
+    // the set's own size (the spec's count or --count) decides what "past the end" means.
+    let set_random = count.unwrap_or(spec.random.count);
     let generator = Generator::new(&spec, Some(u64::MAX - 1_000_000), seed);
+    let directed = generator.directed().len() as u64;
+    let set_total = directed.saturating_add(set_random);
+    if index >= set_total && !beyond {
+        return Err(Error::problem(
+            Problem::new(
+                "--index",
+                format!(
+                    "index {index} is past the end of the set: it has {set_total} vectors \
+                     ({directed} directed + {set_random} random, {}), so the last index is {}; \
+                     give the set's --count, or pass --beyond to see random vector {} of the \
+                     seed's stream anyway",
+                    if count.is_some() {
+                        "from --count"
+                    } else {
+                        "from the spec's [random] count"
+                    },
+                    set_total.saturating_sub(1),
+                    index.saturating_sub(directed)
+                ),
+            )
+            .field("index"),
+        ));
+    }
     let inputs = generator.vector(index).ok_or_else(|| {
         Error::problem(Problem::new("--index", "index out of range").field("index"))
     })?;
@@ -401,7 +485,16 @@ fn repro(
     let origin = if index < d {
         format!("directed vector {index} of {d}")
     } else {
-        format!("random vector {} (seed {})", index - d, generator.seed())
+        let past = if index >= set_total {
+            format!(", past the end of the set's {set_total} vectors (--beyond)")
+        } else {
+            String::new()
+        };
+        format!(
+            "random vector {} (seed {}){past}",
+            index - d,
+            generator.seed()
+        )
     };
     writeln!(
         o,
@@ -455,6 +548,12 @@ fn testbench(
     self_check: bool,
     quiet: bool,
 ) -> Result<Outcome, Error> {
+    if let Some(o) = &output {
+        cli::util::refuse_collisions(
+            &[("SPEC", spec_path), ("--vectors", vectors)],
+            &[("--output", o)],
+        )?;
+    }
     let spec = read_spec(spec_path)?;
     let manifest = arithvec::read_manifest(vectors)?;
     if manifest.spec_sha256 != arithvec::spec_identity(&spec) {
@@ -471,6 +570,7 @@ fn testbench(
         HdlArg::Vhdl => Hdl::Vhdl,
     };
     let mut options = TestbenchOptions::new(hdl, manifest.vectors);
+    options.first_index = manifest.first_index;
     options.settle = settle;
     options.self_check = self_check;
     let text = emit_testbench(&spec, &options).map_err(|e| {
@@ -490,8 +590,8 @@ fn testbench(
         }
     })?;
     let path = output.unwrap_or_else(|| PathBuf::from(testbench_file_name(&spec, hdl)));
-    cli::util::write_atomic(&path, text.as_bytes())?;
-    if !quiet {
+    cli::util::write_output(&path, text.as_bytes())?;
+    if !quiet && !cli::util::is_stdout(&path) {
         let mut o = out();
         writeln!(
             o,
@@ -511,7 +611,7 @@ fn testbench(
 }
 
 fn field_row(role: &str, sig: Signal, name: &str, v: &arithvec::Word, spec: &Spec) -> [String; 5] {
-    let w = sig.width(spec.width);
+    let w = spec.signal_width(sig);
     let value = if matches!(sig, Signal::A | Signal::B | Signal::Result) {
         format!("{} ({})", Value::decode(v, w, spec.encoding), spec.encoding)
     } else {

@@ -13,8 +13,8 @@
 use std::cmp::Ordering;
 
 use arithvec::{
-    CarryInConvention, CarryOutConvention, Encoding, Inputs, Model, NegativeZero, Operation,
-    Outputs, Signal, Spec, Value, Word, ZeroFlag,
+    CarryInConvention, CarryOutConvention, Encoding, Inputs, Model, NegativeZero, OffsetCarry,
+    Operation, Outputs, Signal, Spec, Value, Word, ZeroFlag,
 };
 use num_bigint::{BigInt, Sign};
 
@@ -211,6 +211,8 @@ struct Reference<T> {
     carry_in: CarryInConvention,
     negative_zero: NegativeZero,
     zero_flag: ZeroFlag,
+    /// An offset add/sub/addsub whose carry comes from adding the codes.
+    codes_carry: bool,
     has_carry_in: bool,
     zero: T,
     one: T,
@@ -230,6 +232,12 @@ impl<T: RefInt> Reference<T> {
             carry_in: spec.conventions.carry_in,
             negative_zero: spec.conventions.negative_zero,
             zero_flag: spec.conventions.zero_flag,
+            codes_carry: spec.encoding == Encoding::Offset
+                && spec.conventions.offset_carry == OffsetCarry::Codes
+                && matches!(
+                    spec.operation,
+                    Operation::Add | Operation::Sub | Operation::AddSub
+                ),
             has_carry_in: spec.has(Signal::CarryIn),
             zero: T::small(0),
             one: T::small(1),
@@ -423,7 +431,13 @@ impl<T: RefInt> Reference<T> {
         } else {
             wrapped
         };
-        let (ua, ub) = (self.wrap(va), self.wrap(vb));
+        // The codes of offset binary are value + 2^(N-1) (common practice, no source); an
+        // adder of the codes carries when code_a + code_b + c reaches 2^N.
+        let (ua, ub) = if self.codes_carry {
+            (va.plus(&self.half), vb.plus(&self.half))
+        } else {
+            (self.wrap(va), self.wrap(vb))
+        };
         let carry_of = |raw: T| raw >= self.full;
         let borrow_of = |raw: T| raw < self.zero;
         let subtract = |x: &T, y: &T, bin: &T| borrow_of(x.minus(y).minus(bin));
@@ -597,16 +611,27 @@ fn combinations(width: u32) -> Vec<Spec> {
             } else {
                 vec![ZeroFlag::Value]
             };
+            let offset_carries = if enc == Encoding::Offset
+                && matches!(op, Operation::Add | Operation::Sub | Operation::AddSub)
+                && base.has(Signal::CarryOut)
+            {
+                vec![OffsetCarry::Inner, OffsetCarry::Codes]
+            } else {
+                vec![OffsetCarry::Inner]
+            };
             for &co in &carry_outs {
                 for &ci in &carry_ins {
                     for &nz in &zeros {
                         for &zf in &zero_flags {
-                            let mut s = base.clone();
-                            s.conventions.carry_out = co;
-                            s.conventions.carry_in = ci;
-                            s.conventions.negative_zero = nz;
-                            s.conventions.zero_flag = zf;
-                            out.push(s);
+                            for &oc in &offset_carries {
+                                let mut s = base.clone();
+                                s.conventions.carry_out = co;
+                                s.conventions.carry_in = ci;
+                                s.conventions.negative_zero = nz;
+                                s.conventions.zero_flag = zf;
+                                s.conventions.offset_carry = oc;
+                                out.push(s);
+                            }
                         }
                     }
                 }

@@ -523,6 +523,10 @@ mode = "sub"
 result = "s"
 carry_out = "co"
 
+[conventions]
+# mode 1 computes x - y - ci: the port is a borrow-in, and co the borrow-out.
+carry_in = "borrow"
+
 [dut]
 module = "mixer_addsub"
 "#;

@@ -35,6 +35,8 @@ pub(crate) trait Bits: Copy + Eq + std::fmt::Debug {
     fn count_ones(&self) -> u32;
     /// 64-bit limb `i` (little-endian; zero past the capacity).
     fn limb(&self, i: usize) -> u64;
+    /// The product at full capacity (wrapping).
+    fn mul(self, o: Self) -> Self;
 
     fn neg(self) -> Self {
         Self::zero().sub(self)
@@ -148,6 +150,10 @@ impl Bits for u128 {
         u128::count_ones(*self)
     }
     #[inline]
+    fn mul(self, o: Self) -> Self {
+        self.wrapping_mul(o)
+    }
+    #[inline]
     fn limb(&self, i: usize) -> u64 {
         if i < 2 {
             (*self >> (64 * i)) as u64
@@ -160,14 +166,20 @@ impl Bits for u128 {
 /// Number of limbs in [`Wide`]: 512 operand bits plus headroom for carries and signs.
 const WIDE_LIMBS: usize = LIMBS + 1;
 
-/// A 576-bit two's-complement integer for widths above 64.
+/// A two's-complement integer of `L` 64-bit limbs (`L` >= 8) for widths above 64.
 #[derive(Clone, Copy, PartialEq, Eq, Debug)]
-pub(crate) struct Wide([u64; WIDE_LIMBS]);
+pub(crate) struct WideN<const L: usize>([u64; L]);
 
-impl Bits for Wide {
-    const CAPACITY: u32 = 64 * WIDE_LIMBS as u32;
+/// 576 bits: operands up to 512 bits with headroom for carries and signs.
+pub(crate) type Wide = WideN<WIDE_LIMBS>;
+
+/// 1088 bits: the exact products of a multiplier up to 512 x 512 bits, with headroom.
+pub(crate) type Huge = WideN<{ 2 * LIMBS + 1 }>;
+
+impl<const L: usize> Bits for WideN<L> {
+    const CAPACITY: u32 = 64 * L as u32;
     fn zero() -> Self {
-        Wide([0; WIDE_LIMBS])
+        WideN([0; L])
     }
     fn from_bool(b: bool) -> Self {
         let mut w = Self::zero();
@@ -200,32 +212,32 @@ impl Bits for Wide {
         i < Self::CAPACITY && (self.0[(i / 64) as usize] >> (i % 64)) & 1 == 1
     }
     fn and(mut self, o: Self) -> Self {
-        for i in 0..WIDE_LIMBS {
+        for i in 0..L {
             self.0[i] &= o.0[i];
         }
         self
     }
     fn or(mut self, o: Self) -> Self {
-        for i in 0..WIDE_LIMBS {
+        for i in 0..L {
             self.0[i] |= o.0[i];
         }
         self
     }
     fn xor(mut self, o: Self) -> Self {
-        for i in 0..WIDE_LIMBS {
+        for i in 0..L {
             self.0[i] ^= o.0[i];
         }
         self
     }
     fn not(mut self) -> Self {
-        for i in 0..WIDE_LIMBS {
+        for i in 0..L {
             self.0[i] = !self.0[i];
         }
         self
     }
     fn add(mut self, o: Self) -> Self {
         let mut carry = false;
-        for i in 0..WIDE_LIMBS {
+        for i in 0..L {
             let (s1, c1) = self.0[i].overflowing_add(o.0[i]);
             let (s2, c2) = s1.overflowing_add(carry as u64);
             self.0[i] = s2;
@@ -235,7 +247,7 @@ impl Bits for Wide {
     }
     fn sub(mut self, o: Self) -> Self {
         let mut borrow = false;
-        for i in 0..WIDE_LIMBS {
+        for i in 0..L {
             let (d1, b1) = self.0[i].overflowing_sub(o.0[i]);
             let (d2, b2) = d1.overflowing_sub(borrow as u64);
             self.0[i] = d2;
@@ -249,7 +261,7 @@ impl Bits for Wide {
         }
         let (limbs, bits) = ((n / 64) as usize, n % 64);
         let mut out = Self::zero();
-        for i in (limbs..WIDE_LIMBS).rev() {
+        for i in (limbs..L).rev() {
             let src = i - limbs;
             let mut v = self.0[src] << bits;
             if bits > 0 && src > 0 {
@@ -265,10 +277,10 @@ impl Bits for Wide {
         }
         let (limbs, bits) = ((n / 64) as usize, n % 64);
         let mut out = Self::zero();
-        for i in 0..WIDE_LIMBS - limbs {
+        for i in 0..L - limbs {
             let src = i + limbs;
             let mut v = self.0[src] >> bits;
-            if bits > 0 && src + 1 < WIDE_LIMBS {
+            if bits > 0 && src + 1 < L {
                 v |= self.0[src + 1] << (64 - bits);
             }
             out.0[i] = v;
@@ -283,7 +295,7 @@ impl Bits for Wide {
         if sn != on {
             return sn;
         }
-        for i in (0..WIDE_LIMBS).rev() {
+        for i in (0..L).rev() {
             if self.0[i] != o.0[i] {
                 return self.0[i] < o.0[i];
             }
@@ -306,6 +318,22 @@ impl Bits for Wide {
     }
     fn limb(&self, i: usize) -> u64 {
         self.0.get(i).copied().unwrap_or(0)
+    }
+    /// Schoolbook multiplication on 64-bit limbs, wrapping at the capacity.
+    fn mul(self, o: Self) -> Self {
+        let mut out = [0u64; L];
+        for i in 0..L {
+            if self.0[i] == 0 {
+                continue;
+            }
+            let mut carry = 0u128;
+            for j in 0..L - i {
+                let t = self.0[i] as u128 * o.0[j] as u128 + out[i + j] as u128 + carry;
+                out[i + j] = t as u64;
+                carry = t >> 64;
+            }
+        }
+        WideN(out)
     }
 }
 

@@ -7,14 +7,15 @@
 //! them, the carry or borrow into every bit, the true result), which the corner-class
 //! catalogue reads. The model knows nothing about files, ports or formats.
 
-use crate::arith::bits::{Bits, Wide};
+use crate::arith::bits::{Bits, Huge, Wide};
 use crate::arith::encoding::{
     decode, encode, is_negative_zero, negative_zero, representable, sign_bit,
 };
+use crate::arith::ops::OpUnit;
 use crate::arith::word::Word;
 use crate::spec::{
-    CarryInConvention, CarryOutConvention, Encoding, NegativeZero, Operation, Signal, Spec,
-    ZeroFlag,
+    CarryInConvention, CarryOutConvention, Encoding, NegativeZero, OffsetCarry, Operation, Signal,
+    Spec, ZeroFlag,
 };
 
 /// The inputs of one vector. Fields the unit lacks are zero / false.
@@ -59,6 +60,7 @@ impl Inputs {
             Signal::B => self.b,
             Signal::CarryIn => Word::from_u64(self.carry_in as u64),
             Signal::Mode => Word::from_u64(self.mode as u64),
+            Signal::Amount => self.b,
             _ => Word::ZERO,
         }
     }
@@ -70,6 +72,7 @@ impl Inputs {
             Signal::B => self.b = value,
             Signal::CarryIn => self.carry_in = value.bit(0),
             Signal::Mode => self.mode = value.bit(0),
+            Signal::Amount => self.b = value,
             _ => {}
         }
     }
@@ -285,10 +288,14 @@ pub struct Model {
     carry_in: CarryInConvention,
     negative_zero: NegativeZero,
     zero_flag: ZeroFlag,
+    /// `conventions.offset_carry = "codes"` on an offset add, sub or addsub unit.
+    codes_carry: bool,
     has_carry_in: bool,
     force_wide: bool,
     /// [`Model::ripple_view`] for mode false and true, worked out once.
     views: [Option<RippleView>; 2],
+    /// The shift, rotate or multiply unit, for those operations.
+    unit: Option<OpUnit>,
 }
 
 impl Model {
@@ -302,9 +309,23 @@ impl Model {
             carry_in: spec.conventions.carry_in,
             negative_zero: spec.conventions.negative_zero,
             zero_flag: spec.conventions.zero_flag,
+            codes_carry: spec.encoding == Encoding::Offset
+                && spec.conventions.offset_carry == OffsetCarry::Codes
+                && matches!(
+                    spec.operation,
+                    Operation::Add | Operation::Sub | Operation::AddSub
+                ),
             has_carry_in: spec.has(Signal::CarryIn),
             force_wide: false,
             views: [None; 2],
+            unit: spec.options.map(|options| OpUnit {
+                operation: spec.operation,
+                encoding: spec.encoding,
+                width: spec.width,
+                options,
+                negative_zero: spec.conventions.negative_zero,
+                zero_flag: spec.conventions.zero_flag,
+            }),
         };
         model.views = [model.find_ripple_view(false), model.find_ripple_view(true)];
         model
@@ -333,7 +354,21 @@ impl Model {
     }
 
     pub(crate) fn uses_fast_path(&self) -> bool {
-        self.width <= 64 && !self.force_wide
+        // A u128 holds a 63 x 63-bit signed product; a 64-bit multiplier takes the wide path.
+        self.width <= 64
+            && !self.force_wide
+            && !(self.operation == Operation::Mul && self.width > 63)
+    }
+
+    /// True when the exact results need more than the 576-bit wide integer (products of
+    /// operands above 286 bits).
+    pub(crate) fn needs_huge(&self) -> bool {
+        self.operation == Operation::Mul && 2 * self.width + 2 > Wide::CAPACITY
+    }
+
+    /// The shift, rotate or multiply unit (None for the other operations).
+    pub(crate) fn unit(&self) -> Option<&OpUnit> {
+        self.unit.as_ref()
     }
 
     /// The ripple datapath for the operation in `mode` (ignored unless addsub), or None when
@@ -366,6 +401,15 @@ impl Model {
             }
         };
         let (cell, x, y, c0) = match (self.encoding, self.operation) {
+            (
+                _,
+                Operation::Shl
+                | Operation::Shr
+                | Operation::Sra
+                | Operation::Rol
+                | Operation::Ror
+                | Operation::Mul,
+            ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,
             (Encoding::Ones, Operation::Negate) => return None,
             (Encoding::Ones, Operation::Add) => (Cell::Adder, A, B, CarrySource::Fixed(false)),
@@ -403,6 +447,8 @@ impl Model {
     pub fn evaluate(&self, inputs: &Inputs) -> Outputs {
         if self.uses_fast_path() {
             self.outputs_of(&self.trace::<u128>(inputs))
+        } else if self.needs_huge() {
+            self.outputs_of(&self.trace::<Huge>(inputs))
         } else {
             self.outputs_of(&self.trace::<Wide>(inputs))
         }
@@ -466,6 +512,25 @@ impl Model {
 
     /// Runs the model and keeps the datapath trace.
     pub(crate) fn trace<B: Bits>(&self, inputs: &Inputs) -> Trace<B> {
+        if let Some(unit) = &self.unit {
+            let r = unit.evaluate(B::from_word(&inputs.a), B::from_word(&inputs.b));
+            return Trace {
+                va: r.va,
+                vb: r.vb,
+                cin: false,
+                subtracting: false,
+                truth: r.truth,
+                result: r.result,
+                path: Path::None,
+                outputs_flags: Flags {
+                    carry_out: r.carry_out,
+                    overflow: r.overflow,
+                    zero: r.zero,
+                    negative: r.negative,
+                    ..Flags::default()
+                },
+            };
+        }
         let w = self.width;
         let enc = self.encoding;
         let mask = B::low_mask(w);
@@ -497,6 +562,8 @@ impl Model {
             Operation::Increment => va.add(B::one()),
             Operation::Decrement => va.sub(B::one()),
             Operation::Compare => va.sub(vb),
+            // Shifts, rotates and mul returned above with their own unit's trace.
+            _ => unreachable!("extended operations have their own model"),
         };
 
         if self.operation == Operation::Compare {
@@ -552,6 +619,12 @@ impl Model {
                         out,
                     )
                 } else {
+                    // An offset unit that adds the codes carries out of its own top bit.
+                    let out = if self.codes_carry {
+                        offset_carries(view.cell, x, y, c0, w).1
+                    } else {
+                        out
+                    };
                     (
                         raw.and(mask).xor(flip),
                         Path::Ripple {
@@ -579,6 +652,7 @@ impl Model {
                         return self.finish(va, vb, cin, subtracting, truth, r, Path::None, false);
                     }
                     Operation::Compare => unreachable!("handled above"),
+                    _ => unreachable!("extended operations have their own model"),
                 };
                 let (sa, sb) = (a.bit(m), b_eff.bit(m));
                 let (ma, mb) = (a.mask(m), b_eff.mask(m));
@@ -662,6 +736,21 @@ impl Model {
     pub(crate) fn encode_value<B: Bits>(&self, v: B) -> Option<B> {
         representable(v, self.width, self.encoding).then(|| encode(v, self.width, self.encoding))
     }
+}
+
+/// The raw carry (borrow, for a subtractor cell) out of the top bit of an offset-binary
+/// ripple datapath with operands `x`, `y` and carry-in `c0` as the inner two's-complement
+/// datapath sees them: (the inner datapath's, that of the same cell fed the codes, whose top
+/// bits are the inverse). They differ exactly when the top bits of `x` and `y` are equal for
+/// an adder cell, and differ for a subtractor cell.
+pub(crate) fn offset_carries<B: Bits>(cell: Cell, x: B, y: B, c0: bool, w: u32) -> (bool, bool) {
+    let flip = B::single_bit(w - 1);
+    let c = B::from_bool(c0);
+    let raw = |x: B, y: B| match cell {
+        Cell::Adder => x.add(y).add(c),
+        Cell::Subtractor => x.sub(y).sub(c),
+    };
+    (raw(x, y).bit(w), raw(x.xor(flip), y.xor(flip)).bit(w))
 }
 
 #[cfg(test)]

@@ -5,13 +5,17 @@ use std::path::{Path, PathBuf};
 
 use clap::Args;
 
+use arithvec::verify_files;
 use arithvec::{
-    merge_reports, read_manifest, render_junit, render_text, verdict_line, CheckOptions,
-    CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Problem, Radix, Spec,
-    Verdict,
+    merge_reports, read_manifest_unverified, render_junit_timed, render_text, verdict_line,
+    CheckOptions, CheckReport, Checker, ClassRows, Error, Generator, LogReader, Manifest, Mix,
+    Problem, Radix, Spec, Verdict,
 };
 
-use crate::cli::util::{out, read_spec, stdout_error, write_atomic, Outcome};
+use crate::cli::util::{
+    is_stdout, out, parse_percent, read_spec, refuse_collisions, stdout_error, write_output,
+    Outcome,
+};
 
 pub const CHECK_HELP: &str = "Example:\n  arithvec check unit.toml --log results.csv --vectors vec/ --require 100 \\\n      --junit check.xml --json check.json\n\n\
 The log has a header row naming columns after the spec's ports (and optionally `index`), \
@@ -24,8 +28,12 @@ team's own verification plan.";
 
 pub const MERGE_HELP: &str =
     "Example:\n  arithvec merge run1.json run2.json shard3.json -o all.json --require 100\n\n\
-Reports must come from `arithvec check --json` on the same spec (the [random] table may \
-differ) and the same arithvec version. Exit codes as for check.";
+Reports must come from `arithvec check --json` on the same spec (the [random] table and \
+[dut] may differ) and the same arithvec version. Counts and coverage add up; completeness is \
+judged over the union of the runs' seen indices: the runs of one vector set must see every \
+index once (indices seen twice are duplicates). The same run given twice is refused (exit 2).\n\n\
+Incremental: `arithvec merge --into total.json shard7.json` merges into total.json in place \
+(starting it when it does not exist yet). Exit codes as for check.";
 
 #[derive(Args)]
 pub struct CheckArgs {
@@ -53,32 +61,41 @@ pub struct CheckArgs {
     /// Class coverage required, in percent (exit 3 when short).
     #[arg(long, value_name = "PCT", value_parser = parse_percent)]
     require: Option<f64>,
-    /// Write JUnit XML here (one test case per corner class).
+    /// Write JUnit XML here (one test case per corner class; "-" for standard output).
     #[arg(long, value_name = "FILE")]
     junit: Option<PathBuf>,
-    /// Write the JSON report here.
+    /// Write the JSON report here ("-" for standard output).
     #[arg(long, value_name = "FILE")]
     json: Option<PathBuf>,
     /// List only classes that are not covered in the text report.
     #[arg(long)]
     brief: bool,
+    /// Compare only these output ports (comma-separated port names, e.g. y,co). Without it
+    /// every output of the spec must be in the log; the reports state the narrowing.
+    #[arg(long, value_name = "PORTS", value_delimiter = ',')]
+    outputs: Option<Vec<String>>,
+    #[command(flatten)]
+    threads: crate::cli::threads::ThreadsArg,
 }
 
 #[derive(Args)]
 pub struct MergeArgs {
-    /// JSON reports from `arithvec check --json`.
+    /// JSON reports from `arithvec check --json` (or earlier merges).
     #[arg(required = true)]
     reports: Vec<PathBuf>,
-    /// Write the merged JSON report here.
+    /// Write the merged JSON report here ("-" for standard output).
     #[arg(long, short)]
     output: Option<PathBuf>,
+    /// Merge the reports into this merged report, in place (created when missing).
+    #[arg(long, value_name = "TOTAL.json", conflicts_with = "output")]
+    into: Option<PathBuf>,
     /// Class coverage required, in percent (exit 3 when short).
     #[arg(long, value_name = "PCT", value_parser = parse_percent)]
     require: Option<f64>,
     /// Hits a bin needs to count as covered.
     #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u64).range(1..))]
     at_least: u64,
-    /// Write JUnit XML here.
+    /// Write JUnit XML here ("-" for standard output).
     #[arg(long, value_name = "FILE")]
     junit: Option<PathBuf>,
     /// Failures shown in detail.
@@ -93,19 +110,7 @@ fn parse_radix(s: &str) -> Result<Radix, String> {
     s.parse()
 }
 
-fn parse_percent(s: &str) -> Result<f64, String> {
-    let v: f64 = s
-        .trim_end_matches('%')
-        .parse()
-        .map_err(|_| format!("\"{s}\" is not a percentage"))?;
-    if (0.0..=100.0).contains(&v) {
-        Ok(v)
-    } else {
-        Err(format!("{v} is not between 0 and 100"))
-    }
-}
-
-fn outcome(r: &CheckReport) -> Outcome {
+fn outcome_of(r: &CheckReport) -> Outcome {
     match r.verdict {
         Verdict::Pass => Outcome::Success,
         Verdict::Fail => Outcome::Mismatch,
@@ -113,9 +118,18 @@ fn outcome(r: &CheckReport) -> Outcome {
     }
 }
 
-/// Reads the vector set's manifest and checks it belongs to this spec and this version.
+/// Reads the vector set's manifest, verifies the files against it, and checks it belongs to
+/// this spec and this version.
 pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error> {
-    let manifest = read_manifest(dir)?;
+    let opened = open_vectors_unverified(dir, spec)?;
+    verify_files(dir, &opened.0)?;
+    Ok(opened)
+}
+
+/// [`open_vectors`] without the files' verification, for a caller that verifies them on
+/// another thread while it works and refuses the set before giving any verdict.
+fn open_vectors_unverified(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Error> {
+    let manifest = read_manifest_unverified(dir)?;
     let mpath = dir.join(arithvec::MANIFEST_JSON).display().to_string();
     if manifest.spec_sha256 != arithvec::spec_identity(spec) {
         return Err(Error::problem(
@@ -148,7 +162,33 @@ pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Er
         Some(s) => (s.source_random, s.source_directed),
         None => (manifest.random, manifest.directed),
     };
-    let generator = Generator::new(spec, Some(random), Some(manifest.seed));
+    // The set's own [random] draw (mix, corner share) determines its random vectors, as its
+    // own count and seed do; the spec's [random] table may differ (it is not in the identity).
+    let mut set_spec = spec.clone();
+    let r = &manifest.spec["random"];
+    set_spec.random.mix = match r["mix"].as_str() {
+        Some("uniform") => Mix::Uniform,
+        Some("corner") => Mix::Corner,
+        _ => {
+            return Err(Error::problem(
+                Problem::new(mpath, "the manifest's spec has no valid random.mix")
+                    .field("spec.random.mix"),
+            ))
+        }
+    };
+    set_spec.random.corner_share = match r["corner_share"].as_u64().map(u32::try_from) {
+        Some(Ok(share)) if share <= 100 => share,
+        _ => {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    "the manifest's spec has no valid random.corner_share",
+                )
+                .field("spec.random.corner_share"),
+            ))
+        }
+    };
+    let generator = Generator::new(&set_spec, Some(random), Some(manifest.seed));
     if generator.directed().len() as u64 != directed {
         return Err(Error::problem(
             Problem::new(
@@ -161,15 +201,101 @@ pub fn open_vectors(dir: &Path, spec: &Spec) -> Result<(Manifest, Generator), Er
     Ok((manifest, generator))
 }
 
+/// The signals of `--outputs`: each name must be an output port of the spec.
+fn output_signals(spec: &Spec, names: &[String]) -> Result<Vec<arithvec::Signal>, Error> {
+    let outputs = spec.outputs();
+    let mut chosen = Vec::new();
+    let mut problems = Vec::new();
+    for name in names.iter().map(|n| n.trim()) {
+        match outputs.iter().find(|(_, port)| *port == name) {
+            Some((sig, _)) if !chosen.contains(sig) => chosen.push(*sig),
+            Some(_) => problems.push(
+                Problem::new("--outputs", format!("output \"{name}\" is named twice"))
+                    .field("outputs"),
+            ),
+            None => problems.push(
+                Problem::new(
+                    "--outputs",
+                    format!(
+                        "\"{name}\" is not an output port of the spec; its outputs are {}",
+                        outputs
+                            .iter()
+                            .map(|(_, p)| *p)
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ),
+                )
+                .field("outputs"),
+            ),
+        }
+    }
+    if chosen.is_empty() && problems.is_empty() {
+        problems.push(Problem::new("--outputs", "names no output port").field("outputs"));
+    }
+    if problems.is_empty() {
+        Ok(chosen)
+    } else {
+        Err(Error::input(problems))
+    }
+}
+
 pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
+    let mut inputs: Vec<(&str, &Path)> = vec![("SPEC", &args.spec), ("--log", &args.log)];
+    if let Some(v) = &args.vectors {
+        inputs.push(("--vectors", v));
+    }
+    let mut outputs: Vec<(&str, &Path)> = Vec::new();
+    if let Some(j) = &args.json {
+        outputs.push(("--json", j));
+    }
+    if let Some(j) = &args.junit {
+        outputs.push(("--junit", j));
+    }
+    refuse_collisions(&inputs, &outputs)?;
+    let started = std::time::Instant::now();
     let spec = read_spec(&args.spec)?;
     let (manifest, generator) = match &args.vectors {
         Some(dir) => {
-            let (m, g) = open_vectors(dir, &spec)?;
+            let (m, g) = open_vectors_unverified(dir, &spec)?;
             (Some(m), g)
         }
         None => (None, Generator::new(&spec, None, None)),
     };
+    // The set's files are hashed on a thread of their own while the log is checked (one
+    // streaming pass each); a mismatch refuses the set (exit 2) before any verdict is shown.
+    let verification = match (&args.vectors, &manifest) {
+        (Some(dir), Some(m)) => {
+            let (dir, m) = (dir.clone(), m.clone());
+            Some(std::thread::spawn(move || verify_files(&dir, &m)))
+        }
+        _ => None,
+    };
+    let outcome = check_log(&args, quiet, &spec, &generator, manifest.as_ref());
+    if let Some(handle) = verification {
+        handle
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic))?;
+    }
+    let report = outcome?;
+    emit(
+        &report,
+        started,
+        args.json.as_deref(),
+        args.junit.as_deref(),
+        quiet,
+        args.brief,
+    )?;
+    Ok(outcome_of(&report))
+}
+
+/// The log half of `check`: reads and judges every row and returns the report.
+fn check_log(
+    args: &CheckArgs,
+    quiet: bool,
+    spec: &Spec,
+    generator: &Generator,
+    manifest: Option<&Manifest>,
+) -> Result<CheckReport, Error> {
     let log_name = args.log.display().to_string();
     let input: Box<dyn BufRead> = if args.log.as_os_str() == "-" {
         Box::new(BufReader::with_capacity(1 << 20, std::io::stdin()))
@@ -177,27 +303,27 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         let f = std::fs::File::open(&args.log).map_err(|e| Error::io(&args.log, e))?;
         Box::new(BufReader::with_capacity(1 << 20, f))
     };
-    let mut reader = LogReader::new(input, &log_name, &spec, args.radix)?;
+    let mut reader = LogReader::new(input, &log_name, spec, args.radix)?;
+    let outputs = args
+        .outputs
+        .as_deref()
+        .map(|names| output_signals(spec, names))
+        .transpose()?;
     let options = CheckOptions {
         max_failures: args.max_failures,
         at_least: args.at_least,
         require: args.require,
         repro_command: format!("arithvec repro {}", args.spec.display()),
-        threads: 0,
+        threads: args.threads.resolve()?,
+        outputs,
     };
-    let mut checker = Checker::new(
-        &spec,
-        &generator,
-        manifest.as_ref(),
-        reader.columns(),
-        options,
-    )
-    .map_err(|p| {
-        Error::problem(Problem {
-            file: log_name.clone(),
-            ..p
-        })
-    })?;
+    let mut checker =
+        Checker::new(spec, generator, manifest, reader.columns(), options).map_err(|p| {
+            Error::problem(Problem {
+                file: log_name.clone(),
+                ..p
+            })
+        })?;
     checker.add_log(&log_name);
     let bar = spinner(quiet);
     let bad = checker.check_log(&mut reader, args.lenient, |n| {
@@ -216,15 +342,7 @@ pub fn check(args: CheckArgs, quiet: bool) -> Result<Outcome, Error> {
         ));
         return Err(Error::input(problems));
     }
-    let report = checker.finish();
-    emit(
-        &report,
-        args.json.as_deref(),
-        args.junit.as_deref(),
-        quiet,
-        args.brief,
-    )?;
-    Ok(outcome(&report))
+    Ok(checker.finish())
 }
 
 fn spinner(quiet: bool) -> Option<indicatif::ProgressBar> {
@@ -243,6 +361,7 @@ fn spinner(quiet: bool) -> Option<indicatif::ProgressBar> {
 
 fn emit(
     report: &CheckReport,
+    started: std::time::Instant,
     json: Option<&Path>,
     junit: Option<&Path>,
     quiet: bool,
@@ -251,39 +370,76 @@ fn emit(
     if let Some(path) = json {
         let mut text = serde_json::to_string_pretty(report).expect("report serialises");
         text.push('\n');
-        write_atomic(path, text.as_bytes())?;
+        write_output(path, text.as_bytes())?;
     }
     if let Some(path) = junit {
-        write_atomic(path, render_junit(report).as_bytes())?;
+        write_output(
+            path,
+            render_junit_timed(report, Some(started.elapsed())).as_bytes(),
+        )?;
     }
-    let mut o = out();
-    if quiet {
-        writeln!(o, "{}", verdict_line(report)).map_err(stdout_error)?;
+    let text = if quiet {
+        format!("{}\n", verdict_line(report))
     } else {
         let rows = if brief {
             ClassRows::Problems
         } else {
             ClassRows::All
         };
-        write!(o, "{}", render_text(report, rows)).map_err(stdout_error)?;
+        render_text(report, rows)
+    };
+    // When a report file goes to standard output, the text for people goes to stderr so
+    // the file stays parseable.
+    if json.is_some_and(is_stdout) || junit.is_some_and(is_stdout) {
+        eprint!("{text}");
+        return Ok(());
     }
+    let mut o = out();
+    write!(o, "{text}").map_err(stdout_error)?;
     o.flush().map_err(stdout_error)
 }
 
-pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
-    let mut reports = Vec::new();
-    for path in &args.reports {
-        let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
-        let r: CheckReport = serde_json::from_str(&text).map_err(|e| {
-            Error::problem(
-                Problem::new(
-                    path.display().to_string(),
-                    format!("not an arithvec check report: {e}"),
-                )
-                .at_line(e.line()),
+/// Reads one JSON check report.
+fn read_report(path: &Path) -> Result<CheckReport, Error> {
+    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    serde_json::from_str(&text).map_err(|e| {
+        Error::problem(
+            Problem::new(
+                path.display().to_string(),
+                format!("not an arithvec check report: {e}"),
             )
-        })?;
-        reports.push((path.display().to_string(), r));
+            .at_line(e.line()),
+        )
+    })
+}
+
+pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
+    let started = std::time::Instant::now();
+    let inputs: Vec<(&str, &Path)> = args
+        .reports
+        .iter()
+        .map(|r| ("REPORT", r.as_path()))
+        .collect();
+    let mut outputs: Vec<(&str, &Path)> = Vec::new();
+    if let Some(o) = &args.output {
+        outputs.push(("--output", o));
+    }
+    if let Some(into) = &args.into {
+        // --into is read and rewritten in place on purpose; it must not also be a REPORT.
+        outputs.push(("--into", into));
+    }
+    if let Some(j) = &args.junit {
+        outputs.push(("--junit", j));
+    }
+    refuse_collisions(&inputs, &outputs)?;
+    let mut reports = Vec::new();
+    if let Some(into) = &args.into {
+        if into.exists() {
+            reports.push((into.display().to_string(), read_report(into)?));
+        }
+    }
+    for path in &args.reports {
+        reports.push((path.display().to_string(), read_report(path)?));
     }
     let (first_name, first) = &reports[0];
     let spec = Spec::parse(&first.spec_toml, &format!("{first_name} (spec_toml)"))?;
@@ -294,14 +450,16 @@ pub fn merge(args: MergeArgs, quiet: bool) -> Result<Outcome, Error> {
         require: args.require,
         repro_command: String::new(),
         threads: 1,
+        outputs: None,
     };
     let merged = merge_reports(&spec, &generator, &reports, &options).map_err(Error::problem)?;
     emit(
         &merged,
-        args.output.as_deref(),
+        started,
+        args.output.as_deref().or(args.into.as_deref()),
         args.junit.as_deref(),
         quiet,
         args.brief,
     )?;
-    Ok(outcome(&merged))
+    Ok(outcome_of(&merged))
 }

@@ -5,13 +5,14 @@ use std::io::Write;
 use std::path::PathBuf;
 
 use clap::{Args, ValueEnum};
+use serde::Serialize;
 
 use arithvec::{
     write_selection, BuiltinModel, Error, GradeOutcome, Grader, Netlist, Problem, VectorSet,
 };
 
 use crate::cli::check::open_vectors;
-use crate::cli::util::{out, read_spec, stdout_error, Outcome};
+use crate::cli::util::{out, parse_percent, read_spec, stdout_error, Outcome};
 
 pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n\n\
 The netlist's module is [dut] module unless --module says otherwise; its ports are matched by \
@@ -24,6 +25,21 @@ verification plan.";
 pub enum GradeFormat {
     Table,
     Json,
+}
+
+/// How `--compact` chooses its subset (the text line and the JSON `compaction.method`).
+const COMPACTION_METHOD: &str = "greedy set cover: every fault detected and every bin hit by \
+     the full set still is; small, not proven minimum";
+
+/// The `compaction` object of `grade --format json --compact`.
+#[derive(Serialize)]
+struct Compaction {
+    /// Vectors in the graded set.
+    before: u64,
+    /// Vectors in the compacted set written to `out`.
+    after: u64,
+    method: &'static str,
+    out: String,
 }
 
 #[derive(Args)]
@@ -47,7 +63,7 @@ pub struct GradeArgs {
     #[arg(long, value_enum, default_value_t = GradeFormat::Table)]
     format: GradeFormat,
     /// Fault coverage required, in percent (exit 3 when short).
-    #[arg(long, value_name = "PCT")]
+    #[arg(long, value_name = "PCT", value_parser = parse_percent)]
     require: Option<f64>,
     /// Write the smallest subset found that keeps class and fault coverage to --out.
     #[arg(long, requires = "out")]
@@ -55,9 +71,19 @@ pub struct GradeArgs {
     /// Output directory for --compact.
     #[arg(long)]
     out: Option<PathBuf>,
+    #[command(flatten)]
+    threads: crate::cli::threads::ThreadsArg,
 }
 
 pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
+    if let Some(dir) = &args.out {
+        let mut inputs: Vec<(&str, &std::path::Path)> =
+            vec![("SPEC", &args.spec), ("--vectors", &args.vectors)];
+        if let Some(n) = &args.netlist {
+            inputs.push(("--netlist", n));
+        }
+        crate::cli::util::refuse_collisions(&inputs, &[("--out", dir)])?;
+    }
     let spec = read_spec(&args.spec)?;
     let (manifest, generator) = open_vectors(&args.vectors, &spec)?;
     let set = VectorSet::read(&args.vectors, &spec)?;
@@ -76,15 +102,76 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                     ))
                 }
             };
-            Netlist::from_yosys_json(&text, &path.display().to_string(), &module)?
+            let netlist = Netlist::from_yosys_json(&text, &path.display().to_string(), &module)?;
+            // Every output the spec names must be in the netlist, as every input must: a
+            // spec output the netlist lacks could never be compared, so grading without it
+            // would overstate. The built-in models build no zero or negative flag, so the
+            // check is for netlist files only.
+            let missing: Vec<Problem> = spec
+                .outputs()
+                .into_iter()
+                .filter(|(_, name)| netlist.output_port(name).is_none())
+                .map(|(sig, name)| {
+                    Problem::new(
+                        path.display().to_string(),
+                        format!(
+                            "module `{}` has no output port \"{name}\" (the spec's {}); rename \
+                             the port or remove it from the spec's [ports]",
+                            netlist.module(),
+                            sig.key()
+                        ),
+                    )
+                    .field(format!("port {name}"))
+                })
+                .collect();
+            if !missing.is_empty() {
+                return Err(Error::input(missing));
+            }
+            netlist
         }
         None => BuiltinModel::for_spec(&spec)?.build(&spec)?,
     };
-    let grader = Grader::new(&spec, &netlist)?;
+    let mut grader = Grader::new(&spec, &netlist)?;
+    grader.set_threads(args.threads.resolve()?);
     let report = match grader.grade(&set.inputs, &set.expected)? {
         GradeOutcome::Graded(r) => r,
         GradeOutcome::NotTheSpec(bad) => {
+            let index_of = |position: usize| {
+                manifest
+                    .selection
+                    .as_ref()
+                    .and_then(|s| s.indices.get(position).copied())
+                    .unwrap_or(manifest.first_index + position as u64)
+            };
             let mut o = out();
+            if args.format == GradeFormat::Json {
+                // One document on stdout, as for a graded netlist: a consumer parsing it sees
+                // why there are no fault figures.
+                let disagreements: Vec<serde_json::Value> = bad
+                    .iter()
+                    .map(|m| {
+                        let index = index_of(m.position);
+                        serde_json::json!({
+                            "index": index,
+                            "port": m.port,
+                            "expected": m.expected,
+                            "got": m.got,
+                            "repro": format!("arithvec repro {} --index {index}", args.spec.display()),
+                        })
+                    })
+                    .collect();
+                let doc = serde_json::json!({
+                    "module": netlist.module(),
+                    "status": "not_the_spec",
+                    "message": "the fault-free netlist does not reproduce the golden model, so it is \
+                                not the unit the spec describes; grading stopped",
+                    "disagreements": disagreements,
+                });
+                let text = serde_json::to_string_pretty(&doc).expect("json");
+                writeln!(o, "{text}").map_err(stdout_error)?;
+                o.flush().map_err(stdout_error)?;
+                return Ok(Outcome::Mismatch);
+            }
             writeln!(
                 o,
                 "the fault-free netlist (module {}) does not reproduce the golden model, so it is \
@@ -93,11 +180,7 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             )
             .map_err(stdout_error)?;
             for m in &bad {
-                let index = manifest
-                    .selection
-                    .as_ref()
-                    .and_then(|s| s.indices.get(m.position).copied())
-                    .unwrap_or(manifest.first_index + m.position as u64);
+                let index = index_of(m.position);
                 writeln!(
                     o,
                     "  vector {index}: port {} expected 0x{} got 0x{} (arithvec repro {} --index {index})",
@@ -112,9 +195,39 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         }
     };
     let short = args.require.is_some_and(|r| report.coverage_percent < r);
+    // Compaction runs before anything is printed so the JSON document can hold its figures.
+    let compaction = if args.compact {
+        let dir = args.out.as_ref().expect("clap requires --out");
+        let chosen = grader.compact(&generator, &set.inputs)?;
+        let source: Vec<u64> = chosen
+            .iter()
+            .map(|&p| match &manifest.selection {
+                Some(s) => s.indices[p],
+                None => manifest.first_index + p as u64,
+            })
+            .collect();
+        let _new_dir = crate::cli::signals::guard_new_dir(dir);
+        let _temporaries = crate::cli::signals::guard_vector_set(dir);
+        let m = write_selection(&generator, &spec, dir, &source)?;
+        Some(Compaction {
+            before: set.inputs.len() as u64,
+            after: m.vectors,
+            method: COMPACTION_METHOD,
+            out: dir.display().to_string(),
+        })
+    } else {
+        None
+    };
     let mut o = out();
     if args.format == GradeFormat::Json {
-        let text = serde_json::to_string_pretty(&report).expect("report serialises");
+        let mut doc = serde_json::to_value(&report).expect("report serialises");
+        if let (Some(c), Some(map)) = (&compaction, doc.as_object_mut()) {
+            map.insert(
+                "compaction".into(),
+                serde_json::to_value(c).expect("compaction serialises"),
+            );
+        }
+        let text = serde_json::to_string_pretty(&doc).expect("report serialises");
         writeln!(o, "{text}").map_err(stdout_error)?;
     } else if !quiet {
         let rows = vec![[
@@ -226,25 +339,12 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         )
         .map_err(stdout_error)?;
     }
-    if args.compact {
-        let dir = args.out.as_ref().expect("clap requires --out");
-        let chosen = grader.compact(&generator, &set.inputs)?;
-        let source: Vec<u64> = chosen
-            .iter()
-            .map(|&p| match &manifest.selection {
-                Some(s) => s.indices[p],
-                None => manifest.first_index + p as u64,
-            })
-            .collect();
-        let m = write_selection(&generator, &spec, dir, &source)?;
-        if !quiet {
+    if let Some(c) = &compaction {
+        if !quiet && args.format != GradeFormat::Json {
             writeln!(
                 o,
-                "compacted {} vectors to {} (greedy set cover: every fault detected and every \
-                 bin hit by the full set still is; small, not proven minimum) in {}",
-                set.inputs.len(),
-                m.vectors,
-                dir.display()
+                "compacted {} vectors to {} ({}) in {}",
+                c.before, c.after, c.method, c.out
             )
             .map_err(stdout_error)?;
         }

@@ -5,4 +5,6 @@
 
 pub(crate) mod check;
 pub(crate) mod grade;
+pub(crate) mod signals;
+pub(crate) mod threads;
 pub(crate) mod util;

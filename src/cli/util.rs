@@ -30,6 +30,21 @@ impl Outcome {
     }
 }
 
+/// The one parser of every `--require PCT`: a finite number from 0 to 100, with an optional
+/// `%` sign. `nan`, `inf` and `101` are refused (exit 2) the same way in every command.
+pub fn parse_percent(s: &str) -> Result<f64, String> {
+    let v: f64 = s
+        .trim()
+        .trim_end_matches('%')
+        .parse()
+        .map_err(|_| format!("\"{s}\" is not a percentage (a number from 0 to 100)"))?;
+    if v.is_finite() && (0.0..=100.0).contains(&v) {
+        Ok(v)
+    } else {
+        Err(format!("\"{s}\" is not a percentage from 0 to 100"))
+    }
+}
+
 /// Reads and validates a spec file.
 pub fn read_spec(path: &Path) -> Result<Spec, Error> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
@@ -85,6 +100,7 @@ pub fn write_atomic(path: &Path, text: &[u8]) -> Result<(), Error> {
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| "out".into());
     let tmp = dir.join(format!(".{name}.tmp"));
+    let _interrupted = crate::cli::signals::guard_file(&tmp);
     let written = (|| {
         let mut f = std::fs::File::create(&tmp).map_err(|e| Error::io(&tmp, e))?;
         f.write_all(text).map_err(|e| Error::io(&tmp, e))?;
@@ -97,4 +113,108 @@ pub fn write_atomic(path: &Path, text: &[u8]) -> Result<(), Error> {
         let _ = std::fs::remove_file(&tmp);
     }
     written
+}
+
+/// True when an output path is `-`, which means standard output for every file output.
+pub fn is_stdout(path: &Path) -> bool {
+    path.as_os_str() == "-"
+}
+
+/// Writes an output file: to standard output when `path` is `-`, else atomically.
+pub fn write_output(path: &Path, text: &[u8]) -> Result<(), Error> {
+    if is_stdout(path) {
+        let mut o = out();
+        o.write_all(text).map_err(stdout_error)?;
+        return o.flush().map_err(stdout_error);
+    }
+    write_atomic(path, text)
+}
+
+/// The files of a vector-set directory: an output placed on one of them destroys the set.
+const SET_FILES: [&str; 4] = [
+    "manifest.json",
+    "vectors.csv",
+    "stimulus.hex",
+    "expected.hex",
+];
+
+/// A path as far as it can be resolved: canonical when it exists, else its canonical parent
+/// joined with its name (an output not written yet), else as given made absolute.
+fn resolved(path: &Path) -> std::path::PathBuf {
+    if let Ok(p) = path.canonicalize() {
+        return p;
+    }
+    let parent = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    match (parent.canonicalize(), path.file_name()) {
+        (Ok(dir), Some(name)) => dir.join(name),
+        _ => std::path::absolute(path).unwrap_or_else(|_| path.to_path_buf()),
+    }
+}
+
+/// Device and inode of an existing file, so hard links to one file are seen as one.
+fn file_id(path: &Path) -> Option<(u64, u64)> {
+    use std::os::unix::fs::MetadataExt;
+    std::fs::metadata(path).ok().map(|m| (m.dev(), m.ino()))
+}
+
+/// Why output `out` would destroy `other` (an input, or another output), if it would.
+fn collision(out: &Path, other: &Path) -> Option<&'static str> {
+    if is_stdout(out) || is_stdout(other) {
+        return (is_stdout(out) && is_stdout(other)).then_some("standard output as well as");
+    }
+    let (a, b) = (resolved(out), resolved(other));
+    if a == b || file_id(out).is_some_and(|id| file_id(other) == Some(id)) {
+        return Some("the same file or directory as");
+    }
+    // A file of a vector set inside the other's directory, either way round.
+    let inside = |file: &std::path::Path, dir: &std::path::Path| {
+        file.parent() == Some(dir)
+            && file
+                .file_name()
+                .is_some_and(|n| SET_FILES.iter().any(|s| n == *s))
+            && dir.is_dir()
+    };
+    if inside(&a, &b) || inside(&b, &a) {
+        return Some("a file of the vector set in");
+    }
+    None
+}
+
+/// Refuses (exit 2) any output that is the same file or directory as an input or another
+/// output (by canonical path and by inode), or that would replace a file of an input vector
+/// set; two outputs on standard output (`-`) are refused too. Nothing has been written when
+/// this fails. Each entry is (option, path).
+pub fn refuse_collisions(inputs: &[(&str, &Path)], outputs: &[(&str, &Path)]) -> Result<(), Error> {
+    use arithvec::Problem;
+    let mut problems = Vec::new();
+    for (k, (opt, out)) in outputs.iter().enumerate() {
+        let others = inputs
+            .iter()
+            .map(|i| (i, "input"))
+            .chain(outputs[..k].iter().map(|o| (o, "output")));
+        for ((other_opt, other), role) in others {
+            if let Some(how) = collision(out, other) {
+                problems.push(
+                    Problem::new(
+                        out.display().to_string(),
+                        format!(
+                            "{opt} {} is {how} {role} {other_opt} {}; refusing to overwrite it \
+                             (choose another path)",
+                            out.display(),
+                            other.display()
+                        ),
+                    )
+                    .field(opt.trim_start_matches('-')),
+                );
+            }
+        }
+    }
+    if problems.is_empty() {
+        Ok(())
+    } else {
+        Err(Error::input(problems))
+    }
 }

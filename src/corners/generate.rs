@@ -46,6 +46,8 @@ struct RandomPlan {
     corner_share: u32,
     width: u32,
     binary: bool,
+    /// Width of the second operand field (the amount of a shifter).
+    b_width: u32,
     words_per_operand: u32,
     key: [u8; 32],
 }
@@ -85,7 +87,12 @@ impl Generator {
                 mix: spec.random.mix,
                 corner_share: spec.random.corner_share,
                 width: spec.width,
-                binary: spec.operation.is_binary(),
+                binary: spec.operation.is_binary() || spec.operation.is_shift(),
+                b_width: if spec.operation.is_shift() {
+                    spec.signal_width(Signal::Amount).min(spec.width)
+                } else {
+                    spec.width
+                },
                 words_per_operand: spec.width.div_ceil(32),
                 key,
             },
@@ -200,7 +207,7 @@ impl RandomStream {
     pub fn next_inputs(&mut self) -> Inputs {
         let a = self.operand();
         let b = if self.plan.binary {
-            self.operand()
+            self.operand().masked(self.plan.b_width)
         } else {
             Word::ZERO
         };
@@ -399,6 +406,9 @@ impl Datapath {
 
 /// Candidate inputs for one bin, best first. The caller keeps the first that hits.
 fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word]) -> Vec<Inputs> {
+    if spec.operation.is_extended() {
+        return crate::corners::construct::candidates(cat, spec, class, k);
+    }
     let c = &cat.classes()[class];
     let model = cat.model();
     let w = spec.width;

@@ -7,4 +7,5 @@
 
 pub(crate) mod classes;
 pub(crate) mod compare;
+pub(crate) mod construct;
 pub(crate) mod generate;

@@ -16,10 +16,11 @@ use crate::corners::classes::Hits;
 use crate::corners::generate::Generator;
 use crate::error::{Error, Problem, Result};
 use crate::gates::fault::{
-    compact, detection_matrix, grade_with, DetectionMatrix, FaultList, FaultReport, GradeOptions,
-    PatternSet, SimulationMode,
+    compact, detection_matrix_on, grade_with, DetectionMatrix, FaultList, FaultReport,
+    GradeOptions, PatternSet, SimulationMode,
 };
 use crate::gates::netlist::Netlist;
+use crate::sets::commit::Staging;
 use crate::sets::hexfile::{header, Packer};
 use crate::sets::layout::Layout;
 use crate::sets::vectorset::{
@@ -126,7 +127,7 @@ fn match_ports(spec: &Spec, netlist: &Netlist) -> Result<PortMap> {
     for port in netlist.inputs() {
         match by_name(port.name()).filter(|s| s.is_input()) {
             Some(sig) => {
-                let w = sig.width(spec.width);
+                let w = spec.signal_width(sig);
                 if port.width() != w {
                     problems.push(
                         Problem::new(
@@ -171,7 +172,7 @@ fn match_ports(spec: &Spec, netlist: &Netlist) -> Result<PortMap> {
     for port in netlist.outputs() {
         let sig = by_name(port.name()).filter(|s| !s.is_input());
         if let Some(s) = sig {
-            if port.width() != s.width(spec.width) {
+            if port.width() != spec.signal_width(s) {
                 problems.push(
                     Problem::new(
                         &src,
@@ -179,7 +180,7 @@ fn match_ports(spec: &Spec, netlist: &Netlist) -> Result<PortMap> {
                             "output port is {} bits wide; the spec's {} is {}",
                             port.width(),
                             s.key(),
-                            s.width(spec.width)
+                            spec.signal_width(s)
                         ),
                     )
                     .field(format!("port {}", port.name())),
@@ -240,6 +241,8 @@ pub struct Grader<'a> {
     faults: FaultList,
     unchecked_outputs: Vec<String>,
     ungraded_gates: usize,
+    /// Fault-simulation threads (0: one per core).
+    threads: usize,
 }
 
 impl<'a> Grader<'a> {
@@ -275,7 +278,14 @@ impl<'a> Grader<'a> {
             faults,
             unchecked_outputs,
             ungraded_gates,
+            threads: 0,
         })
+    }
+
+    /// Sets the threads that simulate faults (0, the default: one per core). Reports,
+    /// matrices and compactions are the same for every value.
+    pub fn set_threads(&mut self, threads: usize) {
+        self.threads = threads;
     }
 
     /// The netlist as graded: only the outputs the spec checks and the gates feeding them.
@@ -319,7 +329,7 @@ impl<'a> Grader<'a> {
                 .zip(got)
             {
                 let Some(sig) = sig else { continue };
-                let w = sig.width(self.spec.width);
+                let w = self.spec.signal_width(*sig);
                 let want = e.get(*sig).masked(w);
                 if g.masked(w) != want {
                     out.push(NetlistMismatch {
@@ -348,7 +358,10 @@ impl<'a> Grader<'a> {
             &self.netlist,
             &self.faults,
             &patterns,
-            &GradeOptions::default(),
+            &GradeOptions {
+                threads: self.threads,
+                ..GradeOptions::default()
+            },
         )?;
         report.unchecked_outputs = self.unchecked_outputs.clone();
         report.ungraded_gates = self.ungraded_gates;
@@ -359,11 +372,12 @@ impl<'a> Grader<'a> {
     /// dropping); no fault-free check is made here.
     pub fn detection_matrix(&self, vectors: &[Inputs]) -> Result<DetectionMatrix> {
         let patterns = self.patterns(vectors)?;
-        detection_matrix(
+        detection_matrix_on(
             &self.netlist,
             &self.faults,
             &patterns,
             SimulationMode::BitParallel,
+            self.threads,
         )
     }
 
@@ -398,7 +412,8 @@ pub fn write_selection(
     dir: &Path,
     source_indices: &[u64],
 ) -> Result<Manifest> {
-    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    // Written into a staging directory that one rename makes the set (`sets::commit`).
+    let staging = Staging::begin(dir)?;
     let layout = Layout::for_spec(spec);
     let stim = Packer::new(&layout.stimulus);
     let exp = Packer::new(&layout.expected);
@@ -461,20 +476,15 @@ pub fn write_selection(
     let all = files
         .into_iter()
         .chain(std::iter::once((MANIFEST_JSON, text.into_bytes())));
-    let mut tmps = Vec::new();
     for (name, bytes) in all {
-        let tmp = dir.join(format!(".{name}.tmp"));
-        if let Err(err) = std::fs::write(&tmp, &bytes) {
-            for (t, _) in &tmps {
-                let _ = std::fs::remove_file(t);
-            }
-            let _ = std::fs::remove_file(&tmp);
-            return Err(Error::io(&tmp, err));
-        }
-        tmps.push((tmp, dir.join(name)));
+        let path = staging.path().join(name);
+        std::fs::File::create(&path)
+            .and_then(|mut f| {
+                std::io::Write::write_all(&mut f, &bytes)?;
+                f.sync_all()
+            })
+            .map_err(|e| Error::io(&path, e))?;
     }
-    for (tmp, path) in &tmps {
-        std::fs::rename(tmp, path).map_err(|e| Error::io(path, e))?;
-    }
+    staging.commit()?;
     Ok(manifest)
 }

@@ -41,12 +41,12 @@ pub struct WordLayout {
 
 impl WordLayout {
     fn pack(spec: &Spec, signals: Vec<(Signal, &str)>) -> WordLayout {
-        let width: u32 = signals.iter().map(|(s, _)| s.width(spec.width)).sum();
+        let width: u32 = signals.iter().map(|(s, _)| spec.signal_width(*s)).sum();
         let mut top = width;
         let fields = signals
             .into_iter()
             .map(|(signal, name)| {
-                let w = signal.width(spec.width);
+                let w = spec.signal_width(signal);
                 let field = Field {
                     signal,
                     name: name.to_string(),

@@ -4,6 +4,7 @@
 //!
 //! May import `crate::error`, `crate::spec`, `crate::arith` and `crate::corners`.
 
+pub(crate) mod commit;
 pub(crate) mod hexfile;
 pub(crate) mod layout;
 pub(crate) mod vectorset;

@@ -7,12 +7,12 @@
 //! manifest last; an interrupted run leaves the previous set intact. Same spec and seed give
 //! byte-identical files (no dates, no host names, fixed formatting).
 
+use std::collections::BTreeMap;
 use std::fs::File;
 use std::io::{BufRead, BufReader, Write};
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::{mpsc, Condvar, Mutex};
-use std::time::Duration;
+
+use crossbeam_channel as channel;
 
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
@@ -22,6 +22,7 @@ use crate::arith::word::Word;
 use crate::corners::classes::Hits;
 use crate::corners::generate::{evaluate_vector, Generator};
 use crate::error::{Error, Problem, Result};
+use crate::sets::commit::Staging;
 use crate::sets::hexfile::{header, Packer};
 use crate::sets::layout::{Layout, WordLayout};
 use crate::spec::{Signal, Spec};
@@ -172,11 +173,17 @@ fn hex_of(bytes: &[u8]) -> String {
     bytes.iter().map(|b| format!("{b:02x}")).collect()
 }
 
-/// The unit identity hash: the normalised spec without `[random]`.
+/// The unit identity hash: the normalised spec without `[random]` and `[dut]`.
+///
+/// The identity is what determines the vectors and their files: name (it heads the files),
+/// operation, width, encoding, ports and conventions. `[random]`'s count and seed are
+/// recorded in the manifest on their own (reports of several seeds merge); `[dut]` only
+/// names the module a testbench or netlist instantiates, so changing it leaves the set valid.
 pub fn spec_identity(spec: &Spec) -> String {
     let mut v: serde_json::Value = serde_json::from_str(&spec.normalised_json()).expect("json");
     if let Some(o) = v.as_object_mut() {
         o.remove("random");
+        o.remove("dut");
     }
     sha256_hex(v.to_string().as_bytes())
 }
@@ -188,7 +195,8 @@ pub struct WriteOptions<'a> {
     pub shard: Option<Shard>,
     /// Called now and then with the number of vectors written so far.
     pub progress: Option<&'a mut dyn FnMut(u64)>,
-    /// Worker threads (0: as many as the machine has, at most 4).
+    /// Formatting threads (0: one per core), besides one writer thread per file. The files
+    /// are the same for every value.
     pub threads: usize,
 }
 
@@ -215,7 +223,7 @@ struct NarrowRows {
 /// Every signal's value (low 64 bits), indexed by `Signal as usize`, so the row writer
 /// reads fields by number instead of matching on the signal per field.
 #[inline]
-fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 12] {
+fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 13] {
     [
         i.a.low_u64(),
         i.b.low_u64(),
@@ -229,6 +237,7 @@ fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 12] {
         o.less as u64,
         o.equal as u64,
         o.greater as u64,
+        i.b.low_u64(),
     ]
 }
 
@@ -256,7 +265,7 @@ impl NarrowWord {
 
     /// The packed word, as [`Packer::push_line`] packs it.
     #[inline]
-    fn pack(&self, values: &[u64; 12]) -> u128 {
+    fn pack(&self, values: &[u64; 13]) -> u128 {
         let mut packed = 0u128;
         for &(signal, lsb, mask) in &self.fields {
             packed |= ((values[signal] & mask) as u128) << lsb;
@@ -503,10 +512,13 @@ fn formatter<'a>(generator: &'a Generator, spec: &Spec) -> Formatter<'a> {
         .inputs()
         .into_iter()
         .chain(spec.outputs())
-        .map(|(s, _)| (s as usize, s.width(spec.width).div_ceil(4) as usize))
+        .map(|(s, _)| (s as usize, spec.signal_width(s).div_ceil(4) as usize))
         .collect();
     let narrow = match (
-        spec.width <= 64,
+        spec.width <= 64
+            && Signal::ALL
+                .into_iter()
+                .all(|s| !spec.has(s) || spec.signal_width(s) <= 64),
         NarrowWord::of(&layout.stimulus),
         NarrowWord::of(&layout.expected),
     ) {
@@ -525,12 +537,12 @@ fn formatter<'a>(generator: &'a Generator, spec: &Spec) -> Formatter<'a> {
         inputs: spec
             .inputs()
             .iter()
-            .map(|(s, _)| (*s, s.width(spec.width)))
+            .map(|(s, _)| (*s, spec.signal_width(*s)))
             .collect(),
         outputs: spec
             .outputs()
             .iter()
-            .map(|(s, _)| (*s, s.width(spec.width)))
+            .map(|(s, _)| (*s, spec.signal_width(*s)))
             .collect(),
     }
 }
@@ -565,73 +577,38 @@ fn push_hex(w: &Word, width: u32, out: &mut Vec<u8>) {
     }
 }
 
-/// A file that takes chunks in order from several workers.
-struct Turn {
-    state: Mutex<TurnState>,
-    ready: Condvar,
+/// Buffers in circulation per file: enough to keep every worker busy while the writers
+/// catch up, few enough to keep memory flat.
+fn buffers_per_file(threads: usize) -> u64 {
+    2 * threads as u64 + 2
 }
 
-struct TurnState {
-    file: PendingFile,
-    /// The chunk the file takes next.
-    next: u64,
-    error: Option<Error>,
-}
-
-impl Turn {
-    fn new(file: PendingFile) -> Turn {
-        Turn {
-            state: Mutex::new(TurnState {
-                file,
-                next: 0,
-                error: None,
-            }),
-            ready: Condvar::new(),
-        }
-    }
-
-    /// Waits until the file has taken chunk `c - 1`, then appends `bytes` as chunk `c`.
-    /// False when the write failed or another worker's did (`abort`): stop.
-    fn append(&self, c: u64, bytes: &[u8], abort: &AtomicBool) -> bool {
-        let Ok(mut state) = self.state.lock() else {
-            abort.store(true, Ordering::Relaxed);
-            return false;
+/// A writer thread's loop: takes chunk `c`'s bytes of one file from any worker, in any
+/// order, writes and hashes them in chunk order, and hands each spent buffer back on
+/// `free`. `None` in place of bytes says a worker failed: the writer stops. On a write
+/// error it stops too; its dropped channels tell the others.
+fn write_in_order(
+    mut file: PendingFile,
+    parts: channel::Receiver<(u64, Option<Vec<u8>>)>,
+    free: channel::Sender<Vec<u8>>,
+) -> Result<PendingFile> {
+    let mut parked = BTreeMap::new();
+    let mut next = 0u64;
+    for (c, bytes) in parts {
+        let Some(bytes) = bytes else {
+            let failed = std::io::Error::other("a formatting worker failed");
+            return Err(Error::io(&file.tmp, failed));
         };
-        while state.next != c {
-            if abort.load(Ordering::Relaxed) {
-                return false;
-            }
-            // Timed, so a worker waiting here notices an abort raised at another file.
-            match self.ready.wait_timeout(state, Duration::from_millis(50)) {
-                Ok((s, _)) => state = s,
-                Err(_) => {
-                    abort.store(true, Ordering::Relaxed);
-                    return false;
-                }
-            }
-        }
-        if let Err(e) = state.file.write(bytes) {
-            state.error = Some(e);
-            abort.store(true, Ordering::Relaxed);
-            return false;
-        }
-        state.next += 1;
-        drop(state);
-        self.ready.notify_all();
-        true
-    }
-
-    /// The file back, or the error that stopped it.
-    fn finish(self) -> Result<PendingFile> {
-        let state = match self.state.into_inner() {
-            Ok(s) => s,
-            Err(poisoned) => poisoned.into_inner(),
-        };
-        match state.error {
-            Some(e) => Err(e),
-            None => Ok(state.file),
+        parked.insert(c, bytes);
+        while let Some(mut bytes) = parked.remove(&next) {
+            file.write(&bytes)?;
+            next += 1;
+            bytes.clear();
+            // The dispatcher may have stopped taking buffers back; nothing is lost then.
+            let _ = free.send(bytes);
         }
     }
+    Ok(file)
 }
 
 /// A file being written under a temporary name, hashing as it goes.
@@ -668,6 +645,10 @@ impl PendingFile {
     /// Flushes and syncs; returns the record. The file keeps its temporary name.
     fn finish(mut self) -> Result<(FileRecord, PathBuf, PathBuf)> {
         self.file.flush().map_err(|e| Error::io(&self.tmp, e))?;
+        self.file
+            .get_ref()
+            .sync_all()
+            .map_err(|e| Error::io(&self.tmp, e))?;
         let name = self
             .path
             .file_name()
@@ -690,7 +671,11 @@ pub fn write(
     dir: &Path,
     mut options: WriteOptions<'_>,
 ) -> Result<Manifest> {
-    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    // Everything goes into a staging directory beside `dir`, which one rename makes the set
+    // (see `sets::commit`); a failure anywhere removes the staging directory (on drop).
+    let target = dir;
+    let staging = Staging::begin(target)?;
+    let dir = staging.path();
     let total = generator.total();
     let range = options.shard.map(|s| s.range(total)).unwrap_or(0..total);
     let first_shard = options.shard.is_none_or(|s| s.index == 0);
@@ -718,9 +703,7 @@ pub fn write(
         }
         let formatter = formatter(generator, spec);
         let threads = match options.threads {
-            0 => std::thread::available_parallelism()
-                .map_or(1, |n| n.get())
-                .min(4),
+            0 => std::thread::available_parallelism().map_or(1, |n| n.get()),
             n => n,
         } as u64;
         // Chunks small enough to keep memory flat, large enough to amortise hand-offs.
@@ -730,50 +713,99 @@ pub fn write(
             let s = range.start + c * chunk_len;
             s..(s + chunk_len).min(range.end)
         };
-        // Worker t formats chunks t, t + threads, ... and appends each to the three files
-        // itself, every file taking the chunks in order. The files are locked separately,
-        // so one worker can hash and write its chunk of vectors.csv while another writes the
-        // previous chunk's hex files: hashing, the one step that cannot be split, runs on
-        // several cores at once. A worker holds one chunk, so memory stays flat.
-        let files = [Turn::new(csv), Turn::new(stim), Turn::new(exp)];
-        let abort = AtomicBool::new(false);
-        let (done_tx, done_rx) = mpsc::channel::<u64>();
+        // The calling thread hands chunks out in order, each with one buffer per file; any
+        // idle worker formats the next chunk; three writer threads, one per file, take the
+        // bytes back in chunk order, write and hash them (hashing, the one step that cannot
+        // be split, runs on three cores at once) and return the buffers. A chunk is handed
+        // out only with buffers, so at most `buffers_per_file` chunks are in flight and
+        // memory stays flat; buffers go out in chunk order, so the chunk a writer waits for
+        // always has its buffers and nothing can wait forever. The channels are crossbeam's:
+        // a closed or dropped end wakes whoever waits on the other.
+        let buffers = buffers_per_file(threads as usize);
         std::thread::scope(|scope| {
-            for t in 0..threads {
-                let done_tx = done_tx.clone();
-                let (formatter, files, abort) = (&formatter, &files, &abort);
+            let (job_tx, job_rx) = channel::bounded::<(u64, [Vec<u8>; 3])>(threads as usize);
+            let mut free_rxs = Vec::new();
+            let mut part_txs = Vec::new();
+            let mut writers = Vec::new();
+            for file in [csv, stim, exp] {
+                let (part_tx, part_rx) = channel::unbounded();
+                let (free_tx, free_rx) = channel::unbounded();
+                writers.push(scope.spawn(move || write_in_order(file, part_rx, free_tx)));
+                part_txs.push(part_tx);
+                free_rxs.push(free_rx);
+            }
+            for _ in 0..threads {
+                let (job_rx, part_txs) = (job_rx.clone(), part_txs.clone());
+                let (formatter, chunk_range) = (&formatter, &chunk_range);
                 scope.spawn(move || {
-                    let mut chunk = Chunk::default();
-                    let mut c = t;
-                    while c < chunks && !abort.load(Ordering::Relaxed) {
-                        chunk.csv.clear();
-                        chunk.stimulus.clear();
-                        chunk.expected.clear();
-                        let rows = chunk_range(c);
-                        formatter.format_range(rows.clone(), &mut chunk);
-                        let parts = [&chunk.csv, &chunk.stimulus, &chunk.expected];
-                        for (file, bytes) in files.iter().zip(parts) {
-                            if !file.append(c, bytes, abort) {
-                                return;
+                    for (c, [csv, stimulus, expected]) in job_rx {
+                        let mut chunk = Chunk {
+                            csv,
+                            stimulus,
+                            expected,
+                        };
+                        let formatted =
+                            std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+                                formatter.format_range(chunk_range(c), &mut chunk)
+                            }));
+                        if let Err(panic) = formatted {
+                            for tx in &part_txs {
+                                let _ = tx.send((c, None));
                             }
+                            std::panic::resume_unwind(panic);
                         }
-                        let _ = done_tx.send(rows.end - rows.start);
-                        c += threads;
+                        // A writer that stopped on an error has dropped its end; the
+                        // others still take their parts, so nobody waits for this chunk.
+                        let parts = [chunk.csv, chunk.stimulus, chunk.expected];
+                        for (tx, bytes) in part_txs.iter().zip(parts) {
+                            let _ = tx.send((c, Some(bytes)));
+                        }
                     }
                 });
             }
-            drop(done_tx);
-            // Progress is a running sum, so the order chunks finish in does not matter.
-            let mut written = 0;
-            for n in done_rx {
-                written += n;
+            drop((job_rx, part_txs));
+            // Progress counts chunks whose vectors.csv bytes are written (they come back in
+            // order), so it is the same running sum on any thread count.
+            let mut written_chunks = 0u64;
+            let mut report = |written_chunks: u64| {
                 if let Some(p) = options.progress.as_mut() {
-                    p(written);
+                    p(chunk_range(written_chunks - 1).end - range.start);
+                }
+            };
+            'dispatch: for c in 0..chunks {
+                let mut parts: [Vec<u8>; 3] = Default::default();
+                if c >= buffers {
+                    for (f, free) in free_rxs.iter().enumerate() {
+                        // An error means that file's writer stopped: stop handing out.
+                        let Ok(buffer) = free.recv() else {
+                            break 'dispatch;
+                        };
+                        parts[f] = buffer;
+                        if f == 0 {
+                            written_chunks += 1;
+                            report(written_chunks);
+                        }
+                    }
+                }
+                if job_tx.send((c, parts)).is_err() {
+                    break;
                 }
             }
-        });
-        let [csv, stim, exp] = files;
-        Ok([csv.finish()?, stim.finish()?, exp.finish()?])
+            drop(job_tx);
+            // The vectors.csv writer ends, dropping its end, when the last chunk is in.
+            for _ in free_rxs[0].iter() {
+                written_chunks += 1;
+                report(written_chunks);
+            }
+            drop(free_rxs);
+            let mut finished = writers.into_iter().map(|w| {
+                w.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            });
+            let mut next = || finished.next().expect("three writers");
+            let (csv, stim, exp) = (next(), next(), next());
+            Ok([csv?, stim?, exp?])
+        })
     })();
     let finished =
         result.and_then(|[csv, stim, exp]| Ok([csv.finish()?, stim.finish()?, exp.finish()?]));
@@ -826,11 +858,13 @@ pub fn write(
         remove_temporaries(dir);
         return Err(e);
     }
+    staging.commit()?;
     Ok(manifest)
 }
 
-/// Removes whatever temporary files an unfinished [`write`] left in `dir`.
-fn remove_temporaries(dir: &Path) {
+/// Removes whatever temporary files an unfinished [`write`] (or [`write_selection`] of the
+/// gate-level grader) left in `dir`. The command line calls it when interrupted by a signal.
+pub fn remove_temporaries(dir: &Path) {
     for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX, MANIFEST_JSON] {
         let _ = std::fs::remove_file(dir.join(format!(".{name}.tmp")));
     }
@@ -848,19 +882,124 @@ pub struct VectorSet {
     pub expected: Vec<Outputs>,
 }
 
-/// Reads the manifest of the set in `dir`.
+/// Reads the manifest of the set in `dir` and verifies the set against it (see
+/// [`verify_files`]): every reader of a set goes through here, so a set whose files were
+/// edited, truncated or left from another run is refused before anything is judged.
 pub fn read_manifest(dir: &Path) -> Result<Manifest> {
+    let manifest = read_manifest_unverified(dir)?;
+    verify_files(dir, &manifest)?;
+    Ok(manifest)
+}
+
+/// Reads the manifest of the set in `dir` without looking at the data files (for tools that
+/// report on a set's provenance; readers of the data use [`read_manifest`]).
+pub fn read_manifest_unverified(dir: &Path) -> Result<Manifest> {
     let path = dir.join(MANIFEST_JSON);
     let text = std::fs::read_to_string(&path).map_err(|e| Error::io(&path, e))?;
-    serde_json::from_str(&text).map_err(|e| {
-        Error::problem(
+    Manifest::from_json(&text, &path.display().to_string())
+}
+
+impl Manifest {
+    /// Reads a manifest from its JSON text; `file` names it in messages.
+    pub fn from_json(text: &str, file: &str) -> Result<Manifest> {
+        serde_json::from_str(text).map_err(|e| {
+            Error::problem(
+                Problem::new(file, format!("not an arithvec manifest: {e}")).at_line(e.line()),
+            )
+        })
+    }
+}
+
+/// Checks the data files of the set in `dir` against `manifest`: the manifest must list
+/// `vectors.csv`, `stimulus.hex` and `expected.hex` once each, and each file must have the
+/// recorded size (checked first, from the file system, so a truncated file is refused at
+/// once) and SHA-256 (one streaming pass over the file; the files are hashed on parallel
+/// threads). A mismatch is bad input naming the file.
+pub fn verify_files(dir: &Path, manifest: &Manifest) -> Result<()> {
+    let mpath = dir.join(MANIFEST_JSON).display().to_string();
+    let mut records = Vec::new();
+    for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX] {
+        let mut found = manifest.files.iter().filter(|f| f.name == name);
+        match (found.next(), found.next()) {
+            (Some(rec), None) => records.push(rec),
+            (None, _) => {
+                return Err(Error::problem(
+                    Problem::new(mpath, format!("lists no {name}; regenerate the set"))
+                        .field("files"),
+                ))
+            }
+            (Some(_), Some(_)) => {
+                return Err(Error::problem(
+                    Problem::new(mpath, format!("lists {name} twice; regenerate the set"))
+                        .field("files"),
+                ))
+            }
+        }
+    }
+    for rec in &records {
+        let path = dir.join(&rec.name);
+        let size = std::fs::metadata(&path)
+            .map_err(|e| Error::io(&path, e))?
+            .len();
+        if size != rec.bytes {
+            return Err(Error::problem(
+                Problem::new(
+                    path.display().to_string(),
+                    format!(
+                        "is {size} bytes but manifest.json records {} (truncated, edited or \
+                         from another run?); regenerate the set",
+                        rec.bytes
+                    ),
+                )
+                .field("bytes"),
+            ));
+        }
+    }
+    let results: Vec<Result<()>> = std::thread::scope(|scope| {
+        let handles: Vec<_> = records
+            .iter()
+            .map(|rec| scope.spawn(move || verify_file(&dir.join(&rec.name), rec)))
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| h.join().unwrap_or_else(|p| std::panic::resume_unwind(p)))
+            .collect()
+    });
+    results.into_iter().collect()
+}
+
+/// Hashes one file in a single streaming pass and compares it with its record.
+fn verify_file(path: &Path, rec: &FileRecord) -> Result<()> {
+    use std::io::Read;
+    let mut file = File::open(path).map_err(|e| Error::io(path, e))?;
+    let mut hasher = Sha256::new();
+    let mut buf = vec![0u8; 1 << 20];
+    let mut bytes = 0u64;
+    loop {
+        let n = match file.read(&mut buf) {
+            Ok(0) => break,
+            Ok(n) => n,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+            Err(e) => return Err(Error::io(path, e)),
+        };
+        hasher.update(&buf[..n]);
+        bytes += n as u64;
+    }
+    let digest = hex_of(&hasher.finalize());
+    if bytes != rec.bytes || digest != rec.sha256 {
+        return Err(Error::problem(
             Problem::new(
                 path.display().to_string(),
-                format!("not an arithvec manifest: {e}"),
+                format!(
+                    "does not match manifest.json: SHA-256 {digest}, recorded {} (edited, \
+                     truncated or from another run?); regenerate the set",
+                    rec.sha256
+                ),
             )
-            .at_line(e.line()),
-        )
-    })
+            .field("sha256"),
+        ));
+    }
+    Ok(())
 }
 
 impl VectorSet {
@@ -893,7 +1032,9 @@ impl VectorSet {
             let mut reader = BufReader::new(file);
             let packer = Packer::new(word);
             let mut line = String::new();
-            let mut rows = Vec::with_capacity(manifest.vectors as usize);
+            // The manifest's count is not trusted for the allocation: a damaged one could ask
+            // for more memory than the machine has (found by fuzzing the manifest reader).
+            let mut rows = Vec::with_capacity(manifest.vectors.min(1 << 16) as usize);
             let mut hasher = Sha256::new();
             let mut n = 0;
             loop {

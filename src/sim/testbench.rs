@@ -46,8 +46,11 @@ impl Hdl {
 pub struct TestbenchOptions {
     /// The language.
     pub hdl: Hdl,
-    /// How many vectors the stimulus file holds (the manifest's `total`).
+    /// How many vectors the stimulus file holds (the manifest's `vectors`).
     pub vectors: u64,
+    /// The global index of the stimulus file's first vector (the manifest's `first_index`;
+    /// non-zero for a shard), so the log names every vector by its index in the whole set.
+    pub first_index: u64,
     /// How long to wait after applying a vector before sampling the outputs, in time units
     /// (Verilog: the testbench's time unit; VHDL: nanoseconds). At least 1.
     pub settle: u32,
@@ -61,6 +64,7 @@ impl TestbenchOptions {
         TestbenchOptions {
             hdl,
             vectors,
+            first_index: 0,
             settle: 1,
             self_check: false,
         }
@@ -178,6 +182,28 @@ impl<'a> Plan<'a> {
                     "{} vectors is more than a testbench can index ({MAX_TESTBENCH_VECTORS})",
                     options.vectors
                 ),
+            ));
+        }
+        let last = options
+            .first_index
+            .checked_add(options.vectors.saturating_sub(1));
+        // VHDL integers are 32-bit (GHDL), so the logged index must stay below 2^31 there;
+        // the Verilog testbench keeps the first index in 64 bits.
+        if options.hdl == Hdl::Vhdl && last.is_none_or(|l| l > i32::MAX as u64) {
+            problems.push(Problem::new(
+                "--vectors",
+                format!(
+                    "vectors {}..{} of the set go past the largest index a VHDL testbench can \
+                     log ({}); use the Verilog testbench or smaller shards",
+                    options.first_index,
+                    last.map_or("2^64".to_string(), |l| l.to_string()),
+                    i32::MAX
+                ),
+            ));
+        } else if last.is_none() {
+            problems.push(Problem::new(
+                "--vectors",
+                "the shard's first index plus its vector count overflows",
             ));
         }
         if options.settle == 0 || options.settle > i32::MAX as u32 {
@@ -362,6 +388,15 @@ impl<'a> Plan<'a> {
         let _ = writeln!(out, "module {};", self.name);
         out.push_str("  // Vector count and packed word widths, from arithvec's layout.\n");
         let _ = writeln!(out, "  localparam integer VECTORS = {vectors};");
+        if self.options.first_index > 0 {
+            let _ = writeln!(
+                out,
+                "  // Global index of the first vector: this set is a shard, and the log names\n\
+                 \x20 // every vector by its index in the whole set.\n\
+                 \x20 localparam [63:0] FIRST_INDEX = 64'd{};",
+                self.options.first_index
+            );
+        }
         let _ = writeln!(out, "  localparam integer STIMULUS_BITS = {};", stim.width);
         if check {
             let _ = writeln!(out, "  localparam integer EXPECTED_BITS = {};", exp.width);
@@ -480,9 +515,10 @@ impl<'a> Plan<'a> {
         let _ = writeln!(out, "      #{};", self.options.settle);
         let formats: Vec<&str> = self.all_fields().map(|_| "%h").collect();
         let args: Vec<String> = self.all_fields().map(signal_name).collect();
+        let logged = self.verilog_logged_index();
         let _ = writeln!(
             out,
-            "      $fdisplay(v_fd, \"%0d,{}\", v_index, {});",
+            "      $fdisplay(v_fd, \"%0d,{}\", {logged}, {});",
             formats.join(","),
             args.join(", ")
         );
@@ -495,7 +531,7 @@ impl<'a> Plan<'a> {
                  \x20       v_mismatches = v_mismatches + 1;\n\
                  \x20       if (v_mismatches <= {MISMATCH_REPORT_LIMIT})\n\
                  \x20         $display(\"arithvec-tb: vector %0d: outputs %h, expected %h\",\n\
-                 \x20                  v_index, v_got, v_expected_word[EXPECTED_BITS-1:0]);\n\
+                 \x20                  {logged}, v_got, v_expected_word[EXPECTED_BITS-1:0]);\n\
                  \x20     end"
             );
         }
@@ -516,6 +552,24 @@ impl<'a> Plan<'a> {
         out.push_str("    $finish;\n  end\nendmodule\n");
         out.push_str("/* verilator lint_on DECLFILENAME */\n");
         out
+    }
+
+    /// The Verilog expression of the logged (global) index of vector `v_index`.
+    fn verilog_logged_index(&self) -> &'static str {
+        if self.options.first_index > 0 {
+            "FIRST_INDEX + v_index"
+        } else {
+            "v_index"
+        }
+    }
+
+    /// The VHDL expression of the logged (global) index of vector `v_index`.
+    fn vhdl_logged_index(&self) -> &'static str {
+        if self.options.first_index > 0 {
+            "c_first_index + v_index"
+        } else {
+            "v_index"
+        }
     }
 
     /// Emits the load of one hex file into its array, with the check that every word was read.
@@ -599,6 +653,15 @@ impl<'a> Plan<'a> {
             stim.width,
             stim.hex_digits()
         );
+        if self.options.first_index > 0 {
+            let _ = writeln!(
+                out,
+                "  -- Global index of the first vector: this set is a shard, and the log names\n\
+                 \x20 -- every vector by its index in the whole set.\n\
+                 \x20 constant c_first_index : natural := {};",
+                self.options.first_index
+            );
+        }
         if check {
             let _ = writeln!(
                 out,
@@ -694,7 +757,11 @@ impl<'a> Plan<'a> {
             let _ = writeln!(out, "      {} <= v_word{};", signal_name(f), vhdl_select(f));
         }
         let _ = writeln!(out, "      wait for {} ns;", self.options.settle);
-        out.push_str("      write(v_line, integer'image(v_index));\n");
+        let _ = writeln!(
+            out,
+            "      write(v_line, integer'image({}));",
+            self.vhdl_logged_index()
+        );
         for f in self.all_fields() {
             let _ = writeln!(
                 out,
@@ -704,6 +771,7 @@ impl<'a> Plan<'a> {
         }
         out.push_str("      writeline(v_results_file, v_line);\n");
         if check {
+            let logged = self.vhdl_logged_index();
             let packed: Vec<String> = exp.fields.iter().map(signal_name).collect();
             let lone = exp.fields.len() == 1 && !is_vector(&exp.fields[0]);
             if lone {
@@ -719,7 +787,7 @@ impl<'a> Plan<'a> {
                  \x20     if to_x01(v_got) /= v_expected_word(c_expected_bits - 1 downto 0) then\n\
                  \x20       v_mismatches := v_mismatches + 1;\n\
                  \x20       if v_mismatches <= {MISMATCH_REPORT_LIMIT} then\n\
-                 \x20         report \"arithvec-tb: vector \" & integer'image(v_index) & \": outputs \"\n\
+                 \x20         report \"arithvec-tb: vector \" & integer'image({logged}) & \": outputs \"\n\
                  \x20           & to_hstring(f_digits(v_got)) & \", expected \"\n\
                  \x20           & to_hstring(f_digits(v_expected_word(c_expected_bits - 1 downto 0)))\n\
                  \x20           severity warning;\n\

@@ -17,6 +17,11 @@ use toml::Spanned;
 
 use crate::error::{Error, Problem, Result};
 
+mod conventions;
+use conventions::ConventionKey;
+mod ops;
+pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
+
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
 
@@ -39,6 +44,18 @@ pub enum Operation {
     Decrement,
     /// Orders `a` against `b` by value under the encoding.
     Compare,
+    /// `a << amount`, zeros shifted in.
+    Shl,
+    /// `a >> amount`, zeros shifted in.
+    Shr,
+    /// `a >> amount`, copies of the sign bit shifted in (twos only).
+    Sra,
+    /// `a` rotated left by `amount` modulo N.
+    Rol,
+    /// `a` rotated right by `amount` modulo N.
+    Ror,
+    /// `a * b`, an R-bit result (default R = 2N).
+    Mul,
 }
 
 impl Operation {
@@ -53,6 +70,16 @@ impl Operation {
         Operation::Compare,
     ];
 
+    /// The shift, rotate and multiply operations (models in `arith::ops`).
+    pub const EXTENDED: [Operation; 6] = [
+        Operation::Shl,
+        Operation::Shr,
+        Operation::Sra,
+        Operation::Rol,
+        Operation::Ror,
+        Operation::Mul,
+    ];
+
     /// The spec-file spelling.
     pub fn name(self) -> &'static str {
         match self {
@@ -63,6 +90,12 @@ impl Operation {
             Operation::Increment => "increment",
             Operation::Decrement => "decrement",
             Operation::Compare => "compare",
+            Operation::Shl => "shl",
+            Operation::Shr => "shr",
+            Operation::Sra => "sra",
+            Operation::Rol => "rol",
+            Operation::Ror => "ror",
+            Operation::Mul => "mul",
         }
     }
 
@@ -70,7 +103,11 @@ impl Operation {
     pub fn is_binary(self) -> bool {
         matches!(
             self,
-            Operation::Add | Operation::Sub | Operation::AddSub | Operation::Compare
+            Operation::Add
+                | Operation::Sub
+                | Operation::AddSub
+                | Operation::Compare
+                | Operation::Mul
         )
     }
 
@@ -88,6 +125,10 @@ impl Operation {
                 &[A, Result, CarryOut, Overflow, Zero, Negative]
             }
             Operation::Compare => &[A, B, Less, Equal, Greater],
+            Operation::Shl | Operation::Shr | Operation::Sra | Operation::Rol | Operation::Ror => {
+                &[A, Amount, Result, CarryOut, Zero, Negative]
+            }
+            Operation::Mul => &[A, B, Result, Overflow, Zero, Negative],
         }
     }
 }
@@ -184,11 +225,13 @@ pub enum Signal {
     Equal,
     /// Compare: a > b.
     Greater,
+    /// Shift amount (width `amount_width`).
+    Amount,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 12] = [
+    pub const ALL: [Signal; 13] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -201,6 +244,7 @@ impl Signal {
         Signal::Less,
         Signal::Equal,
         Signal::Greater,
+        Signal::Amount,
     ];
 
     /// The key used in `[ports]`.
@@ -218,6 +262,7 @@ impl Signal {
             Signal::Less => "less",
             Signal::Equal => "equal",
             Signal::Greater => "greater",
+            Signal::Amount => "amount",
         }
     }
 
@@ -228,7 +273,10 @@ impl Signal {
 
     /// True for inputs of the unit.
     pub fn is_input(self) -> bool {
-        matches!(self, Signal::A | Signal::B | Signal::CarryIn | Signal::Mode)
+        matches!(
+            self,
+            Signal::A | Signal::B | Signal::CarryIn | Signal::Mode | Signal::Amount
+        )
     }
 
     /// The signal's width in bits for a unit of operand width `width`.
@@ -271,6 +319,27 @@ pub enum NegativeZero {
     Positive,
     /// Either zero is accepted when the result's value is zero.
     Either,
+}
+
+/// Which datapath an offset-binary add, sub or addsub unit's carry_out comes from. Both are
+/// built: they give the same result and differ in the carry out of the top bit exactly when
+/// the adder's two operand codes have equal top bits (class `offset.carry_source`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum OffsetCarry {
+    /// The inner two's-complement datapath: each operand's top bit is inverted on the way in,
+    /// the result's on the way out, and the carry is the inner adder's (the default). At 8
+    /// bits 0x80 + 0x80 carries out 0.
+    Inner,
+    /// The codes are added (or subtracted) as they are and the result's top bit is inverted;
+    /// the carry is that adder's. At 8 bits 0x80 + 0x80 carries out 1.
+    Codes,
+}
+
+impl OffsetCarry {
+    fn is_inner(&self) -> bool {
+        *self == OffsetCarry::Inner
+    }
 }
 
 /// When the zero flag is set.
@@ -323,6 +392,10 @@ pub struct Conventions {
     pub negative_zero: NegativeZero,
     /// See [`ZeroFlag`].
     pub zero_flag: ZeroFlag,
+    /// See [`OffsetCarry`]. Left out of the normalised JSON when it is the default, so the
+    /// identity of every spec written before the key existed is unchanged.
+    #[serde(skip_serializing_if = "OffsetCarry::is_inner")]
+    pub offset_carry: OffsetCarry,
 }
 
 impl Default for Conventions {
@@ -332,6 +405,7 @@ impl Default for Conventions {
             carry_in: CarryInConvention::Borrow,
             negative_zero: NegativeZero::Hardware,
             zero_flag: ZeroFlag::Value,
+            offset_carry: OffsetCarry::Inner,
         }
     }
 }
@@ -399,6 +473,9 @@ pub struct Spec {
     /// The DUT to instantiate in testbenches and netlists, if given.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub dut: Option<Dut>,
+    /// Options of the shift, rotate and multiply operations (None for the others).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub options: Option<OpOptions>,
 }
 
 impl Spec {
@@ -454,6 +531,10 @@ impl Spec {
             self.width,
             q(self.encoding.name())
         );
+        let (option_root, option_conv) = self.options_toml();
+        if !option_root.is_empty() {
+            t.insert_str(t.len() - "\n[ports]\n".len(), &option_root);
+        }
         for sig in Signal::ALL {
             if let Some(p) = self.ports.get(sig) {
                 t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
@@ -461,36 +542,36 @@ impl Spec {
         }
         let c = &self.conventions;
         let mut conv = String::new();
-        if self.subtracts() && self.encoding.is_binary_datapath() && self.has(Signal::CarryOut) {
-            let v = match c.carry_out {
-                CarryOutConvention::Borrow => "borrow",
-                CarryOutConvention::Carry => "carry",
+        for key in ConventionKey::ALL {
+            if self.convention_without_effect(key).is_some() {
+                continue;
+            }
+            let v = match key {
+                ConventionKey::CarryOut => match c.carry_out {
+                    CarryOutConvention::Borrow => "borrow",
+                    CarryOutConvention::Carry => "carry",
+                },
+                ConventionKey::CarryIn => match c.carry_in {
+                    CarryInConvention::Borrow => "borrow",
+                    CarryInConvention::Carry => "carry",
+                },
+                ConventionKey::NegativeZero => match c.negative_zero {
+                    NegativeZero::Hardware => "hardware",
+                    NegativeZero::Positive => "positive",
+                    NegativeZero::Either => "either",
+                },
+                ConventionKey::ZeroFlag => match c.zero_flag {
+                    ZeroFlag::Value => "value",
+                    ZeroFlag::Bits => "bits",
+                },
+                ConventionKey::OffsetCarry => match c.offset_carry {
+                    OffsetCarry::Inner => "inner",
+                    OffsetCarry::Codes => "codes",
+                },
             };
-            conv.push_str(&format!("carry_out = {}\n", q(v)));
+            conv.push_str(&format!("{} = {}\n", key.name(), q(v)));
         }
-        if matches!(self.operation, Operation::Sub | Operation::AddSub) && self.has(Signal::CarryIn)
-        {
-            let v = match c.carry_in {
-                CarryInConvention::Borrow => "borrow",
-                CarryInConvention::Carry => "carry",
-            };
-            conv.push_str(&format!("carry_in = {}\n", q(v)));
-        }
-        if self.encoding.has_negative_zero() && self.operation != Operation::Compare {
-            let v = match c.negative_zero {
-                NegativeZero::Hardware => "hardware",
-                NegativeZero::Positive => "positive",
-                NegativeZero::Either => "either",
-            };
-            conv.push_str(&format!("negative_zero = {}\n", q(v)));
-        }
-        if self.has(Signal::Zero) && self.encoding != Encoding::Offset {
-            let v = match c.zero_flag {
-                ZeroFlag::Value => "value",
-                ZeroFlag::Bits => "bits",
-            };
-            conv.push_str(&format!("zero_flag = {}\n", q(v)));
-        }
+        conv.push_str(&option_conv);
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
             t.push_str(&conv);
@@ -541,6 +622,7 @@ impl Spec {
             conventions: Conventions::default(),
             random: RandomSettings::default(),
             dut: None,
+            options: Spec::default_options(operation, encoding, width),
         }
     }
 }
@@ -736,6 +818,8 @@ impl<'a> Reader<'a> {
                 "conventions",
                 "random",
                 "dut",
+                ops::ROOT_KEYS[0],
+                ops::ROOT_KEYS[1],
             ],
         );
         let name = self.string(root, "", "name");
@@ -756,7 +840,11 @@ impl<'a> Reader<'a> {
             root,
             "",
             "operation",
-            &Operation::ALL.map(|o| (o.name(), o)),
+            &Operation::ALL
+                .into_iter()
+                .chain(Operation::EXTENDED)
+                .map(|o| (o.name(), o))
+                .collect::<Vec<_>>(),
         );
         let encoding = self.choice(root, "", "encoding", &Encoding::ALL.map(|e| (e.name(), e)));
         let width = self.integer(root, "", "width");
@@ -817,10 +905,20 @@ impl<'a> Reader<'a> {
             conventions: Conventions::default(),
             random: RandomSettings::default(),
             dut: None,
+            options: None,
         };
+        spec.options = Spec::default_options(spec.operation, spec.encoding, spec.width);
+        if let Some(why) = spec.operation.refuses(spec.encoding) {
+            let at = Self::get(root, "encoding").map_or(0..0, |(_, v)| v.span());
+            self.problem(at, "encoding", why);
+        }
+        self.read_option_widths(root, &mut spec);
         if let Some(t) = conv_table {
             self.read_conventions(t, &mut spec);
+            self.read_option_conventions(t, &mut spec);
         }
+        self.require_addsub_carry_in(&spec, conv_table, ports_table);
+        self.check_options(&spec);
         if let Some(t) = random_table {
             self.read_random(t, &mut spec.random);
         }
@@ -937,9 +1035,21 @@ impl<'a> Reader<'a> {
         self.check_keys(
             t,
             "conventions.",
-            &["carry_out", "carry_in", "negative_zero", "zero_flag"],
+            &[
+                "carry_out",
+                "carry_in",
+                "negative_zero",
+                "zero_flag",
+                "offset_carry",
+                ops::CONVENTION_KEYS[0],
+                ops::CONVENTION_KEYS[1],
+                ops::CONVENTION_KEYS[2],
+            ],
         );
         let p = "conventions.";
+        // Every value is read first: whether one key has an effect can depend on another
+        // (negative_zero and zero_flag).
+        let mut present: Vec<(ConventionKey, usize)> = Vec::new();
         if let Some((v, at)) = self.choice(
             t,
             p,
@@ -950,18 +1060,7 @@ impl<'a> Reader<'a> {
             ],
         ) {
             spec.conventions.carry_out = v;
-            if !(spec.subtracts()
-                && spec.encoding.is_binary_datapath()
-                && spec.has(Signal::CarryOut))
-            {
-                self.problem(
-                    at..at,
-                    "conventions.carry_out",
-                    "has no effect: it applies to a carry_out port of a subtracting unit \
-                     (sub, addsub, negate, decrement) in unsigned, twos or offset encoding; \
-                     remove it",
-                );
-            }
+            present.push((ConventionKey::CarryOut, at));
         }
         if let Some((v, at)) = self.choice(
             t,
@@ -973,16 +1072,7 @@ impl<'a> Reader<'a> {
             ],
         ) {
             spec.conventions.carry_in = v;
-            if !(matches!(spec.operation, Operation::Sub | Operation::AddSub)
-                && spec.has(Signal::CarryIn))
-            {
-                self.problem(
-                    at..at,
-                    "conventions.carry_in",
-                    "has no effect: it applies to the carry_in port of a sub or addsub unit; \
-                     remove it",
-                );
-            }
+            present.push((ConventionKey::CarryIn, at));
         }
         if let Some((v, at)) = self.choice(
             t,
@@ -995,13 +1085,7 @@ impl<'a> Reader<'a> {
             ],
         ) {
             spec.conventions.negative_zero = v;
-            if !spec.encoding.has_negative_zero() || spec.operation == Operation::Compare {
-                self.problem(
-                    at..at,
-                    "conventions.negative_zero",
-                    "has no effect: it applies to the result of a ones or signmag unit; remove it",
-                );
-            }
+            present.push((ConventionKey::NegativeZero, at));
         }
         if let Some((v, at)) = self.choice(
             t,
@@ -1014,16 +1098,55 @@ impl<'a> Reader<'a> {
                 self.problem(
                     at..at,
                     "conventions.zero_flag",
-                    "\"bits\" is not meaningful for offset binary, whose zero is 10..0; use \"value\"",
+                    "\"bits\" is not meaningful for offset binary, whose zero is 10..0; remove \
+                     the key (the zero flag is set for the value 0)",
                 );
-            } else if !spec.has(Signal::Zero) {
-                self.problem(
-                    at..at,
-                    "conventions.zero_flag",
-                    "has no effect: the unit has no zero port; remove it",
-                );
+            } else {
+                present.push((ConventionKey::ZeroFlag, at));
             }
         }
+        if let Some((v, at)) = self.choice(
+            t,
+            p,
+            "offset_carry",
+            &[("inner", OffsetCarry::Inner), ("codes", OffsetCarry::Codes)],
+        ) {
+            spec.conventions.offset_carry = v;
+            present.push((ConventionKey::OffsetCarry, at));
+        }
+        for (key, at) in present {
+            if let Some(why) = spec.convention_without_effect(key) {
+                self.problem(at..at, &format!("conventions.{}", key.name()), why);
+            }
+        }
+    }
+
+    /// An addsub unit's carry_in port means a carry in one mode and, in the other, either a
+    /// borrow or the raw adder carry-in; both are built, so the spec must say which.
+    fn require_addsub_carry_in(
+        &mut self,
+        spec: &Spec,
+        conventions: Option<&Table<'_>>,
+        ports: Option<&Table<'_>>,
+    ) {
+        if spec.operation != Operation::AddSub || !spec.has(Signal::CarryIn) {
+            return;
+        }
+        if conventions.is_some_and(|t| Self::get(t, "carry_in").is_some()) {
+            return;
+        }
+        let at = ports
+            .and_then(|t| Self::get(t, "carry_in"))
+            .map_or(0..0, |(k, _)| k.span());
+        self.problem(
+            at,
+            "conventions.carry_in",
+            "an addsub unit with a carry_in port must say what the port means when subtracting: \
+             carry_in = \"borrow\" (mode 1 computes a - b - cin, as a borrow-in) or \
+             carry_in = \"carry\" (the port feeds the adder's carry-in, as in a plain \
+             a + (b ^ m) + cin unit, so mode 1 computes a - b - 1 + cin); add one of them \
+             under [conventions]",
+        );
     }
 
     fn read_random(&mut self, t: &Table<'_>, random: &mut RandomSettings) {

@@ -10,23 +10,26 @@
 
 use std::collections::BTreeMap;
 use std::io::BufRead;
-use std::sync::{mpsc, Arc, Mutex};
+use std::sync::Arc;
+
+use crossbeam_channel as channel;
 
 use serde::{Deserialize, Serialize};
 
 use crate::arith::encoding::Value;
 use crate::arith::model::{Inputs, Outputs};
-use crate::arith::word::{Word, LIMBS};
+use crate::arith::word::{Word, LIMBS, MAX_WIDTH};
 use crate::corners::classes::Hits;
 use crate::corners::generate::{Generator, RandomStream};
 use crate::error::Error;
 use crate::error::Problem;
-use crate::sets::vectorset::{spec_identity, Manifest};
+use crate::sets::vectorset::{sha256_hex, spec_identity, Manifest};
 use crate::sim::log::{find_newline, LineFormat, LineOutcome, LogReader, LogRow};
 use crate::spec::{Encoding, Signal, Spec};
 use crate::verdict::coverage::{
     summarise, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,
 };
+use crate::verdict::seen::{self, RunRecord, SeenIndices, SetIdentity};
 
 /// The plain statement every report carries.
 pub const EVIDENCE_NOTE: &str = "Coverage of corner classes is evidence, not proof of \
@@ -47,6 +50,10 @@ pub struct CheckOptions {
     /// Threads judging and classifying rows (0: one per core, at most 8; 1: all on the
     /// calling thread). The report is the same for every value.
     pub threads: usize,
+    /// Compare only these outputs (the user narrowed the check on purpose; the reports say
+    /// so). None, the default: every output the spec names must be compared, and an output
+    /// the log lacks fails the run ("outputs never compared").
+    pub outputs: Option<Vec<Signal>>,
 }
 
 impl Default for CheckOptions {
@@ -57,6 +64,7 @@ impl Default for CheckOptions {
             require: None,
             repro_command: "arithvec repro SPEC".into(),
             threads: 0,
+            outputs: None,
         }
     }
 }
@@ -153,6 +161,10 @@ pub struct LogProblems {
     pub bad_line_count: u64,
     /// Operands out of step with the vector set.
     pub out_of_step: Option<OutOfStep>,
+    /// In a merged report: index ranges that more than one merged run checked (at most 20;
+    /// their rows are counted in `duplicate_count`).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub overlapping: Vec<[u64; 2]>,
 }
 
 impl LogProblems {
@@ -224,6 +236,39 @@ pub struct CheckReport {
     pub note: String,
     /// Exact coverage counts, for merge.
     pub counts: CoverageCounts,
+    /// Which indices of which vector set were checked, exactly (one entry per set).
+    pub seen: Vec<SeenIndices>,
+    /// The check runs this report is made of (one for a check; every merged run for merge).
+    pub runs: Vec<RunRecord>,
+    /// Per output port of the spec: whether it was compared, and how many rows had it wrong
+    /// or unknown (the headline tally).
+    #[serde(default)]
+    pub output_ports: Vec<OutputTally>,
+    /// True when the user narrowed the comparison on purpose (`--outputs`): ports with
+    /// `compared: false` were left out deliberately, not forgotten.
+    #[serde(default)]
+    pub outputs_narrowed: bool,
+    /// Why the verdict is what it is, one short reason each ("4 mismatches (co: 4)").
+    #[serde(default)]
+    pub verdict_reasons: Vec<String>,
+    /// The vector set's seed, when a set was given.
+    #[serde(default)]
+    pub seed: Option<u64>,
+}
+
+/// One output port's line in the headline tally.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct OutputTally {
+    /// The DUT's port name.
+    pub port: String,
+    /// arithvec's signal key.
+    pub signal: String,
+    /// Whether the log's values of this port were compared with the model.
+    pub compared: bool,
+    /// Rows where a known bit of this port was wrong.
+    pub wrong: u64,
+    /// Rows where this port had x/z bits (and operands were known).
+    pub unknown: u64,
 }
 
 /// Where a worker gets a vector's inputs by index: the directed list, or the random stream,
@@ -290,6 +335,17 @@ impl Seen {
             .get((i / 64) as usize)
             .is_some_and(|w| w & (1 << (i % 64)) != 0)
     }
+
+    /// Every marked index as inclusive ranges, ascending, joined where adjacent.
+    fn ranges(&self) -> Vec<[u64; 2]> {
+        let mut ranges = Vec::new();
+        seen::bitmap_ranges(&self.words, &mut ranges);
+        // The sparse indices are all at or above DENSE, so after the bitmap's.
+        for &i in &self.sparse {
+            seen::push_range(&mut ranges, i, i);
+        }
+        ranges
+    }
 }
 
 /// One log field as read: value bits and the mask of x/z bits.
@@ -314,6 +370,11 @@ struct Shared {
     fields: Vec<(Signal, u32)>,
     /// How many of `fields` are inputs.
     inputs: usize,
+    /// Every output of the spec (signal, port name) and whether it is compared (it is in
+    /// `fields`).
+    outputs: Vec<(Signal, String, bool)>,
+    /// The vector set's seed, when a set was given.
+    seed: Option<u64>,
     options: CheckOptions,
     /// 64-bit limbs stored per value (the unit's width in limbs).
     limbs: usize,
@@ -378,6 +439,8 @@ struct Verdicts {
     /// The batch's first failures (at most `max_failures`), in log order.
     failures: Vec<Failure>,
     out_of_step: Option<OutOfStep>,
+    /// Per compared output (in `fields` order after the inputs): rows wrong, rows unknown.
+    ports: Vec<(u64, u64)>,
 }
 
 /// A worker's own state: its coverage share and scratch space.
@@ -435,11 +498,11 @@ impl Worker {
                 from_log = true;
                 if narrow {
                     operand_unknown |= values[k * 2 + 1] != 0;
-                    inputs.set(sig, Word::from_u64(values[k * 2]));
+                    inputs.set(sig, Word::from_u64(values[k * 2] & !values[k * 2 + 1]));
                 } else {
                     let o = shared.observed(values, k);
                     operand_unknown |= !o.unknown.is_zero();
-                    inputs.set(sig, o.bits);
+                    inputs.set(sig, o.bits.and(&o.unknown.not(MAX_WIDTH)));
                 }
             }
         }
@@ -497,6 +560,9 @@ impl Worker {
             }
         }
         let failed = wrong || unknown;
+        if failed && !operand_unknown {
+            tally_ports(shared, values, row.present, &expected, &mut v.ports);
+        }
         self.coverage.record(&self.hits, failed);
         if wrong {
             v.failed += 1;
@@ -514,6 +580,37 @@ impl Worker {
                 shared, &self.hits, index, line, &inputs, &expected, &field, wrong,
             );
             v.failures.push(f);
+        }
+    }
+}
+
+/// Adds a failing row to the per-port tally: for each compared output, whether a known bit
+/// differs from the model or a bit is x/z. Only failing rows come here, so the cost is off
+/// the hot path.
+fn tally_ports(
+    shared: &Shared,
+    values: &[u64],
+    present: u16,
+    expected: &Outputs,
+    ports: &mut Vec<(u64, u64)>,
+) {
+    let outputs = &shared.fields[shared.inputs..];
+    if ports.len() < outputs.len() {
+        ports.resize(outputs.len(), (0, 0));
+    }
+    for (j, &(sig, w)) in outputs.iter().enumerate() {
+        let k = shared.inputs + j;
+        if present >> k & 1 == 0 {
+            continue;
+        }
+        let o = shared.observed(values, k);
+        let unknown = o.unknown.masked(w);
+        let e = expected.get(sig).masked(w);
+        let diff = o.bits.xor(&e).and(&unknown.not(w)).masked(w);
+        if !diff.is_zero() {
+            ports[j].0 += 1;
+        } else if !unknown.is_zero() {
+            ports[j].1 += 1;
         }
     }
 }
@@ -538,6 +635,13 @@ impl Merger {
         m.passed += v.passed;
         m.failed += v.failed;
         m.unknown += v.unknown;
+        if m.ports.len() < v.ports.len() {
+            m.ports.resize(v.ports.len(), (0, 0));
+        }
+        for (sum, (wrong, unknown)) in m.ports.iter_mut().zip(v.ports) {
+            sum.0 += wrong;
+            sum.1 += unknown;
+        }
         let room = self.max_failures.saturating_sub(m.failures.len());
         m.failures.extend(v.failures.into_iter().take(room));
         if let Some(s) = v.out_of_step {
@@ -571,15 +675,32 @@ struct Parsed {
 enum Job {
     Parse(Block, Batch, Arc<LineFormat>, Arc<str>),
     Judge(Batch),
+    /// Panics on the worker, to test that a failing worker cannot hang the caller.
+    #[cfg(test)]
+    Fail,
 }
 
 /// Finished work from a pool thread.
 enum Done {
     Parsed(Parsed),
     Judged(Verdicts, Batch),
+    /// The job panicked (a bug); the caller passes the panic on.
+    Panicked(Box<dyn std::any::Any + Send>),
 }
 
 impl Worker {
+    /// Does one pool job.
+    fn job(&mut self, shared: &Shared, job: Job) -> Done {
+        match job {
+            Job::Parse(block, batch, format, file) => {
+                Done::Parsed(self.parse(shared, block, batch, &format, &file))
+            }
+            Job::Judge(batch) => Done::Judged(self.run(shared, &batch), batch),
+            #[cfg(test)]
+            Job::Fail => panic!("a test job failed on purpose"),
+        }
+    }
+
     /// Parses the lines of `block` into a batch of staged rows.
     fn parse(
         &mut self,
@@ -647,13 +768,19 @@ fn stage_fields(shared: &Shared, row: &LogRow, values: &mut Vec<u64>) -> u16 {
 /// Bytes of log read per block: a few thousand lines of a narrow unit.
 const BLOCK_BYTES: usize = 256 * 1024;
 
-/// The worker threads of a parallel check and the work in flight.
+/// The worker threads of a parallel check and the work handed to them.
+///
+/// Jobs go out on one bounded multi-consumer channel (any idle worker takes the next one;
+/// a full queue makes the caller wait, which bounds memory) and every job comes back as
+/// exactly one message on the results channel, a worker's panic included. The caller blocks
+/// only on `results.recv()` while a message it knows of is outstanding, so no wake-up can be
+/// lost and nothing polls. The pool holds no results sender: once the jobs channel is closed
+/// and the workers have drained it, the results channel disconnects, which is how
+/// [`Checker::finish`] knows every job is back.
 struct Pool {
-    jobs: Option<mpsc::Sender<Job>>,
-    results: mpsc::Receiver<Done>,
+    jobs: Option<channel::Sender<Job>>,
+    results: channel::Receiver<Done>,
     workers: Vec<std::thread::JoinHandle<Coverage>>,
-    /// Jobs sent and not yet received back.
-    in_flight: usize,
     /// Verdicts received out of order, waiting for their turn.
     parked: BTreeMap<u64, Verdicts>,
     /// Parsed blocks received out of order, waiting for their turn.
@@ -665,32 +792,26 @@ struct Pool {
 
 impl Pool {
     fn start(shared: &Arc<Shared>, threads: usize) -> Pool {
-        let (job_tx, job_rx) = mpsc::channel::<Job>();
-        let job_rx = Arc::new(Mutex::new(job_rx));
-        let (result_tx, results) = mpsc::channel();
+        // A few jobs queued per worker keep them busy and memory bounded.
+        let (job_tx, job_rx) = channel::bounded::<Job>(2 * threads);
+        let (result_tx, results) = channel::unbounded();
         let workers = (0..threads)
             .map(|_| {
                 let shared = Arc::clone(shared);
-                let job_rx = Arc::clone(&job_rx);
+                let job_rx = job_rx.clone();
                 let result_tx = result_tx.clone();
                 std::thread::spawn(move || {
                     let mut worker = Worker::new(&shared);
-                    loop {
-                        // The lock is held only while taking one job.
-                        let job = match job_rx.lock() {
-                            Ok(rx) => rx.recv(),
-                            Err(_) => break,
-                        };
-                        let done = match job {
-                            Ok(Job::Parse(block, batch, format, file)) => {
-                                Done::Parsed(worker.parse(&shared, block, batch, &format, &file))
-                            }
-                            Ok(Job::Judge(batch)) => {
-                                Done::Judged(worker.run(&shared, &batch), batch)
-                            }
-                            Err(_) => break,
-                        };
-                        if result_tx.send(done).is_err() {
+                    for job in job_rx {
+                        // A panic (a bug: workers do not fail on input) is sent back like
+                        // any other result, so the caller never waits for a reply that
+                        // cannot come.
+                        let done = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+                            worker.job(&shared, job)
+                        }))
+                        .unwrap_or_else(Done::Panicked);
+                        let stop = matches!(done, Done::Panicked(_));
+                        if result_tx.send(done).is_err() || stop {
                             break;
                         }
                     }
@@ -702,7 +823,6 @@ impl Pool {
             jobs: Some(job_tx),
             results,
             workers,
-            in_flight: 0,
             parked: BTreeMap::new(),
             parsed: BTreeMap::new(),
             spare_batches: Vec::new(),
@@ -710,20 +830,21 @@ impl Pool {
         }
     }
 
-    /// Jobs in flight beyond which the caller waits: a few per worker keep them busy and
-    /// memory bounded.
-    fn limit(&self) -> usize {
-        3 * self.workers.len() + 1
+    /// Parsed blocks handed out and not yet taken back in order beyond which the caller
+    /// waits.
+    fn blocks_ahead(&self) -> u64 {
+        2 * self.workers.len() as u64 + 1
     }
 
+    /// Queues `job`, waiting while the queue is full.
     fn send(&mut self, job: Job) {
-        self.in_flight += 1;
         let sent = self
             .jobs
             .as_ref()
             .is_some_and(|jobs| jobs.send(job).is_ok());
         if !sent {
-            // Only possible when every worker is gone: receive() passes on why.
+            // Only possible when every worker is gone, each after sending back its panic:
+            // receive() passes it on.
             loop {
                 let _ = self.receive();
             }
@@ -746,40 +867,41 @@ impl Pool {
                     merger.merge(v);
                 }
             }
+            Done::Panicked(panic) => std::panic::resume_unwind(panic),
         }
     }
 
     /// Files whatever work is done, without waiting.
     fn accept_ready(&mut self, merger: &mut Merger) {
         while let Ok(done) = self.results.try_recv() {
-            self.in_flight -= 1;
             self.accept(done, merger);
         }
     }
 
-    /// Waits for one job to come back. A worker that died (it would be a bug: workers do
-    /// not fail on input) has its panic passed on rather than leaving the check hanging.
+    /// Waits for the next job to come back (the caller knows one is outstanding).
     fn receive(&mut self) -> Done {
-        loop {
-            match self
-                .results
-                .recv_timeout(std::time::Duration::from_millis(200))
-            {
-                Ok(done) => {
-                    self.in_flight -= 1;
-                    return done;
-                }
-                Err(_) => {
-                    if let Some(i) = self.workers.iter().position(|w| w.is_finished()) {
-                        let worker = self.workers.swap_remove(i);
-                        match worker.join() {
-                            Err(panic) => std::panic::resume_unwind(panic),
-                            Ok(_) => panic!("a check worker stopped early"),
-                        }
-                    }
-                }
-            }
+        match self.results.recv() {
+            Ok(Done::Panicked(panic)) => std::panic::resume_unwind(panic),
+            Ok(done) => done,
+            // Every worker ended: they end only when the jobs channel is closed or after
+            // sending back a panic, which would have come first.
+            Err(_) => panic!("the check workers stopped with work outstanding"),
         }
+    }
+
+    /// Closes the queue, files every outstanding result and returns the workers' coverage.
+    fn close(mut self, merger: &mut Merger) -> Vec<Coverage> {
+        self.jobs = None;
+        while let Ok(done) = self.results.recv() {
+            self.accept(done, merger);
+        }
+        self.workers
+            .into_iter()
+            .map(|w| {
+                w.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            })
+            .collect()
     }
 }
 
@@ -807,6 +929,8 @@ pub struct Checker<'g> {
     generator: &'g Generator,
     logs: Vec<String>,
     seen: Seen,
+    /// The vector set the indices refer to, when one was given.
+    set_identity: Option<SetIdentity>,
     position: u64,
     problems: LogProblems,
     /// The batch being filled.
@@ -857,6 +981,36 @@ impl<'g> Checker<'g> {
                 "the log has no output column to check",
             ));
         }
+        // The outputs to compare: those the user chose, or every output of the spec. A
+        // chosen output the log lacks is bad input; an unchosen one the log lacks fails the
+        // run in the report ("outputs never compared").
+        if let Some(chosen) = &options.outputs {
+            let absent: Vec<&str> = spec
+                .outputs()
+                .into_iter()
+                .filter(|(s, _)| chosen.contains(s) && !columns.contains(s))
+                .map(|(_, n)| n)
+                .collect();
+            if !absent.is_empty() {
+                return Err(Problem::new(
+                    "<log>",
+                    format!(
+                        "--outputs names {}, but the log has no column for it; the log's \
+                         header must name every output to compare",
+                        absent.join(", ")
+                    ),
+                )
+                .field("outputs"));
+            }
+        }
+        let outputs: Vec<(Signal, String, bool)> = spec
+            .outputs()
+            .into_iter()
+            .map(|(s, n)| {
+                let wanted = options.outputs.as_ref().is_none_or(|c| c.contains(&s));
+                (s, n.to_string(), wanted && columns.contains(&s))
+            })
+            .collect();
         let threads = match options.threads {
             0 => std::thread::available_parallelism().map_or(1, |n| n.get().min(8)),
             n => n,
@@ -869,12 +1023,22 @@ impl<'g> Checker<'g> {
             selection: set.and_then(|m| m.selection.as_ref().map(|s| s.indices.clone())),
             fields: inputs
                 .iter()
-                .chain(spec.outputs().iter())
-                .map(|&(s, _)| (s, s.width(spec.width)))
+                .map(|&(s, _)| s)
+                .chain(outputs.iter().filter(|o| o.2).map(|o| o.0))
+                .map(|s| (s, spec.signal_width(s)))
                 .collect(),
             inputs: inputs.len(),
+            outputs,
+            seed: set.map(|m| m.seed),
             options,
-            limbs: spec.width.div_ceil(64) as usize,
+            limbs: Signal::ALL
+                .into_iter()
+                .filter(|&s| spec.has(s))
+                .map(|s| spec.signal_width(s))
+                .max()
+                .unwrap_or(spec.width)
+                .max(spec.width)
+                .div_ceil(64) as usize,
         });
         let (pool, local) = if threads > 1 {
             (Some(Pool::start(&shared, threads)), None)
@@ -887,6 +1051,7 @@ impl<'g> Checker<'g> {
             generator,
             logs: Vec::new(),
             seen: Seen::default(),
+            set_identity: set.map(set_identity),
             // A log without an index column starts at the set's first vector, so a shard's
             // testbench that plays its own stimulus.hex from line one is checked in step.
             position: set.map_or(0, |m| m.first_index),
@@ -1029,6 +1194,7 @@ impl<'g> Checker<'g> {
         intake: &mut Intake,
         progress: &mut impl FnMut(u64),
     ) -> Result<(), Error> {
+        // Blocks are numbered as sent; `next_parsed` is the next one to take back in order.
         let (mut next_block, mut next_parsed) = (0u64, 0u64);
         let mut end = false;
         loop {
@@ -1036,7 +1202,7 @@ impl<'g> Checker<'g> {
                 return Ok(());
             };
             // Keep the workers fed, with a bounded number of blocks ahead.
-            while !end && !intake.stopped && p.in_flight + p.parsed.len() < p.limit() {
+            while !end && !intake.stopped && next_block - next_parsed < p.blocks_ahead() {
                 let mut block = p.spare_blocks.pop().unwrap_or_default();
                 match reader.read_block(&mut block.bytes, self.block_bytes)? {
                     Some(first) => {
@@ -1065,7 +1231,10 @@ impl<'g> Checker<'g> {
             let Some(p) = pool.as_mut() else {
                 return Ok(());
             };
-            if p.in_flight == 0 && (end || intake.stopped) {
+            // Every block sent is taken back (a stopped intake admits nothing), so no parsed
+            // block is left for a later call; a block not yet taken back is on its way, so
+            // the wait below always ends.
+            if (end || intake.stopped) && next_parsed == next_block {
                 return Ok(());
             }
             let done = p.receive();
@@ -1196,11 +1365,8 @@ impl<'g> Checker<'g> {
                 Some(batch)
             }
             Some(pool) => {
+                // The bounded queue makes this wait while the workers are behind.
                 pool.send(Job::Judge(batch));
-                while pool.in_flight >= pool.limit() {
-                    let done = pool.receive();
-                    pool.accept(done, &mut self.merger);
-                }
                 pool.accept_ready(&mut self.merger);
                 None
             }
@@ -1221,18 +1387,8 @@ impl<'g> Checker<'g> {
         if let Some(worker) = self.local.take() {
             add(worker.coverage);
         }
-        if let Some(mut pool) = self.pool.take() {
-            pool.jobs = None;
-            while pool.in_flight > 0 {
-                let done = pool.receive();
-                pool.accept(done, &mut self.merger);
-            }
-            for w in pool.workers {
-                match w.join() {
-                    Ok(c) => add(c),
-                    Err(panic) => std::panic::resume_unwind(panic),
-                }
-            }
+        if let Some(pool) = self.pool.take() {
+            pool.close(&mut self.merger).into_iter().for_each(&mut add);
         }
         let counts = counts.unwrap_or_else(|| Coverage::new(self.generator.catalogue()).totals());
         if let Some((first, count)) = self.shared.set {
@@ -1247,6 +1403,41 @@ impl<'g> Checker<'g> {
         }
         let merged = std::mem::take(&mut self.merger.verdicts);
         self.problems.out_of_step = merged.out_of_step;
+        // Only rows judged count as seen: indices outside the set were marked but not judged.
+        let ranges = match self.shared.set {
+            Some((first, count)) => seen::clip(&self.seen.ranges(), first, count),
+            None => self.seen.ranges(),
+        };
+        let seen = vec![SeenIndices {
+            set: self.set_identity.take(),
+            count: seen::count(&ranges).unwrap_or(u64::MAX),
+            ranges,
+        }];
+        let mut compared = merged.ports.iter();
+        let output_ports = self
+            .shared
+            .outputs
+            .iter()
+            .map(|(sig, port, is_compared)| {
+                let (wrong, unknown) = if *is_compared {
+                    compared.next().copied().unwrap_or((0, 0))
+                } else {
+                    (0, 0)
+                };
+                OutputTally {
+                    port: port.clone(),
+                    signal: sig.key().to_string(),
+                    compared: *is_compared,
+                    wrong,
+                    unknown,
+                }
+            })
+            .collect();
+        let outputs = OutputsSeen {
+            ports: output_ports,
+            narrowed: self.shared.options.outputs.is_some(),
+            seed: self.shared.seed,
+        };
         build_report(
             &self.shared.spec,
             self.generator,
@@ -1255,8 +1446,34 @@ impl<'g> Checker<'g> {
             counts,
             merged.failures,
             std::mem::take(&mut self.problems),
+            outputs,
             &self.shared.options,
+            seen,
+            None,
         )
+    }
+}
+
+/// The identity of the vector set `m` describes (for a selected set, its own positions).
+fn set_identity(m: &Manifest) -> SetIdentity {
+    match &m.selection {
+        Some(s) => {
+            let list: Vec<String> = s.indices.iter().map(u64::to_string).collect();
+            SetIdentity {
+                seed: m.seed,
+                directed: s.source_directed,
+                random: s.source_random,
+                total: m.vectors,
+                selection_sha256: Some(sha256_hex(list.join(",").as_bytes())),
+            }
+        }
+        None => SetIdentity {
+            seed: m.seed,
+            directed: m.directed,
+            random: m.random,
+            total: m.total,
+            selection_sha256: None,
+        },
     }
 }
 
@@ -1277,7 +1494,7 @@ fn describe(
         .inputs()
         .into_iter()
         .map(|(sig, port)| {
-            let w = sig.width(spec.width);
+            let w = spec.signal_width(sig);
             let v = inputs.get(sig);
             FieldValueReport {
                 port: port.to_string(),
@@ -1290,7 +1507,7 @@ fn describe(
     let mut outputs = Vec::new();
     for (sig, port) in spec.outputs() {
         let Some(o) = field(sig) else { continue };
-        let w = sig.width(spec.width);
+        let w = spec.signal_width(sig);
         let e = expected.get(sig).masked(w);
         let unknown = o.unknown.masked(w);
         let diff = o.bits.xor(&e).and(&unknown.not(w)).masked(w);
@@ -1358,10 +1575,12 @@ fn describe(
     for &c in hits.classes() {
         classes.push(cat.classes()[c as usize].id().to_string());
     }
-    let seed_part = match shared.set {
-        Some(_) => format!(" --seed {}", shared.generator.seed()),
-        None => String::new(),
-    };
+    // Always the seed (the spec's may change later), and the count when the set's differs
+    // from the spec's, so the command names this vector whatever the spec says tomorrow.
+    let mut seed_part = format!(" --seed {}", shared.generator.seed());
+    if shared.generator.random_count() != shared.spec.random.count {
+        seed_part.push_str(&format!(" --count {}", shared.generator.random_count()));
+    }
     // In a selected (compacted) set, position `index` is vector `source` of the source set.
     let source = shared.source_index(index).unwrap_or(index);
     Failure {
@@ -1392,6 +1611,13 @@ fn decoded(sig: Signal, v: &Word, width: u32, enc: Encoding) -> String {
     }
 }
 
+/// What a report says about the spec's outputs.
+struct OutputsSeen {
+    ports: Vec<OutputTally>,
+    narrowed: bool,
+    seed: Option<u64>,
+}
+
 #[allow(clippy::too_many_arguments)]
 fn build_report(
     spec: &Spec,
@@ -1401,18 +1627,37 @@ fn build_report(
     counts: CoverageCounts,
     failures: Vec<Failure>,
     problems: LogProblems,
+    outputs: OutputsSeen,
     options: &CheckOptions,
+    seen: Vec<SeenIndices>,
+    runs: Option<Vec<RunRecord>>,
 ) -> CheckReport {
-    let (coverage, classes) = summarise(generator.catalogue(), &counts, options.at_least);
+    let (coverage, classes) = summarise(
+        generator.catalogue(),
+        &counts,
+        options.at_least,
+        (vectors, failed + unknown),
+    );
     let met = options.require.is_none_or(|r| coverage.percent >= r);
-    let verdict = if failed > 0 || unknown > 0 || problems.any() || vectors == 0 {
+    // An output the spec names that no row compared fails the run, unless the user left
+    // it out on purpose.
+    let never_compared = !outputs.narrowed && outputs.ports.iter().any(|p| !p.compared);
+    let verdict = if failed > 0 || unknown > 0 || problems.any() || vectors == 0 || never_compared {
         Verdict::Fail
     } else if !met {
         Verdict::CoverageShort
     } else {
         Verdict::Pass
     };
-    CheckReport {
+    let reasons = verdict_reasons(
+        verdict,
+        (vectors, failed, unknown),
+        &problems,
+        &outputs,
+        &coverage,
+        options.require,
+    );
+    let mut report = CheckReport {
         tool: "arithvec".into(),
         version: env!("CARGO_PKG_VERSION").into(),
         unit: spec.name.clone(),
@@ -1434,11 +1679,136 @@ fn build_report(
         verdict,
         note: EVIDENCE_NOTE.into(),
         counts,
+        output_ports: outputs.ports,
+        outputs_narrowed: outputs.narrowed,
+        verdict_reasons: reasons,
+        seed: outputs.seed,
+        seen,
+        runs: Vec::new(),
+    };
+    report.runs = match runs {
+        Some(runs) => runs,
+        None => {
+            // A check is one run; its id is the hash of everything else it reports.
+            let text = serde_json::to_string(&report).expect("report serialises");
+            vec![RunRecord {
+                id: sha256_hex(text.as_bytes()),
+                logs: report.logs.clone(),
+                vectors: report.vectors,
+                passed: report.passed,
+                failed: report.failed,
+                unknown: report.unknown,
+            }]
+        }
+    };
+    report
+}
+
+/// Per-port counts as "co: 4, y: 1" (ports with a count only).
+fn port_counts(ports: &[OutputTally], count: impl Fn(&OutputTally) -> u64) -> String {
+    ports
+        .iter()
+        .filter(|p| count(p) > 0)
+        .map(|p| format!("{}: {}", p.port, count(p)))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+fn plural(n: u64, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
+}
+
+/// The reasons behind a verdict, most fundamental first: what was not compared, what is
+/// missing or out of step, then what was wrong.
+fn verdict_reasons(
+    verdict: Verdict,
+    (vectors, failed, unknown): (u64, u64, u64),
+    p: &LogProblems,
+    outputs: &OutputsSeen,
+    coverage: &CoverageSummary,
+    require: Option<f64>,
+) -> Vec<String> {
+    let mut r = Vec::new();
+    let not_compared: Vec<&str> = outputs
+        .ports
+        .iter()
+        .filter(|o| !o.compared)
+        .map(|o| o.port.as_str())
+        .collect();
+    if !not_compared.is_empty() && !outputs.narrowed {
+        r.push(format!(
+            "outputs never compared: {}",
+            not_compared.join(", ")
+        ));
     }
+    if vectors == 0 {
+        r.push("the log has no rows to check".into());
+    }
+    if p.missing > 0 {
+        r.push(format!(
+            "log incomplete ({} of {} rows)",
+            vectors,
+            vectors.saturating_add(p.missing)
+        ));
+    }
+    if let Some(o) = &p.out_of_step {
+        r.push(format!("out of step at line {}", o.first_line));
+    }
+    if failed > 0 {
+        let by_port = port_counts(&outputs.ports, |o| o.wrong);
+        r.push(if by_port.is_empty() {
+            plural(failed, "mismatch", "mismatches")
+        } else {
+            format!("{} ({by_port})", plural(failed, "mismatch", "mismatches"))
+        });
+    }
+    if unknown > 0 {
+        let by_port = port_counts(&outputs.ports, |o| o.unknown);
+        let what = plural(
+            unknown,
+            "row with unknown (x/z) values",
+            "rows with unknown (x/z) values",
+        );
+        r.push(if by_port.is_empty() {
+            what
+        } else {
+            format!("{what} ({by_port})")
+        });
+    }
+    if p.duplicate_count > 0 {
+        let at = p.duplicates.first().map_or(String::new(), |(i, l)| {
+            format!(", first index {i} at line {l}")
+        });
+        r.push(format!(
+            "log repeats {}{at}",
+            plural(p.duplicate_count, "index", "indices")
+        ));
+    }
+    if let Some((i, l)) = p.out_of_range.first() {
+        r.push(format!(
+            "rows outside the vector set (first index {i} at line {l})"
+        ));
+    }
+    if verdict == Verdict::CoverageShort {
+        if let Some(req) = require {
+            r.push(format!(
+                "class coverage {:.2}% is below the required {req}%",
+                coverage.percent
+            ));
+        }
+    }
+    r
 }
 
 /// Combines reports of several runs or shards of one spec into one verdict. Errors (as a
-/// message) when the reports are of different specs or arithvec versions.
+/// problem naming the report) when the reports are of different specs or arithvec versions,
+/// when a report is inconsistent (its counts do not add up, its seen indices are malformed),
+/// when one run is given twice (naming both reports), or when a sum overflows.
+///
+/// Counts and coverage are sums over the runs. Completeness is judged over the union: the
+/// runs of one vector set (same seed and counts, sharded or not) must together see every
+/// index of the set exactly once; indices seen by several runs are duplicates. Runs checked
+/// without a vector set are kept apart (their indices are the logs' own labels).
 pub fn merge(
     spec: &Spec,
     generator: &Generator,
@@ -1447,10 +1817,26 @@ pub fn merge(
 ) -> Result<CheckReport, Problem> {
     let identity = spec_identity(spec);
     let mut counts: Option<CoverageCounts> = None;
-    let (mut vectors, mut passed, mut failed, mut unknown) = (0, 0, 0, 0);
+    let (mut vectors, mut passed, mut failed, mut unknown) = (0u64, 0u64, 0u64, 0u64);
     let mut failures = Vec::new();
     let mut problems = LogProblems::default();
     let mut logs = Vec::new();
+    let mut runs: Vec<RunRecord> = Vec::new();
+    // Run id -> the report it came from.
+    let mut run_files: BTreeMap<String, &str> = BTreeMap::new();
+    // Seen indices per vector set, and the set-less entries as they are.
+    let mut by_set: BTreeMap<SetIdentity, Vec<&[[u64; 2]]>> = BTreeMap::new();
+    let mut unlabelled: Vec<SeenIndices> = Vec::new();
+    let overflow = |name: &str, field: &str| {
+        Problem::new(
+            name.to_string(),
+            format!("the merged {field} does not fit in 64 bits; a report is corrupt"),
+        )
+        .field(field)
+    };
+    let mut ports: Option<Vec<OutputTally>> = None;
+    let mut narrowed = false;
+    let mut seed = None;
     for (name, r) in reports {
         if r.spec_sha256 != identity {
             return Err(Problem::new(
@@ -1475,46 +1861,128 @@ pub fn merge(
             )
             .field("version"));
         }
-        if r.counts.bin_hits.len() != generator.catalogue().bin_count() {
+        let cat = generator.catalogue();
+        let c = &r.counts;
+        if c.bin_hits.len() != cat.bin_count()
+            || c.bin_failures.len() != cat.bin_count()
+            || c.class_hits.len() != cat.classes().len()
+            || c.class_failures.len() != cat.classes().len()
+        {
             return Err(Problem::new(
                 name.clone(),
                 "report's coverage counts do not match this spec's classes",
             )
             .field("counts"));
         }
+        check_consistent(name, r)?;
+        for run in &r.runs {
+            if let Some(other) = run_files.insert(run.id.clone(), name) {
+                return Err(Problem::new(
+                    name.clone(),
+                    format!(
+                        "{other} and {name} both hold the run of log(s) {} (run id {}); \
+                         the same run must not be merged twice",
+                        run.logs.join(", "),
+                        run.id
+                    ),
+                )
+                .field("runs"));
+            }
+            runs.push(run.clone());
+        }
         match &mut counts {
-            Some(c) => c.add(&r.counts),
+            Some(sum) => {
+                if !sum.checked_add(&r.counts) {
+                    return Err(overflow(name, "counts"));
+                }
+            }
             None => counts = Some(r.counts.clone()),
         }
-        vectors += r.vectors;
-        passed += r.passed;
-        failed += r.failed;
-        unknown += r.unknown;
+        let add =
+            |a: u64, b: u64, field: &str| a.checked_add(b).ok_or_else(|| overflow(name, field));
+        vectors = add(vectors, r.vectors, "vectors")?;
+        passed = add(passed, r.passed, "passed")?;
+        failed = add(failed, r.failed, "failed")?;
+        unknown = add(unknown, r.unknown, "unknown")?;
         for f in &r.failures {
             if failures.len() < options.max_failures {
                 failures.push(f.clone());
             }
         }
         let p = &r.log_problems;
-        problems.missing += p.missing;
-        problems
-            .missing_first
-            .extend(p.missing_first.iter().copied());
-        problems.missing_first.truncate(20);
-        problems.duplicate_count += p.duplicate_count;
+        problems.duplicate_count = add(
+            problems.duplicate_count,
+            p.duplicate_count,
+            "duplicate_count",
+        )?;
         problems.duplicates.extend(p.duplicates.iter().copied());
         problems.duplicates.truncate(20);
         problems.out_of_range.extend(p.out_of_range.iter().copied());
         problems.out_of_range.truncate(20);
-        problems.bad_line_count += p.bad_line_count;
+        problems.bad_line_count = add(problems.bad_line_count, p.bad_line_count, "bad_line_count")?;
         problems.bad_lines.extend(p.bad_lines.iter().cloned());
         problems.bad_lines.truncate(20);
         if problems.out_of_step.is_none() {
             problems.out_of_step = p.out_of_step.clone();
         }
+        for entry in &r.seen {
+            match &entry.set {
+                Some(set) => by_set.entry(set.clone()).or_default().push(&entry.ranges),
+                None => unlabelled.push(entry.clone()),
+            }
+        }
         logs.extend(r.logs.iter().cloned());
+        // An output is compared in the merge only when every run compared it.
+        match &mut ports {
+            None => ports = Some(r.output_ports.clone()),
+            Some(sum) => {
+                for p in sum.iter_mut() {
+                    match r.output_ports.iter().find(|q| q.signal == p.signal) {
+                        Some(q) => {
+                            p.compared &= q.compared;
+                            p.wrong = add(p.wrong, q.wrong, "output_ports")?;
+                            p.unknown = add(p.unknown, q.unknown, "output_ports")?;
+                        }
+                        None => p.compared = false,
+                    }
+                }
+            }
+        }
+        narrowed |= r.outputs_narrowed;
+        seed = seed.or(r.seed);
     }
     let counts = counts.ok_or_else(|| Problem::new("merge", "no reports given"))?;
+    // Completeness and duplicates over the union, per vector set.
+    let mut seen = Vec::new();
+    for (set, lists) in by_set {
+        let union = seen::unite(&lists, 20);
+        let (missing, first) = seen::gaps(&union.ranges, set.total, 20);
+        problems.missing = problems
+            .missing
+            .checked_add(missing)
+            .ok_or_else(|| overflow("merge", "missing"))?;
+        if problems.missing_first.len() < 20 {
+            problems.missing_first.extend(first);
+            problems.missing_first.truncate(20);
+        }
+        problems.duplicate_count = problems
+            .duplicate_count
+            .checked_add(union.overlap_count)
+            .ok_or_else(|| overflow("merge", "duplicate_count"))?;
+        problems.overlapping.extend(union.overlaps);
+        problems.overlapping.truncate(20);
+        seen.push(SeenIndices {
+            set: Some(set),
+            count: seen::count(&union.ranges).unwrap_or(u64::MAX),
+            ranges: union.ranges,
+        });
+    }
+    seen.extend(unlabelled);
+    let outputs = OutputsSeen {
+        ports: ports.unwrap_or_default(),
+        narrowed,
+        seed,
+    };
     Ok(build_report(
         spec,
         generator,
@@ -1523,8 +1991,75 @@ pub fn merge(
         counts,
         failures,
         problems,
+        outputs,
         options,
+        seen,
+        Some(runs),
     ))
+}
+
+/// Refuses a report whose own numbers disagree: rows that do not add up, seen indices that
+/// are malformed, outside their set, or not as many as the rows checked.
+fn check_consistent(name: &str, r: &CheckReport) -> Result<(), Problem> {
+    let bad = |field: &str, why: String| Err(Problem::new(name.to_string(), why).field(field));
+    let judged = r
+        .passed
+        .checked_add(r.failed)
+        .and_then(|n| n.checked_add(r.unknown));
+    if judged != Some(r.vectors) {
+        return bad(
+            "vectors",
+            format!(
+                "passed {} + failed {} + unknown {} is not vectors {}; the report is corrupt",
+                r.passed, r.failed, r.unknown, r.vectors
+            ),
+        );
+    }
+    if r.runs.is_empty() {
+        return bad("runs", "the report lists no runs; re-run the check".into());
+    }
+    let mut seen_total = 0u64;
+    for (k, entry) in r.seen.iter().enumerate() {
+        if let Some(why) = seen::malformed(&entry.ranges) {
+            return bad("seen", format!("seen entry {k}: {why}"));
+        }
+        let n = seen::count(&entry.ranges);
+        if n != Some(entry.count) {
+            return bad(
+                "seen",
+                format!(
+                    "seen entry {k}: its ranges hold {} indices, not its count {}",
+                    n.map_or("more than 2^64".into(), |n| n.to_string()),
+                    entry.count
+                ),
+            );
+        }
+        if let (Some(set), Some(last)) = (&entry.set, entry.ranges.last()) {
+            if last[1] >= set.total {
+                return bad(
+                    "seen",
+                    format!(
+                        "seen entry {k}: index {} is outside its set of {} vectors",
+                        last[1], set.total
+                    ),
+                );
+            }
+        }
+        seen_total = match seen_total.checked_add(entry.count) {
+            Some(t) => t,
+            None => return bad("seen", "the seen counts overflow".into()),
+        };
+    }
+    if seen_total != r.vectors {
+        return bad(
+            "seen",
+            format!(
+                "the report saw {seen_total} indices but checked {} vectors; the report is corrupt",
+                r.vectors
+            ),
+        );
+    }
+    Ok(())
 }
 
 impl CheckReport {
@@ -1650,7 +2185,14 @@ mod tests {
         assert!(p.out_of_step.is_some() && p.bad_line_count > 0);
         let expected = serde_json::to_string(&reference).expect("json");
 
-        for (threads, tiny) in [(1, true), (2, false), (2, true), (3, true)] {
+        for (threads, tiny) in [
+            (1, true),
+            (2, false),
+            (2, true),
+            (3, true),
+            (8, true),
+            (8, false),
+        ] {
             let mut c = checker(&spec, &generator, &manifest, &columns, threads, tiny);
             let mut r = reader();
             c.check_log(&mut r, true, |_| {}).expect("read");
@@ -1707,13 +2249,37 @@ mod tests {
             }
         }
         assert_eq!(sequential.len(), 20);
-        for (threads, tiny) in [(1, false), (1, true), (2, true), (3, true)] {
+        for (threads, tiny) in [(1, false), (1, true), (2, true), (3, true), (8, true)] {
             let mut r = LogReader::new(text.as_bytes(), "log.csv", &spec, Radix::Hex).expect("log");
             let columns = r.columns().to_vec();
             let mut c = checker(&spec, &generator, &manifest, &columns, threads, tiny);
             let bad = c.check_log(&mut r, false, |_| {}).expect("read");
             let bad: Vec<String> = bad.iter().map(|p| p.to_string()).collect();
             assert_eq!(bad, sequential, "{threads} threads, tiny {tiny}");
+        }
+    }
+
+    /// A worker that panics (a bug) has its panic passed on to the caller, in place of a
+    /// check that waits for a reply that cannot come; the other workers' replies still count.
+    #[test]
+    fn a_failing_worker_cannot_hang_the_check() {
+        let spec = Spec::with_defaults(Operation::Add, Encoding::Unsigned, 8);
+        let generator = Generator::new(&spec, Some(500), Some(4));
+        let dir = tempfile::tempdir().expect("temp dir");
+        let manifest = write(&generator, &spec, dir.path(), WriteOptions::default()).expect("set");
+        let text = troubled_log(&spec, &generator, false);
+        for threads in [2, 3, 8] {
+            let mut r = LogReader::new(text.as_bytes(), "log.csv", &spec, Radix::Hex).expect("log");
+            let columns = r.columns().to_vec();
+            let mut c = checker(&spec, &generator, &manifest, &columns, threads, true);
+            c.check_log(&mut r, true, |_| {}).expect("read");
+            if let Some(pool) = c.pool.as_mut() {
+                pool.send(Job::Fail);
+            }
+            let finished = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| c.finish()));
+            let panic = finished.expect_err("the worker's panic reaches the caller");
+            let message = panic.downcast_ref::<&str>().copied().unwrap_or_default();
+            assert_eq!(message, "a test job failed on purpose", "{threads} threads");
         }
     }
 }

@@ -193,6 +193,32 @@ impl CoverageCounts {
         sum(&mut self.class_hits, &other.class_hits);
         sum(&mut self.class_failures, &other.class_failures);
     }
+
+    /// Adds another report's counts, refusing (false, and `self` unchanged) when the lists
+    /// differ in length or a sum does not fit in 64 bits: merged counts are exact or absent.
+    pub fn checked_add(&mut self, other: &CoverageCounts) -> bool {
+        let sum = |a: &[u64], b: &[u64]| -> Option<Vec<u64>> {
+            if a.len() != b.len() {
+                return None;
+            }
+            a.iter().zip(b).map(|(x, y)| x.checked_add(*y)).collect()
+        };
+        let (Some(bh), Some(bf), Some(ch), Some(cf)) = (
+            sum(&self.bin_hits, &other.bin_hits),
+            sum(&self.bin_failures, &other.bin_failures),
+            sum(&self.class_hits, &other.class_hits),
+            sum(&self.class_failures, &other.class_failures),
+        ) else {
+            return false;
+        };
+        *self = CoverageCounts {
+            bin_hits: bh,
+            bin_failures: bf,
+            class_hits: ch,
+            class_failures: cf,
+        };
+        true
+    }
 }
 
 /// A class's coverage verdict.
@@ -233,7 +259,7 @@ pub struct ClassSummary {
 }
 
 /// Failures in one bin.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct BinFailures {
     /// Bin id.
     pub bin: String,
@@ -241,6 +267,55 @@ pub struct BinFailures {
     pub hits: u64,
     /// Failing vectors among them.
     pub failures: u64,
+    /// How unlikely so many failures in this bin are by chance: -log10 of the probability
+    /// that a bin hit by `hits` of the run's vectors catches at least `failures` failing
+    /// vectors when failures fall on vectors at random (see [`surprise`]); 0 when the bin
+    /// fails no more often than the run as a whole. Rounded to 0.01.
+    #[serde(default)]
+    pub surprise: f64,
+}
+
+/// ln(n!): exact below 32, Stirling's series above (error below 1e-10 there).
+fn ln_factorial(n: u64) -> f64 {
+    if n < 32 {
+        return (2..=n).map(|k| (k as f64).ln()).sum();
+    }
+    let x = n as f64;
+    x * x.ln() - x + 0.5 * (2.0 * std::f64::consts::PI * x).ln() + 1.0 / (12.0 * x)
+        - 1.0 / (360.0 * x * x * x)
+}
+
+/// The ranking score of a failing bin: -log10 P(X >= failures) for X ~ Binomial(hits, p)
+/// with p = failing / vectors, the run's failure rate. A bin that every vector hits fails
+/// exactly as often as the run and scores 0; a rare bin whose every hit failed scores high,
+/// more so the more hits it has and the rarer failures are in the run. No threshold: every
+/// bin failing more often than chance predicts scores above 0. The tail is summed term by
+/// term from `failures` upward (at most 10,000 terms; the terms shrink geometrically there).
+pub fn surprise(hits: u64, failures: u64, vectors: u64, failing: u64) -> f64 {
+    if failures == 0 || hits == 0 || vectors == 0 || failing >= vectors {
+        return 0.0;
+    }
+    let p = failing as f64 / vectors as f64;
+    let (h, f) = (hits, failures.min(hits));
+    if (f as f64) <= h as f64 * p {
+        return 0.0;
+    }
+    let ln_term = ln_factorial(h) - ln_factorial(f) - ln_factorial(h - f)
+        + f as f64 * p.ln()
+        + (h - f) as f64 * (-p).ln_1p();
+    // The sum of the tail's terms relative to the first.
+    let ratio = p / (1.0 - p);
+    let (mut sum, mut term, mut k) = (1.0f64, 1.0f64, f);
+    while k < h && k - f < 10_000 {
+        term *= (h - k) as f64 / (k + 1) as f64 * ratio;
+        sum += term;
+        if term < sum * 1e-17 {
+            break;
+        }
+        k += 1;
+    }
+    let score = -(ln_term + sum.ln()) / std::f64::consts::LN_10;
+    (score.max(0.0) * 100.0).round() / 100.0
 }
 
 /// Coverage totals.
@@ -271,11 +346,22 @@ fn percent(a: usize, b: usize) -> f64 {
     }
 }
 
+/// The order of failing bins: highest surprise first, then more failures, then bin id.
+pub fn rank_failing_bins(x: &BinFailures, y: &BinFailures) -> std::cmp::Ordering {
+    y.surprise
+        .total_cmp(&x.surprise)
+        .then(y.failures.cmp(&x.failures))
+        .then(x.bin.cmp(&y.bin))
+}
+
 /// Classifies every class and totals coverage.
+/// `(vectors, failing)` are the run's rows and its failing rows, which rank failing bins
+/// (see [`surprise`]).
 pub fn summarise(
     catalogue: &Catalogue,
     counts: &CoverageCounts,
     at_least: u64,
+    (vectors, failing_rows): (u64, u64),
 ) -> (CoverageSummary, Vec<ClassSummary>) {
     let mut classes = Vec::new();
     let (mut covered, mut total, mut bins_covered, mut bins_total) = (0, 0, 0, 0);
@@ -292,13 +378,20 @@ pub fn summarise(
                 bin: catalogue.bin_id(b),
                 hits: counts.bin_hits[b],
                 failures: counts.bin_failures[b],
+                surprise: surprise(
+                    counts.bin_hits[b],
+                    counts.bin_failures[b],
+                    vectors,
+                    failing_rows,
+                ),
             })
             .collect();
-        // Worst first: bins where every hit failed point at the bug.
+        // Worst ratio first (bins where every hit failed), then by surprise; the text
+        // report's strongest pointers re-rank this list by surprise alone.
         failing.sort_by(|x, y| {
             let rx = x.failures as f64 / x.hits.max(1) as f64;
             let ry = y.failures as f64 / y.hits.max(1) as f64;
-            ry.total_cmp(&rx).then(y.failures.cmp(&x.failures))
+            ry.total_cmp(&rx).then_with(|| rank_failing_bins(x, y))
         });
         failing.truncate(20);
         let status = if reachable.is_empty() {

@@ -8,3 +8,4 @@
 pub(crate) mod check;
 pub(crate) mod coverage;
 pub(crate) mod report;
+pub(crate) mod seen;

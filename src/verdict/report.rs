@@ -1,9 +1,9 @@
 //! Renders a [`CheckReport`] for people (tables) and for CI dashboards (JUnit XML).
 //!
 //! Pure functions from a report to text; the caller writes files. JUnit XML is built with the
-//! quick-junit library: one test suite per unit, one test case per corner class (failing for
-//! mismatches and for missed bins, skipped when unreachable at this width), plus one case for
-//! the log's completeness.
+//! quick-junit library: one test suite per unit with a case for the gate, one per output port,
+//! one per corner class and one for the log's completeness (see [`render_junit_timed`]); the
+//! file has a failure exactly when the exit code is not 0.
 
 use quick_junit::{NonSuccessKind, Report, TestCase, TestCaseStatus, TestSuite};
 use tabled::builder::Builder;
@@ -63,6 +63,8 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
         ]],
     ));
     s.push('\n');
+    s.push_str(&output_tally_line(r));
+    s.push('\n');
     let class_rows: Vec<Vec<String>> = r
         .classes
         .iter()
@@ -108,20 +110,29 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
         .iter()
         .filter(|k| k.status == ClassStatus::Failing)
         .collect();
+    // Strongest pointers: failing bins ranked by how unlikely their failures are by chance
+    // (DEVELOPERS.md, "Ranking failing bins"); a bin failing no more often than the run as
+    // a whole (surprise 0) points nowhere and is left out.
     let mut telling: Vec<&crate::verdict::coverage::BinFailures> = failing
         .iter()
         .flat_map(|k| k.failing_bins.iter())
-        .filter(|b| b.failures == b.hits && b.hits > 1)
+        .filter(|b| b.surprise > 0.0)
         .collect();
-    telling.sort_by(|x, y| y.hits.cmp(&x.hits).then(x.bin.cmp(&y.bin)));
+    telling.sort_by(|x, y| crate::verdict::coverage::rank_failing_bins(x, y));
     if !telling.is_empty() {
         let list: Vec<String> = telling
             .iter()
             .take(8)
-            .map(|b| format!("{} ({}/{})", b.bin, b.failures, b.hits))
+            .map(|b| {
+                format!(
+                    "{} ({}/{}, surprise {:.2})",
+                    b.bin, b.failures, b.hits, b.surprise
+                )
+            })
             .collect();
         s.push_str(&format!(
-            "strongest pointers (bins where every hit failed, most hits first): {}\n",
+            "strongest pointers (failing bins least likely by chance; surprise = -log10 of \
+             the chance of that many failures in the bin): {}\n",
             list.join(", ")
         ));
     }
@@ -198,6 +209,17 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
             p.duplicate_count, p.duplicates
         ));
     }
+    if !p.overlapping.is_empty() {
+        let ranges: Vec<String> = p
+            .overlapping
+            .iter()
+            .map(|r| format!("{}..={}", r[0], r[1]))
+            .collect();
+        s.push_str(&format!(
+            "merged runs checked these indices more than once: {}\n",
+            ranges.join(", ")
+        ));
+    }
     if !p.out_of_range.is_empty() {
         s.push_str(&format!(
             "log has indices outside the vector set (index, line): {:?}\n",
@@ -227,6 +249,27 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
     s
 }
 
+/// The headline tally: per output port, rows wrong and unknown, or why it was not compared.
+fn output_tally_line(r: &CheckReport) -> String {
+    if r.output_ports.is_empty() {
+        return String::new();
+    }
+    let parts: Vec<String> = r
+        .output_ports
+        .iter()
+        .map(|p| {
+            if p.compared {
+                format!("{} {} wrong, {} unknown", p.port, p.wrong, p.unknown)
+            } else if r.outputs_narrowed {
+                format!("{} not compared (left out by --outputs)", p.port)
+            } else {
+                format!("{} NEVER COMPARED (no column in the log)", p.port)
+            }
+        })
+        .collect();
+    format!("outputs: {}\n", parts.join("; "))
+}
+
 /// The one-line verdict.
 pub fn verdict_line(r: &CheckReport) -> String {
     let gate = match r.gate.require {
@@ -241,27 +284,136 @@ pub fn verdict_line(r: &CheckReport) -> String {
         Verdict::Fail => "FAIL",
         Verdict::CoverageShort => "COVERAGE SHORT",
     };
+    let reasons = if r.verdict_reasons.is_empty() {
+        String::new()
+    } else {
+        format!("{}; ", r.verdict_reasons.join("; "))
+    };
+    let narrowed = narrowing(r).map_or(String::new(), |n| format!("; {n}"));
     format!(
-        "verdict: {word}: {} passed, {} failed, {} unknown{gate}",
+        "verdict: {word}: {reasons}{} passed, {} failed, {} unknown{gate}{narrowed}",
         r.passed, r.failed, r.unknown
     )
 }
 
-/// JUnit XML: one test case per corner class, plus one for the log's completeness.
+/// "only y, co compared (--outputs); not compared: ovf, zero" when the user narrowed the check.
+fn narrowing(r: &CheckReport) -> Option<String> {
+    if !r.outputs_narrowed {
+        return None;
+    }
+    let list = |compared: bool| {
+        r.output_ports
+            .iter()
+            .filter(|p| p.compared == compared)
+            .map(|p| p.port.as_str())
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    Some(format!(
+        "only {} compared (--outputs); not compared: {}",
+        list(true),
+        list(false)
+    ))
+}
+
+/// JUnit XML without times (see [`render_junit_timed`]).
 pub fn render_junit(r: &CheckReport) -> String {
+    render_junit_timed(r, None)
+}
+
+/// JUnit XML that agrees with the exit code: a test case for the gate itself (failing
+/// exactly when the exit code is not 0), one per output port (failing when it had wrong or
+/// unknown values or was never compared; skipped when left out on purpose with `--outputs`),
+/// one per corner class and one for the log's completeness. A missed class is a failure only
+/// when a coverage requirement is set and not met (exit 3); otherwise it is skipped with the
+/// reason. `<properties>` carry the spec hash, seed, tool version, requirement and the
+/// outputs compared. `elapsed` is the check's wall time: the suite and the gate case get it;
+/// the other cases were judged in the same single pass and get 0.
+pub fn render_junit_timed(r: &CheckReport, elapsed: Option<std::time::Duration>) -> String {
+    let classname = format!("arithvec.{}", r.unit);
     let mut report = Report::new("arithvec");
-    let mut suite = TestSuite::new(format!("arithvec.{}", r.unit));
+    let mut suite = TestSuite::new(classname.clone());
+    suite.add_property(("tool", r.tool.as_str()));
+    suite.add_property(("version", r.version.as_str()));
+    suite.add_property(("unit", r.unit.as_str()));
+    suite.add_property(("spec_sha256", r.spec_sha256.as_str()));
+    suite.add_property((
+        "seed",
+        r.seed
+            .map_or("none (no vector set given)".to_string(), |s| s.to_string())
+            .as_str(),
+    ));
+    suite.add_property((
+        "require",
+        r.gate
+            .require
+            .map_or("none".to_string(), |q| format!("{q}%"))
+            .as_str(),
+    ));
+    let compared: Vec<&str> = r
+        .output_ports
+        .iter()
+        .filter(|p| p.compared)
+        .map(|p| p.port.as_str())
+        .collect();
+    suite.add_property(("outputs_compared", compared.join(",").as_str()));
+    suite.add_property((
+        "outputs_narrowed",
+        if r.outputs_narrowed { "true" } else { "false" },
+    ));
+    let zero = std::time::Duration::ZERO;
+    let add = |suite: &mut TestSuite, name: String, status: TestCaseStatus, time| {
+        let mut case = TestCase::new(name, status);
+        case.set_classname(classname.clone());
+        case.set_time(time);
+        suite.add_test_case(case);
+    };
+    let failure = |message: String| {
+        let mut s = TestCaseStatus::non_success(NonSuccessKind::Failure);
+        s.set_message(message);
+        s
+    };
+    let skipped = |message: String| {
+        let mut s = TestCaseStatus::skipped();
+        s.set_message(message);
+        s
+    };
+    // The gate: the verdict and its exit code.
+    let gate = match r.verdict {
+        Verdict::Pass => TestCaseStatus::success(),
+        _ => failure(verdict_line(r)),
+    };
+    add(&mut suite, "gate".into(), gate, elapsed.unwrap_or(zero));
+    for p in &r.output_ports {
+        let status = if !p.compared && r.outputs_narrowed {
+            skipped(format!(
+                "{} was left out of the comparison by --outputs",
+                p.port
+            ))
+        } else if !p.compared {
+            failure(format!(
+                "{} was never compared: the log has no column for it",
+                p.port
+            ))
+        } else if p.wrong > 0 || p.unknown > 0 {
+            failure(format!(
+                "{} {} wrong, {} unknown",
+                p.port, p.wrong, p.unknown
+            ))
+        } else {
+            TestCaseStatus::success()
+        };
+        add(&mut suite, format!("output.{}", p.port), status, zero);
+    }
+    let coverage_gated = r.verdict == Verdict::CoverageShort;
     for k in &r.classes {
         let status = match k.status {
             ClassStatus::Covered => TestCaseStatus::success(),
             ClassStatus::Unreachable => {
-                let mut s = TestCaseStatus::skipped();
-                s.set_message("no bin of this class is reachable at this width");
-                s
+                skipped("no bin of this class is reachable at this width".into())
             }
             ClassStatus::Failing => {
-                let mut s = TestCaseStatus::non_success(NonSuccessKind::Failure);
-                s.set_message(format!(
+                let mut s = failure(format!(
                     "{} of {} vectors in this class failed",
                     k.failures, k.hits
                 ));
@@ -274,18 +426,27 @@ pub fn render_junit(r: &CheckReport) -> String {
                 s
             }
             ClassStatus::Missed => {
-                let mut s = TestCaseStatus::non_success(NonSuccessKind::Failure);
-                s.set_message(format!(
+                let message = format!(
                     "coverage: {} of {} bins reached {} hits",
                     k.bins_covered, k.bins_total, r.coverage.at_least
-                ));
+                );
+                let mut s = if coverage_gated {
+                    failure(message)
+                } else {
+                    skipped(match r.gate.require {
+                        None => format!("{message}; not a failure: no coverage requirement set"),
+                        Some(q) => format!(
+                            "{message}; not a failure: class coverage {:.2}% meets the \
+                             requirement of {q}%",
+                            r.coverage.percent
+                        ),
+                    })
+                };
                 s.set_description(format!("missed bins: {}", k.missed_bins.join(" ")));
                 s
             }
         };
-        let mut case = TestCase::new(k.id.clone(), status);
-        case.set_classname(format!("arithvec.{}", r.unit));
-        suite.add_test_case(case);
+        add(&mut suite, k.id.clone(), status, zero);
     }
     let p = &r.log_problems;
     let complete = !(p.missing > 0
@@ -295,19 +456,18 @@ pub fn render_junit(r: &CheckReport) -> String {
     let status = if complete {
         TestCaseStatus::success()
     } else {
-        let mut s = TestCaseStatus::non_success(NonSuccessKind::Failure);
-        s.set_message(format!(
+        failure(format!(
             "log incomplete or inconsistent: {} missing, {} duplicate, {} out of range, out of step: {}",
             p.missing,
             p.duplicate_count,
             p.out_of_range.len(),
             p.out_of_step.as_ref().map_or("no".to_string(), |o| format!("from index {}", o.first_index))
-        ));
-        s
+        ))
     };
-    let mut case = TestCase::new("log.complete", status);
-    case.set_classname(format!("arithvec.{}", r.unit));
-    suite.add_test_case(case);
+    add(&mut suite, "log.complete".into(), status, zero);
+    if let Some(t) = elapsed {
+        suite.set_time(t);
+    }
     report.add_test_suite(suite);
     report.to_string().unwrap_or_default()
 }

@@ -690,12 +690,19 @@ fn junit_has_one_test_case_per_class_plus_log_completeness() {
         .iter()
         .map(|c| c["id"].as_str().unwrap().to_string())
         .collect();
-    let mut want = ids.clone();
+    // The gate, one case per output port, one per class, then the log's completeness.
+    let ports: Vec<String> = output_ports(&sb, "vec")
+        .iter()
+        .map(|p| format!("output.{p}"))
+        .collect();
+    let mut want = vec!["gate".to_string()];
+    want.extend(ports.iter().cloned());
+    want.extend(ids.iter().cloned());
     want.push("log.complete".into());
     let names: Vec<String> = cases.iter().map(|c| c.0.clone()).collect();
     assert_eq!(
         names, want,
-        "one test case per class, then the log's completeness"
+        "the gate, one test case per output port and per class, then the log's completeness"
     );
     assert!(
         cases.iter().all(|c| !c.1),
@@ -710,9 +717,13 @@ fn junit_has_one_test_case_per_class_plus_log_completeness() {
     let file = sb.write("bad.csv", &log.csv());
     let (_, report) = sb.check(&spec, &file, &["--vectors", "vec", "--junit", "bad.xml"], 1);
     let cases = junit_cases(&sb.read("bad.xml"));
-    assert_eq!(cases.len(), ids.len() + 1);
+    assert_eq!(cases.len(), want.len());
     let failing: Vec<String> = cases.iter().filter(|c| c.1).map(|c| c.0.clone()).collect();
-    let mut failing_sorted = failing.clone();
+    assert_eq!(
+        failing[..2],
+        ["gate".to_string(), "output.delta".to_string()]
+    );
+    let mut failing_sorted = failing[2..].to_vec();
     failing_sorted.sort();
     assert_eq!(failing_sorted, csv.classes(k));
     assert_eq!(failing_sorted, strings(&report["failures"][0]["classes"]));
@@ -927,4 +938,41 @@ proptest! {
             prop_assert_eq!(strings(&f["classes"]), csv.classes(k));
         }
     }
+}
+
+/// Issue 9 item 17: without --vectors the repro commands still carry --seed.
+#[test]
+fn issue9_repro_commands_without_vectors_carry_the_seed() {
+    let sb = crate::util::Sandbox::new();
+    let spec = sb.write("flow_adder.toml", crate::util::FLOW_ADDER);
+    sb.gen(&spec, "vec", &[]);
+    let mut log = crate::util::VectorCsv::read(&sb, "vec").perfect_log();
+    let y = log.cell(3, "y").clone();
+    *log.cell(3, "y") = crate::util::flip_hex_bit(&y, 0);
+    let file = sb.write("bad.csv", &log.csv());
+    let (_, report) = sb.check(&spec, &file, &[], 1);
+    let repro = report["failures"][0]["repro"].as_str().expect("repro");
+    assert!(repro.contains("--seed 5"), "{repro}");
+}
+
+/// Issue 9 item 17: a signed decimal in a value column is a value in the spec's encoding:
+/// -1 on an 8-bit sign-magnitude unit is 0x81 (sign bit and magnitude 1; common practice, no
+/// source), not the two's-complement 0xff.
+#[test]
+fn issue9_signed_decimals_are_encoded_in_the_specs_encoding() {
+    let sb = crate::util::Sandbox::new();
+    let text = crate::util::spec_text("signed_trim", "add", "signmag", 8, 0, 1);
+    let spec = sb.write("signed_trim.toml", &text);
+    // -1 + -0 = -1: a = 0x81, b = 0x80, result 0x81, no overflow, not zero, negative.
+    sb.write(
+        "dec.csv",
+        "op_a,op_b,res,ovf,zf,nf\n-1,-0,-1,0,0,1\n129,128,129,0,0,1\n",
+    );
+    let (_, report) = sb.check(&spec, "dec.csv", &["--radix", "dec"], 0);
+    assert_eq!(report["passed"], 2, "{report}");
+    // Out of the encoding's range: -128 does not exist in 8-bit sign-magnitude.
+    sb.write("low.csv", "op_a,op_b,res,ovf,zf,nf\n-128,0,-128,0,0,1\n");
+    sb.run(&["check", &spec, "--log", "low.csv", "--radix", "dec"])
+        .expect_code(2)
+        .expect_stderr("signmag range");
 }

@@ -195,3 +195,43 @@ fn an_unwritable_report_path_fails_and_leaves_no_temporary_file() {
         "a failed report write left files behind"
     );
 }
+
+/// Issue 9 item 6: a `--count` whose total (directed + random) overflows 64 bits is refused
+/// before anything is written; it used to wrap and write 79 vectors with exit 0.
+#[test]
+fn issue9_a_count_whose_total_overflows_is_refused() {
+    let sb = Sandbox::new();
+    let spec = sb.write("flow_adder.toml", FLOW_ADDER);
+    sb.run(&[
+        "gen",
+        &spec,
+        "--out",
+        "v",
+        "--count",
+        "18446744073709551615",
+    ])
+    .expect_code(2)
+    .expect_stderr("--count")
+    .expect_stderr("more than 2^64 - 1 vectors");
+    assert!(!sb.path("v").join("manifest.json").exists());
+}
+
+/// Issue 9 item 5: every `--require` refuses nan, inf and values outside 0..=100.
+#[test]
+fn issue9_require_is_validated_the_same_way_everywhere() {
+    let sb = Sandbox::new();
+    let spec = sb.write("flow_adder.toml", FLOW_ADDER);
+    sb.gen(&spec, "vec", &[]);
+    let log = sb.write("log.csv", &VectorCsv::read(&sb, "vec").perfect_log().csv());
+    sb.check(&spec, &log, &[], 0);
+    let report = crate::util::report_name(&log);
+    for bad in ["nan", "101", "inf", "-0.5"] {
+        let arg = format!("--require={bad}");
+        sb.run(&["check", &spec, "--log", &log, &arg])
+            .expect_code(2)
+            .expect_stderr("--require");
+        sb.run(&["merge", &report, &arg])
+            .expect_code(2)
+            .expect_stderr("--require");
+    }
+}

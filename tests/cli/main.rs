@@ -6,6 +6,11 @@ mod check;
 mod classes;
 mod errors;
 mod gen;
+mod machine_output;
 mod merge;
 mod repro;
+#[path = "../support/mod.rs"]
+mod support;
+mod threads;
 mod util;
+mod verdict;

@@ -94,3 +94,20 @@ fn another_seed_changes_random_vectors_but_not_directed_ones() {
         );
     }
 }
+
+/// Issue 9 item 17: an index past the set's count is refused unless --beyond, which says so.
+#[test]
+fn issue9_an_index_past_the_set_is_refused_unless_beyond() {
+    let sb = crate::util::Sandbox::new();
+    let spec = sb.write("flow_adder.toml", crate::util::FLOW_ADDER);
+    sb.run(&["repro", &spec, "--index", "5000"])
+        .expect_code(2)
+        .expect_stderr("past the end of the set")
+        .expect_stderr("--beyond");
+    sb.run(&["repro", &spec, "--index", "5000", "--beyond"])
+        .expect_code(0)
+        .expect_stdout("past the end of the set's");
+    // With the set's --count the index is inside it.
+    sb.run(&["repro", &spec, "--index", "5000", "--count", "10000"])
+        .expect_code(0);
+}

@@ -1,15 +1,11 @@
-//! Shared test plumbing: a fresh temporary directory per test, a runner for the real
-//! `arithvec` binary that returns (exit code, stdout, stderr), fixture specs, readers for the
-//! files the binary writes, and assertions that print expected against actual.
-
-use std::path::{Path, PathBuf};
-use std::process::Command;
+//! The CLI tests' own plumbing: fixture specs, `check` runs, readers for the files the
+//! binary writes, and assertions that print expected against actual. The sandbox and the
+//! runner come from the shared `tests/support` module.
 
 use serde_json::Value;
 use sha2::{Digest, Sha256};
 
-/// The binary under test, built by Cargo for this test target.
-pub const BIN: &str = env!("CARGO_BIN_EXE_arithvec");
+pub use crate::support::{Run, Sandbox};
 
 /// An 8-bit unsigned adder with carry-in and every flag; small enough to re-derive by hand.
 pub const FLOW_ADDER: &str = r#"name = "flow_adder"
@@ -71,6 +67,9 @@ overflow = "ovf"
 zero = "zf"
 negative = "nf"
 
+[conventions]
+carry_in = "borrow"
+
 [random]
 count = 30
 seed = 11
@@ -129,169 +128,15 @@ pub fn spec_text(
     for (key, port) in ports {
         text.push_str(&format!("{key} = \"{port}\"\n"));
     }
+    if operation == "addsub" && text.contains("carry_in = ") {
+        // An addsub carry_in port must say what it means when subtracting.
+        text.push_str("\n[conventions]\ncarry_in = \"borrow\"\n");
+    }
     text.push_str(&format!("\n[random]\ncount = {count}\nseed = {seed}\n"));
     text
 }
 
-/// The outcome of one run of the binary.
-pub struct Run {
-    /// The command line, for messages.
-    pub command: String,
-    /// The exit code (-1 when killed by a signal).
-    pub code: i32,
-    /// Standard output.
-    pub stdout: String,
-    /// Standard error.
-    pub stderr: String,
-}
-
-impl Run {
-    /// Everything about the run, for a failure message.
-    pub fn describe(&self) -> String {
-        format!(
-            "command: {}\nexit code: {}\n--- stdout ---\n{}\n--- stderr ---\n{}",
-            self.command, self.code, self.stdout, self.stderr
-        )
-    }
-
-    /// Asserts the exit code, showing expected against actual and the whole run otherwise.
-    #[track_caller]
-    pub fn expect_code(&self, expected: i32) -> &Run {
-        assert_eq!(
-            self.code,
-            expected,
-            "expected exit code {expected}, got {}\n{}",
-            self.code,
-            self.describe()
-        );
-        self
-    }
-
-    /// Asserts that stderr contains `needle`.
-    #[track_caller]
-    pub fn expect_stderr(&self, needle: &str) -> &Run {
-        assert!(
-            self.stderr.contains(needle),
-            "expected stderr to contain {needle:?}\n{}",
-            self.describe()
-        );
-        self
-    }
-
-    /// Asserts that stdout contains `needle`.
-    #[track_caller]
-    pub fn expect_stdout(&self, needle: &str) -> &Run {
-        assert!(
-            self.stdout.contains(needle),
-            "expected stdout to contain {needle:?}\n{}",
-            self.describe()
-        );
-        self
-    }
-}
-
-/// A fresh temporary directory for one test; every relative path below is inside it, and the
-/// binary runs with it as the working directory.
-pub struct Sandbox {
-    dir: tempfile::TempDir,
-}
-
 impl Sandbox {
-    /// A new, empty sandbox.
-    pub fn new() -> Sandbox {
-        Sandbox {
-            dir: tempfile::Builder::new()
-                .prefix("arithvec-cli-")
-                .tempdir()
-                .expect("create a temporary directory"),
-        }
-    }
-
-    /// The sandbox's root.
-    pub fn root(&self) -> &Path {
-        self.dir.path()
-    }
-
-    /// `rel` inside the sandbox.
-    pub fn path(&self, rel: &str) -> PathBuf {
-        self.dir.path().join(rel)
-    }
-
-    /// Writes `text` to `rel` (creating parent directories) and returns the relative name.
-    pub fn write(&self, rel: &str, text: &str) -> String {
-        let p = self.path(rel);
-        if let Some(parent) = p.parent() {
-            std::fs::create_dir_all(parent).expect("create parent directory");
-        }
-        std::fs::write(&p, text).unwrap_or_else(|e| panic!("write {}: {e}", p.display()));
-        rel.to_string()
-    }
-
-    /// Reads `rel` as text.
-    pub fn read(&self, rel: &str) -> String {
-        let p = self.path(rel);
-        std::fs::read_to_string(&p).unwrap_or_else(|e| panic!("read {}: {e}", p.display()))
-    }
-
-    /// Reads `rel` as bytes.
-    pub fn bytes(&self, rel: &str) -> Vec<u8> {
-        let p = self.path(rel);
-        std::fs::read(&p).unwrap_or_else(|e| panic!("read {}: {e}", p.display()))
-    }
-
-    /// Reads and parses `rel` as JSON.
-    pub fn json(&self, rel: &str) -> Value {
-        let text = self.read(rel);
-        serde_json::from_str(&text).unwrap_or_else(|e| panic!("{rel} is not JSON ({e}):\n{text}"))
-    }
-
-    /// The sorted names of the entries in directory `rel`, hidden ones included.
-    pub fn list(&self, rel: &str) -> Vec<String> {
-        let p = self.path(rel);
-        let mut names: Vec<String> = std::fs::read_dir(&p)
-            .unwrap_or_else(|e| panic!("list {}: {e}", p.display()))
-            .map(|e| {
-                e.expect("directory entry")
-                    .file_name()
-                    .to_string_lossy()
-                    .into_owned()
-            })
-            .collect();
-        names.sort();
-        names
-    }
-
-    /// Runs the binary with `args` in the sandbox. Every run, whatever its exit code, must end
-    /// without a panic: user input never panics the tool.
-    pub fn run(&self, args: &[&str]) -> Run {
-        let output = Command::new(BIN)
-            .args(args)
-            .current_dir(self.root())
-            .output()
-            .expect("start the arithvec binary");
-        let run = Run {
-            command: format!("arithvec {}", args.join(" ")),
-            code: output.status.code().unwrap_or(-1),
-            stdout: String::from_utf8_lossy(&output.stdout).into_owned(),
-            stderr: String::from_utf8_lossy(&output.stderr).into_owned(),
-        };
-        assert!(
-            !run.stderr.contains("panicked"),
-            "the binary panicked\n{}",
-            run.describe()
-        );
-        run
-    }
-
-    /// Runs `gen SPEC --out DIR -q` plus `extra`, expecting success.
-    pub fn gen(&self, spec: &str, dir: &str, extra: &[&str]) -> Run {
-        let mut args = vec!["gen", spec, "--out", dir, "-q"];
-        args.extend_from_slice(extra);
-        let run = self.run(&args);
-        run.expect_code(0);
-        run
-    }
-
     /// Runs `check SPEC --log LOG --json <fresh file>` plus `extra`, expecting `code`, and
     /// returns the run and the parsed report.
     #[track_caller]

@@ -194,3 +194,41 @@ fn outputs_the_spec_does_not_check_are_not_observed() {
     assert!(all["collapsed"].as_u64() > r["collapsed"].as_u64());
     assert_eq!(all["unchecked_outputs"], serde_json::json!([]));
 }
+
+/// Issue 9 item 4: a spec output the netlist lacks is bad input (exit 2), like a missing
+/// input; it used to be ignored and the run passed.
+#[test]
+fn issue9_a_spec_output_missing_from_the_netlist_is_bad_input() {
+    if !have("yosys") {
+        return;
+    }
+    let sb = Sandbox::new();
+    let spec = sb.spec("add", Unit::Add, 8, 0, Flags::All);
+    sb.gen(&spec, "vec", &[]);
+    let json = sb.synthesize("add", Unit::Add, 8);
+    // Rename the netlist's result port y to res.
+    let text = sb.read(&json).replace("\"y\":", "\"res\":");
+    let renamed = sb.write("renamed.json", &text);
+    let run = sb.run(&["grade", &spec, "--vectors", "vec", "--netlist", &renamed]);
+    run.expect_code(2);
+    assert!(
+        run.stderr
+            .contains("has no output port \"y\" (the spec's result)"),
+        "{}",
+        run.describe()
+    );
+}
+
+/// Issue 9 item 5: `--require` is validated as in check (finite, 0..=100).
+#[test]
+fn issue9_grade_require_must_be_a_finite_percentage() {
+    let sb = Sandbox::new();
+    let spec = sb.spec("add", Unit::Add, 8, 0, Flags::All);
+    sb.gen(&spec, "vec", &[]);
+    for bad in ["nan", "101", "inf", "-1", "x"] {
+        let arg = format!("--require={bad}");
+        let run = sb.run(&["grade", &spec, "--vectors", "vec", "--builtin", &arg]);
+        run.expect_code(2);
+        assert!(run.stderr.contains("--require"), "{}", run.describe());
+    }
+}

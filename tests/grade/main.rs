@@ -9,4 +9,7 @@ mod compare;
 mod ctest;
 mod errors;
 mod icarus;
+#[path = "../support/mod.rs"]
+mod support;
+mod threads;
 mod util;

@@ -1,49 +1,24 @@
-//! Shared plumbing for the grading tests: a fresh temporary directory per test, a runner for
-//! the real `arithvec` binary, specs for the reference units in `tests/hdl/`, Yosys
-//! synthesis of those units, and the rule for missing tools (fail when `CI` is set, print a
-//! loud SKIPPED line otherwise).
+//! The grading tests' own plumbing: specs for the reference units in `tests/hdl/`, Yosys
+//! synthesis of those units, and library-side measurements. The sandbox, the runner, the
+//! path of the reference hardware and the rule for missing tools (fail when `CI` is set,
+//! print a loud SKIPPED line otherwise) come from the shared `tests/support` module.
 
-use std::path::{Path, PathBuf};
-use std::process::Command;
+use std::path::PathBuf;
 
 use arithvec::{Generator, GradeOutcome, Grader, Inputs, Model, Netlist, Outputs, Spec};
 use serde_json::Value;
 
-/// The binary under test, built by Cargo for this test target.
-pub const BIN: &str = env!("CARGO_BIN_EXE_arithvec");
+pub use crate::support::{hdl, skipped, Sandbox};
 
 /// The synthesis steps after `read_verilog` and `chparam`: the flow the README documents
 /// (Yosys 0.23), flattening the cells and mapping to simple gates.
 pub const SYNTH_STEPS: &str =
     "synth -flatten -top {top}; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean";
 
-/// A file of the reference hardware.
-pub fn hdl(file: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/hdl")
-        .join(file)
-}
-
 /// True when `tool` can be started. When it cannot: panics if the `CI` environment variable
 /// is set (CI must run every test), otherwise prints a loud SKIPPED line and returns false.
 pub fn have(tool: &str) -> bool {
-    // Both yosys and iverilog take -V (print the version); only whether it starts matters.
-    let found = Command::new(tool).arg("-V").output().is_ok();
-    if !found {
-        assert!(
-            std::env::var_os("CI").is_none(),
-            "{tool} is not installed and CI is set: this test must run in CI"
-        );
-        skipped(&format!("{tool} not found; this grading test did not run"));
-    }
-    found
-}
-
-/// Prints a loud SKIPPED line straight to the stderr handle: the harness captures
-/// `eprintln!` and would show it only for failing tests.
-pub fn skipped(what: &str) {
-    use std::io::Write as _;
-    let _ = writeln!(std::io::stderr(), "\n*** SKIPPED: {what} ***\n");
+    crate::support::require_tool(tool)
 }
 
 /// The reference units graded here.
@@ -117,143 +92,13 @@ pub fn spec(unit: Unit, width: u32, random: u64, flags: Flags) -> Spec {
     Spec::parse(&spec_text(unit, width, random, flags), "<test spec>").expect("test spec parses")
 }
 
-/// The outcome of one run of the binary.
-pub struct Run {
-    /// The command line, for messages.
-    pub command: String,
-    /// The exit code (-1 when killed by a signal).
-    pub code: i32,
-    /// Standard output.
-    pub stdout: String,
-    /// Standard error.
-    pub stderr: String,
-}
-
-impl Run {
-    /// Everything about the run, for a failure message.
-    pub fn describe(&self) -> String {
-        format!(
-            "command: {}\nexit code: {}\n--- stdout ---\n{}\n--- stderr ---\n{}",
-            self.command, self.code, self.stdout, self.stderr
-        )
-    }
-
-    /// Asserts the exit code, showing the whole run otherwise.
-    #[track_caller]
-    pub fn expect_code(&self, expected: i32) -> &Run {
-        assert_eq!(
-            self.code,
-            expected,
-            "expected exit code {expected}, got {}\n{}",
-            self.code,
-            self.describe()
-        );
-        self
-    }
-
-    /// Parses stdout as JSON.
-    #[track_caller]
-    pub fn json(&self) -> Value {
-        serde_json::from_str(&self.stdout)
-            .unwrap_or_else(|e| panic!("stdout is not JSON ({e})\n{}", self.describe()))
-    }
-}
-
-/// A fresh temporary directory for one test; the binary and the tools run inside it.
-pub struct Sandbox {
-    dir: tempfile::TempDir,
-}
-
 impl Sandbox {
-    /// A new, empty sandbox.
-    pub fn new() -> Sandbox {
-        Sandbox {
-            dir: tempfile::Builder::new()
-                .prefix("arithvec-grade-")
-                .tempdir()
-                .expect("create a temporary directory"),
-        }
-    }
-
-    /// The sandbox's root.
-    pub fn root(&self) -> &Path {
-        self.dir.path()
-    }
-
-    /// `rel` inside the sandbox.
-    pub fn path(&self, rel: &str) -> PathBuf {
-        self.dir.path().join(rel)
-    }
-
-    /// Writes `text` to `rel` and returns `rel`.
-    pub fn write(&self, rel: &str, text: &str) -> String {
-        let p = self.path(rel);
-        if let Some(parent) = p.parent() {
-            std::fs::create_dir_all(parent).expect("create parent directory");
-        }
-        std::fs::write(&p, text).unwrap_or_else(|e| panic!("write {}: {e}", p.display()));
-        rel.to_string()
-    }
-
-    /// Reads `rel` as text.
-    pub fn read(&self, rel: &str) -> String {
-        let p = self.path(rel);
-        std::fs::read_to_string(&p).unwrap_or_else(|e| panic!("read {}: {e}", p.display()))
-    }
-
-    /// Runs the binary with `args` in the sandbox; no run may panic, whatever the input.
-    pub fn run(&self, args: &[&str]) -> Run {
-        let output = Command::new(BIN)
-            .args(args)
-            .current_dir(self.root())
-            .output()
-            .expect("start the arithvec binary");
-        let run = Run {
-            command: format!("arithvec {}", args.join(" ")),
-            code: output.status.code().unwrap_or(-1),
-            stdout: String::from_utf8_lossy(&output.stdout).into_owned(),
-            stderr: String::from_utf8_lossy(&output.stderr).into_owned(),
-        };
-        assert!(
-            !run.stderr.contains("panicked"),
-            "the binary panicked\n{}",
-            run.describe()
-        );
-        run
-    }
-
-    /// Runs an external tool in the sandbox, expecting success; returns its stdout.
-    #[track_caller]
-    pub fn tool(&self, program: &str, args: &[&str]) -> String {
-        let out = Command::new(program)
-            .args(args)
-            .current_dir(self.root())
-            .output()
-            .unwrap_or_else(|e| panic!("start {program}: {e}"));
-        assert!(
-            out.status.success(),
-            "{program} {} failed:\n{}\n{}",
-            args.join(" "),
-            String::from_utf8_lossy(&out.stdout),
-            String::from_utf8_lossy(&out.stderr)
-        );
-        String::from_utf8_lossy(&out.stdout).into_owned()
-    }
-
     /// Writes the spec for `unit` to `NAME.toml` and returns the file name.
     pub fn spec(&self, name: &str, unit: Unit, width: u32, random: u64, flags: Flags) -> String {
         self.write(
             &format!("{name}.toml"),
             &spec_text(unit, width, random, flags),
         )
-    }
-
-    /// `arithvec gen SPEC --out DIR -q` plus `extra`, expecting success.
-    #[track_caller]
-    pub fn gen(&self, spec: &str, dir: &str, extra: &[&str]) {
-        let mut args = vec!["gen", spec, "--out", dir, "-q"];
-        args.extend_from_slice(extra);
-        self.run(&args).expect_code(0);
     }
 
     /// `arithvec grade SPEC --vectors DIR --format json` plus `source` (such as

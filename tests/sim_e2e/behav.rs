@@ -41,9 +41,13 @@ fn agrees(
     let mut loops = 0;
     for (encoding, signed) in [("twos", 1), ("unsigned", 0)] {
         for width in WIDTHS {
-            let spec = UnitSpec::new(unit, operation, encoding, width, ports, &module)
+            let mut spec = UnitSpec::new(unit, operation, encoding, width, ports, &module)
                 .parameter("SIGNED", signed)
                 .count(COUNT);
+            if operation == "addsub" {
+                // behav_addsub subtracts cin as a borrow-in when mode = 1.
+                spec = spec.convention("carry_in", "borrow");
+            }
             let options = Options {
                 self_check: true,
                 ..Options::default()

@@ -13,17 +13,8 @@ use num_bigint::BigUint;
 use serde_json::Value;
 
 use crate::spec::UnitSpec;
-use crate::tools::require_tools;
-
-/// The binary under test, built by Cargo for this test target.
-pub const BIN: &str = env!("CARGO_BIN_EXE_arithvec");
-
-/// A file of the reference hardware, e.g. `hdl("ripple_add.v")` or `hdl("vhdl/ripple_sub.vhd")`.
-pub fn hdl(relative: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/hdl")
-        .join(relative)
-}
+pub use crate::support::hdl;
+use crate::support::{require_tools, BIN};
 
 /// The simulators the suite drives.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -46,7 +37,7 @@ impl Simulator {
         }
     }
 
-    /// True when every program is there (see `tools::require_tool` for what a miss means).
+    /// True when every program is there (see `support::require_tool` for what a miss means).
     pub fn available(self) -> bool {
         require_tools(self.tools())
     }

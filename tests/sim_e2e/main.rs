@@ -11,8 +11,11 @@
 //! be watched.
 
 mod behav;
+mod behav_ops;
 mod bugs;
 mod flow;
 mod reference;
 mod spec;
+#[path = "../support/mod.rs"]
+mod support;
 mod tools;

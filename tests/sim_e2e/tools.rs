@@ -2,79 +2,17 @@
 //! error, because a suite that silently skips proves nothing; on a developer's machine it is
 //! a loud `*** SKIPPED: <tool> not found ***` line on stderr and the test returns early.
 //!
-//! The decision is a pure function (`decide`) tested for every input, and `require_tool` is
-//! also run for real in a child process of this test binary with a PATH that lacks the tool.
-
-use std::io::Write as _;
-use std::process::{Command, Stdio};
-
-/// What a test does about one tool.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum ToolDecision {
-    /// The tool is there: run the test.
-    Run,
-    /// The tool is missing on a developer's machine: say so loudly and skip.
-    Skip,
-    /// The tool is missing under CI: fail the test.
-    Fail,
-}
-
-/// The decision for a tool that was or was not `found`, with or without `ci` set.
-pub fn decide(found: bool, ci: bool) -> ToolDecision {
-    match (found, ci) {
-        (true, _) => ToolDecision::Run,
-        (false, true) => ToolDecision::Fail,
-        (false, false) => ToolDecision::Skip,
-    }
-}
-
-/// True when `name` can be started from PATH. Icarus' tools take `-V` for their version,
-/// the others `--version`; only whether the program starts matters.
-pub fn tool_found(name: &str) -> bool {
-    let flag = if name == "iverilog" || name == "vvp" {
-        "-V"
-    } else {
-        "--version"
-    };
-    Command::new(name)
-        .arg(flag)
-        .stdin(Stdio::null())
-        .stdout(Stdio::null())
-        .stderr(Stdio::null())
-        .status()
-        .is_ok()
-}
-
-/// The panic message for a tool missing under CI; the child-process test looks for it.
-fn missing_under_ci(name: &str) -> String {
-    format!("{name} not found on PATH and CI is set: the simulator end-to-end tests must run in CI")
-}
-
-/// True when `name` is available. A missing tool panics when `CI` is set and otherwise prints
-/// `*** SKIPPED: <name> not found ***` to stderr and returns false.
-pub fn require_tool(name: &str) -> bool {
-    match decide(tool_found(name), std::env::var_os("CI").is_some()) {
-        ToolDecision::Run => true,
-        ToolDecision::Fail => panic!("{}", missing_under_ci(name)),
-        ToolDecision::Skip => {
-            // Written to the stderr handle rather than with eprintln!, which the test harness
-            // captures and shows only for failing tests.
-            let _ = writeln!(std::io::stderr(), "\n*** SKIPPED: {name} not found ***\n");
-            false
-        }
-    }
-}
-
-/// True when every tool in `names` is available (each missing one is reported).
-pub fn require_tools(names: &[&str]) -> bool {
-    // Every tool is asked before deciding, so each missing one gets its own line.
-    let found: Vec<bool> = names.iter().map(|name| require_tool(name)).collect();
-    found.into_iter().all(|ok| ok)
-}
+//! The rule lives in the shared `tests/support` module (the grading tests follow it too);
+//! here the decision, a pure function (`decide`), is tested for every input, and
+//! `require_tool` is also run for real in a child process of this test binary with a PATH
+//! that lacks the tool.
 
 #[cfg(test)]
 mod tests {
-    use super::*;
+    use std::io::Write as _;
+    use std::process::Command;
+
+    use crate::support::{decide, missing_under_ci, require_tool, tool_found, ToolDecision};
 
     /// The environment variable that tells `probe_require_tool` which tool to look for.
     const PROBE_TOOL: &str = "SIM_E2E_PROBE_TOOL";

@@ -14,12 +14,14 @@
 
 use crate::arith::bits::{Bits, Wide};
 use crate::arith::encoding::{decode, max_value, min_value, negative_zero};
-use crate::arith::model::{Cell, Inputs, Model, Outputs, Path, Trace};
+use crate::arith::model::{offset_carries, Cell, Inputs, Model, Outputs, Path, Trace};
 use crate::arith::word::Word;
 use crate::spec::{Encoding, Operation, Signal, Spec};
 
+mod ext;
 mod program;
 mod templates;
+pub(crate) use ext::{booth_digits, booth_operand, ExtKind};
 use program::*;
 use templates::*;
 
@@ -119,6 +121,7 @@ pub(crate) enum Kind {
     SignMagEffectiveSub,
     SignMagOpposites,
     OffsetMidpoint,
+    OffsetCarrySource,
     CompareOutcome,
     CompareEqual,
     CompareOffByOne,
@@ -130,6 +133,8 @@ pub(crate) enum Kind {
     /// Equal operands at each of these special patterns, one bin each.
     CompareEqualSpecial(Vec<Word>),
     CompareSignOnly,
+    /// A class of the shift, rotate and multiply operations (see `ext`).
+    Ext(ExtKind),
 }
 
 /// One corner class.
@@ -483,6 +488,10 @@ impl Catalogue {
             let t = self.model.trace::<u128>(inputs);
             self.classify_narrow(inputs, &t, hits, detail);
             self.model.outputs_of(&t)
+        } else if self.model.needs_huge() {
+            let t = self.model.trace::<crate::arith::bits::Huge>(inputs);
+            self.classify(inputs, &t, hits, detail);
+            self.model.outputs_of(&t)
         } else {
             let t = self.model.trace::<Wide>(inputs);
             self.classify(inputs, &t, hits, detail);
@@ -797,6 +806,15 @@ impl Catalogue {
                         }
                     }
                 }
+                Kind::OffsetCarrySource => {
+                    if let Path::Ripple { cell, x, y, c0, .. } = t.path {
+                        match offset_carries(cell, x, y, c0, w) {
+                            (true, false) => bin(hits, 0),
+                            (false, true) => bin(hits, 1),
+                            _ => {}
+                        }
+                    }
+                }
                 Kind::OffsetMidpoint => {
                     let mid = B::single_bit(w - 1);
                     if a == mid {
@@ -878,6 +896,9 @@ impl Catalogue {
                             bin(hits, k as u32);
                         }
                     }
+                }
+                Kind::Ext(kind) => {
+                    ext::ext_bins(&self.model, kind, a, b, t, |k| bin(hits, k));
                 }
             }
         }

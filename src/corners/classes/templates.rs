@@ -76,6 +76,11 @@ pub(super) fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) ->
         ));
     }
 
+    if op.is_extended() {
+        super::ext::ext_templates(model, spec, &mut out);
+        return out;
+    }
+
     if op == Operation::Compare {
         out.push((
             "compare.outcome".into(),
@@ -285,6 +290,21 @@ pub(super) fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) ->
             "sign-magnitude x + (-x) with x non-zero: x positive, x negative".into(),
             Kind::SignMagOpposites,
             vec!["x_positive".into(), "x_negative".into()],
+        ));
+    }
+    if enc == Encoding::Offset
+        && matches!(op, Operation::Add | Operation::Sub | Operation::AddSub)
+        && spec.has(Signal::CarryOut)
+    {
+        // The two offset datapaths (conventions.offset_carry) carry out of the top bit
+        // differently here; a unit built the other way fails in one of these bins.
+        out.push((
+            "offset.carry_source".into(),
+            "offset binary: the inner two's-complement datapath carries (or borrows) out of \
+             the top bit and the adder of the codes does not, and the reverse"
+                .into(),
+            Kind::OffsetCarrySource,
+            vec!["inner_only".into(), "codes_only".into()],
         ));
     }
     if enc == Encoding::Offset {

@@ -24,6 +24,8 @@ pub(super) struct Engine<'a> {
     pub(super) gate_seen: Vec<u32>,
     pub(super) seen_mark: u32,
     pub(super) stack: Vec<u32>,
+    /// Faulty values of wide passes (allocated on the first one).
+    pub(super) faulty_wide: Vec<WideSlot>,
 }
 
 impl<'a> Engine<'a> {
@@ -37,6 +39,17 @@ impl<'a> Engine<'a> {
             gate_seen: vec![0; nl.gates().len()],
             seen_mark: 0,
             stack: Vec::new(),
+            faulty_wide: Vec::new(),
+        }
+    }
+
+    /// Starts a new fault: every faulty value recorded so far becomes stale.
+    pub(super) fn next_mark(&mut self) {
+        self.mark = self.mark.wrapping_add(1);
+        if self.mark == 0 {
+            self.faulty.fill(Slot::default());
+            self.faulty_wide.fill(WideSlot::default());
+            self.mark = 1;
         }
     }
 
@@ -101,11 +114,7 @@ impl<'a> Engine<'a> {
     /// when one of its inputs carries a fault effect, and the walk ends once no net carrying
     /// an effect has readers left.
     pub(super) fn detect(&mut self, fault: &Fault, cone: &[u32], good: &[u64], mask: u64) -> u64 {
-        self.mark = self.mark.wrapping_add(1);
-        if self.mark == 0 {
-            self.faulty.fill(Slot::default());
-            self.mark = 1;
-        }
+        self.next_mark();
         self.horizon = 0;
         let stuck = if fault.stuck_at { !0u64 } else { 0 };
         let mut detected = 0u64;
@@ -326,25 +335,14 @@ pub(super) fn grade_inner(
     patterns.check(nl)?;
     let lanes = options.mode.lanes();
     let classes = faults.collapsed();
-    let mut first = vec![None; classes];
-    let mut remaining: Vec<usize> = (0..classes).collect();
+    // Each class's first detection depends on nothing but its own fault, so the classes are
+    // split between threads and the results are the same on any thread count.
+    let first: Vec<Option<usize>> = split_classes(classes, options.threads, |range| {
+        first_detections(nl, topo, faults, patterns, options.mode, range)
+    })
+    .concat();
+    let remaining: Vec<usize> = (0..classes).filter(|&c| first[c].is_none()).collect();
     let mut engine = Engine::new(nl, topo);
-    let mut cones = ConeCache::new(classes);
-    for_each_chunk(nl, patterns, lanes, |chunk| {
-        remaining.retain(|&c| {
-            let rep = faults.representative(c);
-            let cone = cones.get(&mut engine, c, rep.site);
-            for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
-                let detected = engine.detect(&rep, cone, chunk.good(k), lane_mask(count));
-                if detected != 0 {
-                    first[c] = Some(start + detected.trailing_zeros() as usize);
-                    return false;
-                }
-            }
-            true
-        });
-        !remaining.is_empty()
-    });
 
     let limit = options.proof_limit.min(PROOF_LIMIT_CAP);
     let reps: Vec<Fault> = remaining
@@ -384,6 +382,96 @@ pub(super) fn grade_inner(
         ungraded_gates: 0,
         first_detection: first,
     })
+}
+
+/// Runs `f` on contiguous ranges of `0..classes`, one per thread (`threads` 0: one per
+/// core), and returns the results in range order. Scoped threads: a panic is passed on.
+pub(super) fn split_classes<T: Send>(
+    classes: usize,
+    threads: usize,
+    f: impl Fn(std::ops::Range<usize>) -> T + Sync,
+) -> Vec<T> {
+    let threads = match threads {
+        0 => std::thread::available_parallelism().map_or(1, |n| n.get()),
+        n => n,
+    }
+    .clamp(1, classes.max(1));
+    if threads == 1 {
+        return vec![f(0..classes)];
+    }
+    let ranges: Vec<_> = (0..threads)
+        .map(|t| classes * t / threads..classes * (t + 1) / threads)
+        .collect();
+    let f = &f;
+    std::thread::scope(|scope| {
+        let handles: Vec<_> = ranges
+            .into_iter()
+            .map(|range| scope.spawn(move || f(range)))
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| {
+                h.join()
+                    .unwrap_or_else(|panic| std::panic::resume_unwind(panic))
+            })
+            .collect()
+    })
+}
+
+/// The first vector detecting each class of `range` (None: not detected), with fault
+/// dropping.
+fn first_detections(
+    nl: &Netlist,
+    topo: &Topology,
+    faults: &FaultList,
+    patterns: &PatternSet,
+    mode: SimulationMode,
+    range: std::ops::Range<usize>,
+) -> Vec<Option<usize>> {
+    let lanes = mode.lanes();
+    let classes = faults.collapsed();
+    let offset = range.start;
+    let mut first = vec![None; range.len()];
+    let mut remaining: Vec<usize> = range.collect();
+    if remaining.is_empty() {
+        return first;
+    }
+    let mut engine = Engine::new(nl, topo);
+    let mut cones = ConeCache::new(classes);
+    let mut wide = WideChunk::default();
+    let use_wide = mode == SimulationMode::BitParallel;
+    for_each_chunk(nl, patterns, lanes, |chunk| {
+        if use_wide {
+            wide.fill(chunk);
+        }
+        remaining.retain(|&c| {
+            let rep = faults.representative(c);
+            let cone = cones.get(&mut engine, c, rep.site);
+            // Whole groups of four blocks in wide passes, the rest block by block; the
+            // first lane detected is the same either way.
+            for g in 0..wide.groups * use_wide as usize {
+                let (good, mask) = wide.group(g);
+                let detected = engine.detect_wide(&rep, cone, good, mask);
+                if let Some(w) = detected.iter().position(|&d| d != 0) {
+                    let start = chunk.blocks[g * WIDE + w].0;
+                    first[c - offset] = Some(start + detected[w].trailing_zeros() as usize);
+                    return false;
+                }
+            }
+            let done = if use_wide { wide.groups * WIDE } else { 0 };
+            for (k, &(start, count)) in chunk.blocks.iter().enumerate().skip(done) {
+                let detected = engine.detect(&rep, cone, chunk.good(k), lane_mask(count));
+                if detected != 0 {
+                    first[c - offset] = Some(start + detected.trailing_zeros() as usize);
+                    return false;
+                }
+            }
+            true
+        });
+        !remaining.is_empty()
+    });
+
+    first
 }
 
 pub(super) fn describe(

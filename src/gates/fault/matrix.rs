@@ -71,31 +71,77 @@ pub fn detection_matrix(
     patterns: &PatternSet,
     mode: SimulationMode,
 ) -> Result<DetectionMatrix> {
+    detection_matrix_on(netlist, faults, patterns, mode, 1)
+}
+
+/// [`detection_matrix`] on `threads` threads (0: one per core), each simulating a
+/// contiguous range of classes; the matrix is the same on any thread count.
+pub(crate) fn detection_matrix_on(
+    netlist: &Netlist,
+    faults: &FaultList,
+    patterns: &PatternSet,
+    mode: SimulationMode,
+    threads: usize,
+) -> Result<DetectionMatrix> {
     faults.check(netlist)?;
     patterns.check(netlist)?;
     let topo = Topology::new(netlist);
     let words_per_row = patterns.len().div_ceil(64);
     let classes = faults.collapsed();
-    let mut rows = vec![0u64; classes * words_per_row];
-    let reps: Vec<Fault> = (0..classes).map(|c| faults.representative(c)).collect();
-    let mut engine = Engine::new(netlist, &topo);
-    let mut cones = ConeCache::new(classes);
-    for_each_chunk(netlist, patterns, mode.lanes(), |chunk| {
-        for (c, rep) in reps.iter().enumerate() {
-            let cone = cones.get(&mut engine, c, rep.site);
-            for (k, &(start, count)) in chunk.blocks.iter().enumerate() {
-                let detected = engine.detect(rep, cone, chunk.good(k), lane_mask(count));
-                rows[c * words_per_row + start / 64] |= detected << (start % 64);
-            }
-        }
-        true
+    let parts = split_classes(classes, threads, |range| {
+        matrix_rows(netlist, &topo, faults, patterns, mode, range)
     });
     Ok(DetectionMatrix {
         vectors: patterns.len(),
         classes,
         words_per_row,
-        rows,
+        rows: parts.concat(),
     })
+}
+
+/// The matrix rows of the classes in `range`.
+fn matrix_rows(
+    netlist: &Netlist,
+    topo: &Topology,
+    faults: &FaultList,
+    patterns: &PatternSet,
+    mode: SimulationMode,
+    range: std::ops::Range<usize>,
+) -> Vec<u64> {
+    let words_per_row = patterns.len().div_ceil(64);
+    let classes = faults.collapsed();
+    let offset = range.start;
+    let mut rows = vec![0u64; range.len() * words_per_row];
+    let reps: Vec<(usize, Fault)> = range.map(|c| (c, faults.representative(c))).collect();
+    let mut engine = Engine::new(netlist, topo);
+    let mut cones = ConeCache::new(classes);
+    let mut wide = WideChunk::default();
+    let use_wide = mode == SimulationMode::BitParallel;
+    for_each_chunk(netlist, patterns, mode.lanes(), |chunk| {
+        if use_wide {
+            wide.fill(chunk);
+        }
+        let done = if use_wide { wide.groups * WIDE } else { 0 };
+        for &(c, ref rep) in &reps {
+            let cone = cones.get(&mut engine, c, rep.site);
+            let row = (c - offset) * words_per_row;
+            // Whole groups of four 64-vector blocks in wide passes, the rest block by block.
+            for g in 0..done / WIDE {
+                let (good, mask) = wide.group(g);
+                let detected = engine.detect_wide(rep, cone, good, mask);
+                for (w, &d) in detected.iter().enumerate() {
+                    let start = chunk.blocks[g * WIDE + w].0;
+                    rows[row + start / 64] |= d;
+                }
+            }
+            for (k, &(start, count)) in chunk.blocks.iter().enumerate().skip(done) {
+                let detected = engine.detect(rep, cone, chunk.good(k), lane_mask(count));
+                rows[row + start / 64] |= detected << (start % 64);
+            }
+        }
+        true
+    });
+    rows
 }
 
 /// Picks a subset of the vectors that still detects every fault class the full set detects

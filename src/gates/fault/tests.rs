@@ -128,6 +128,63 @@ fn engine_agrees_with_full_reevaluation() {
     }
 }
 
+/// The wide passes (four blocks of 64 at once) find exactly the lanes the 64-lane engine
+/// finds block by block, and grading and the detection matrix agree with the serial mode,
+/// over sets with whole groups, a partial last block, and chunks of 1, 2, 4 and 8 blocks.
+#[test]
+fn wide_passes_agree_with_single_blocks_and_the_serial_mode() {
+    for seed in 1..30u64 {
+        let nl = random_netlist(seed * 6271);
+        let topo = Topology::new(&nl);
+        let faults = FaultList::with_topology(&nl, &topo);
+        let count = [700, 1024, 2000, 257][seed as usize % 4];
+        let vectors = random_vectors(&nl, count, seed);
+        let patterns = PatternSet::from_vectors(&nl, &vectors, "t").unwrap();
+        let mut engine = Engine::new(&nl, &topo);
+        let mut cone = Vec::new();
+        let mut wide = WideChunk::default();
+        let mut groups = 0;
+        for_each_chunk(&nl, &patterns, 64, |chunk| {
+            wide.fill(chunk);
+            for g in 0..wide.groups {
+                groups += 1;
+                let (good, mask) = wide.group(g);
+                for f in faults.faults() {
+                    engine.cone_of(f.site, &mut cone);
+                    let got = engine.detect_wide(f, &cone, good, mask);
+                    for (w, &d) in got.iter().enumerate() {
+                        let k = g * WIDE + w;
+                        let m = lane_mask(chunk.blocks[k].1);
+                        let want = engine.detect(f, &cone, chunk.good(k), m);
+                        assert_eq!(d, want, "seed {seed} block {k} {f:?}");
+                    }
+                }
+            }
+            true
+        });
+        assert!(
+            count < 448 || groups > 0,
+            "seed {seed}: no wide group was run"
+        );
+        let serial = detection_matrix(&nl, &faults, &patterns, SimulationMode::Serial).unwrap();
+        let parallel =
+            detection_matrix(&nl, &faults, &patterns, SimulationMode::BitParallel).unwrap();
+        assert_eq!(parallel, serial, "seed {seed}: detection matrices");
+        let graded = |mode| {
+            let options = GradeOptions {
+                mode,
+                ..GradeOptions::default()
+            };
+            grade_with(&nl, &faults, &patterns, &options).unwrap()
+        };
+        assert_eq!(
+            graded(SimulationMode::BitParallel),
+            graded(SimulationMode::Serial),
+            "seed {seed}: reports"
+        );
+    }
+}
+
 #[test]
 fn equivalent_faults_have_equal_detection() {
     // Collapsing is only sound if every member of a class is detected by exactly the

@@ -25,8 +25,13 @@
 //!   misreading that as a known value would hide an unknown. A hand-written prefixed value
 //!   should therefore carry fewer or more digits than `%h` prints (`0x5`, `0x0005`).
 //! - Binary radix: an optional `0b`/`0B` prefix (`b` is never a binary digit, so no ambiguity).
-//! - Decimal radix: no prefix; a leading `-` (as `%0d` prints a signed reg) stands for the
-//!   two's-complement pattern of the column's width and must lie in its range. A decimal value
+//! - Decimal radix: no prefix. Digits alone are the bit pattern read as an unsigned number (as
+//!   `%0d` prints an unsigned reg). A leading `-` makes the token a signed value: in the value
+//!   columns (a, b, result) it is encoded in the spec's encoding (two's complement: the
+//!   pattern `%0d` of a signed reg stands for; ones: `~m`; sign-magnitude: sign bit and
+//!   magnitude; offset binary: `2^(W-1) - m`; `-0` is the negative zero of ones and
+//!   sign-magnitude; unsigned has no negative values and refuses one); in flag columns it is the
+//!   two's-complement pattern of the column's width. The value must lie in the range. A decimal value
 //!   is unknown only as a whole (below); an x among decimal digits is a problem. Plain `%d`
 //!   pads with spaces, which blank separation absorbs and comma separation trims.
 //! - A Verilog-style literal, `[size]'[s]<base><digits>` with base `h`, `b`, `o` or `d`
@@ -69,7 +74,7 @@ use std::sync::Arc;
 
 use crate::arith::word::{hex_digits, Word, LIMBS, MAX_WIDTH};
 use crate::error::{Error, Problem, Result};
-use crate::spec::{Signal, Spec};
+use crate::spec::{Encoding, Signal, Spec};
 
 mod value;
 use value::*;
@@ -230,7 +235,13 @@ impl From<RowError> for Error {
 #[derive(Debug, Clone, Copy)]
 enum Target {
     Index,
-    Value { slot: usize, width: u32 },
+    /// `encoding` is the spec's encoding for the value ports (a, b, result), whose signed
+    /// decimals are values encoded in it; None for flags and the mode bit.
+    Value {
+        slot: usize,
+        width: u32,
+        encoding: Option<Encoding>,
+    },
 }
 
 #[derive(Debug, Clone)]
@@ -603,9 +614,17 @@ impl LineFormat {
             };
             let result = match column.target {
                 Target::Index => parse_index(token).map(|v| row.index = Some(v)),
-                Target::Value { slot, width } => {
-                    parse_value(token, self.radix, width, &mut row.values[slot])
-                }
+                Target::Value {
+                    slot,
+                    width,
+                    encoding,
+                } => match (self.radix, encoding, token.strip_prefix(b"-")) {
+                    // A lone `-` is GHDL's std_logic don't-care, not a sign.
+                    (Radix::Dec, Some(enc), Some(magnitude)) if !magnitude.is_empty() => {
+                        parse_signed_decimal(magnitude, width, enc, &mut row.values[slot])
+                    }
+                    _ => parse_value(token, self.radix, width, &mut row.values[slot]),
+                },
             };
             if let Err(e) = result {
                 // A misaligned line shows up as a bad value first; report the real cause.
@@ -696,7 +715,9 @@ fn parse_header(
             present |= 1 << slot(signal);
             Target::Value {
                 slot: slot(signal),
-                width: signal.width(spec.width),
+                width: spec.signal_width(signal),
+                encoding: matches!(signal, Signal::A | Signal::B | Signal::Result)
+                    .then_some(spec.encoding),
             }
         } else if i == 0 && name.bytes().all(|b| b.is_ascii_digit()) {
             // A data line where the header should be: one problem says it all.
@@ -761,7 +782,7 @@ fn parse_header(
                 max: u64::MAX,
                 wide: false,
             },
-            Target::Value { slot, width } => PlainColumn {
+            Target::Value { slot, width, .. } => PlainColumn {
                 slot: Some(slot),
                 radix,
                 max: if width >= 64 {

@@ -77,7 +77,7 @@ fn outcomes(text: &str, spec: &Spec, radix: Radix, binary: bool) -> Vec<String> 
                     let name = spec.ports.get(signal).unwrap();
                     s.push_str(&format!(
                         " {name}={}",
-                        show(v, signal.width(spec.width), binary)
+                        show(v, spec.signal_width(signal), binary)
                     ));
                 }
                 out.push(s);

@@ -17,6 +17,8 @@ pub(super) enum ValueError {
     BadSize,
     BadBase(Option<u8>),
     BelowRange,
+    BelowEncodingRange(Encoding),
+    NegativeUnsigned,
     BadIndex,
     IndexTooLarge,
 }
@@ -53,6 +55,15 @@ impl ValueError {
             ),
             ValueError::BelowRange => format!(
                 "value {tok} is below the {width}-bit two's-complement range (column {col})"
+            ),
+            ValueError::BelowEncodingRange(enc) => format!(
+                "value {tok} is below the {width}-bit {} range, whose smallest value is -{} \
+                 (column {col})",
+                enc.name(),
+                Word::ones(width.saturating_sub(1)).to_decimal()
+            ),
+            ValueError::NegativeUnsigned => format!(
+                "value {tok} in column {col} is negative, but the unit's encoding is unsigned"
             ),
             ValueError::BadIndex => {
                 format!("bad index \"{tok}\" in column {col}: expected an unsigned decimal number")
@@ -462,12 +473,49 @@ pub(super) fn parse_digits(
     Ok(())
 }
 
-/// A negative decimal: the two's-complement pattern of `-magnitude` in `width` bits.
-pub(super) fn parse_negative_decimal(
+/// A signed decimal `-magnitude` in a value column, encoded in the spec's encoding (see the
+/// parent module's documentation): the log gave a value, and the checker compares patterns.
+pub(super) fn parse_signed_decimal(
     magnitude: &[u8],
     width: u32,
+    encoding: Encoding,
     out: &mut FieldValue,
 ) -> std::result::Result<(), ValueError> {
+    let msb = Word::bit_mask(width - 1);
+    match encoding {
+        Encoding::Twos => parse_negative_decimal(magnitude, width, out),
+        // Offset binary is two's complement with the top bit inverted.
+        Encoding::Offset => {
+            parse_negative_decimal(magnitude, width, out)?;
+            out.bits = out.bits.xor(&msb);
+            Ok(())
+        }
+        Encoding::Unsigned => {
+            parse_negative_decimal(magnitude, width, out)?;
+            if out.bits.is_zero() {
+                Ok(())
+            } else {
+                Err(ValueError::NegativeUnsigned)
+            }
+        }
+        Encoding::Ones | Encoding::SignMagnitude => {
+            let m = Word::from_limbs(decimal_magnitude(magnitude)?);
+            if m.significant_bits() > width - 1 {
+                return Err(ValueError::BelowEncodingRange(encoding));
+            }
+            let pattern = if encoding == Encoding::Ones {
+                m.not(width)
+            } else {
+                m.or(&msb)
+            };
+            *out = FieldValue::known(pattern);
+            Ok(())
+        }
+    }
+}
+
+/// The digits of a decimal magnitude (with `_` separators), as limbs.
+fn decimal_magnitude(magnitude: &[u8]) -> std::result::Result<[u64; LIMBS], ValueError> {
     let mut m = [0u64; LIMBS];
     let mut count = 0;
     for &c in magnitude {
@@ -486,6 +534,16 @@ pub(super) fn parse_negative_decimal(
     if count == 0 {
         return Err(ValueError::NoDigits);
     }
+    Ok(m)
+}
+
+/// A negative decimal: the two's-complement pattern of `-magnitude` in `width` bits.
+pub(super) fn parse_negative_decimal(
+    magnitude: &[u8],
+    width: u32,
+    out: &mut FieldValue,
+) -> std::result::Result<(), ValueError> {
+    let mut m = decimal_magnitude(magnitude)?;
     if m.iter().all(|&l| l == 0) {
         *out = FieldValue::known(Word::ZERO);
         return Ok(());

@@ -1,0 +1,212 @@
+//! The golden model of the shift, rotate and multiply operations.
+//!
+//! The rules (DEVELOPERS.md, "Golden model rules", shifts and mul) in one place: every
+//! function is generic over `bits::Bits` and runs on `u128` for the fast path and on the wide
+//! integers above it (a 1088-bit one for products of up to 512 x 512 bits). Nothing here knows
+//! about files or ports.
+
+use crate::arith::bits::Bits;
+use crate::arith::encoding::{decode, is_negative_zero, representable, sign_bit};
+use crate::spec::{
+    Encoding, LargeAmount, NegativeZero, OpOptions, Operation, ResultPart, Signedness, ZeroFlag,
+};
+
+/// What one evaluation of an extended operation produced.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct OpResult<B> {
+    /// Decoded a (for mul: as the multiplier reads it).
+    pub va: B,
+    /// The amount (shifts) or the decoded b (mul).
+    pub vb: B,
+    /// Shifts: the effective shift count; mul: the exact product.
+    pub truth: B,
+    /// The result pattern (result width bits).
+    pub result: B,
+    pub carry_out: bool,
+    pub overflow: bool,
+    pub zero: bool,
+    pub negative: bool,
+}
+
+/// The settings of one extended unit.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct OpUnit {
+    pub operation: Operation,
+    pub encoding: Encoding,
+    pub width: u32,
+    pub options: OpOptions,
+    pub negative_zero: NegativeZero,
+    pub zero_flag: ZeroFlag,
+}
+
+impl OpUnit {
+    /// The result port's width.
+    pub(crate) fn result_width(&self) -> u32 {
+        self.options.result_width.unwrap_or(self.width)
+    }
+
+    /// The amount port's width (shifts).
+    pub(crate) fn amount_width(&self) -> u32 {
+        self.options.amount_width.unwrap_or(1)
+    }
+
+    /// The shift count a shl, shr or sra applies for amount value `s` (a rotate applies
+    /// `s mod N`): `s` itself when saturating, its low log2(N) bits when masking.
+    pub(crate) fn effective_amount(&self, s: u64) -> u64 {
+        let n = self.width as u64;
+        match self.operation {
+            Operation::Rol | Operation::Ror => s % n,
+            _ if self.options.large_amount == Some(LargeAmount::Mask) => s & (n - 1),
+            _ => s,
+        }
+    }
+
+    /// Evaluates `a` (the first operand's pattern) with `b` (the amount, or the second
+    /// operand's pattern).
+    pub(crate) fn evaluate<B: Bits>(&self, a: B, b: B) -> OpResult<B> {
+        let w = self.width;
+        let a = a.mask(w);
+        if self.operation.is_shift() {
+            let s = b.mask(self.amount_width().min(64)).limb(0);
+            self.shift(a, s)
+        } else {
+            self.mul(a, b.mask(w))
+        }
+    }
+
+    fn shift<B: Bits>(&self, a: B, s: u64) -> OpResult<B> {
+        let w = self.width;
+        let n = w as u64;
+        let mask = B::low_mask(w);
+        let e = self.effective_amount(s);
+        // Counts above N shift as N + 1 (everything out and one more).
+        let c = e.min(n + 1) as u32;
+        let sign = a.bit(w - 1);
+        let (result, carry_out) = match self.operation {
+            Operation::Shl => (a.shl(c).mask(w), (1..=w).contains(&c) && a.bit(w - c)),
+            Operation::Shr => (a.shr(c), (1..=w).contains(&c) && a.bit(c - 1)),
+            Operation::Sra => {
+                let fill = if sign {
+                    mask.shr(c).not().and(mask)
+                } else {
+                    B::zero()
+                };
+                let out = if c == 0 {
+                    false
+                } else if c <= w {
+                    a.bit(c - 1)
+                } else {
+                    sign
+                };
+                (a.shr(c).or(fill), out)
+            }
+            Operation::Rol | Operation::Ror => {
+                let k = if self.operation == Operation::Rol {
+                    c
+                } else {
+                    (w - c) % w
+                };
+                let r = if k == 0 {
+                    a
+                } else {
+                    a.shl(k).or(a.shr(w - k)).mask(w)
+                };
+                // The bit rotated out last re-enters at the other end.
+                let out = s != 0
+                    && r.bit(if self.operation == Operation::Rol {
+                        0
+                    } else {
+                        w - 1
+                    });
+                (r, out)
+            }
+            _ => unreachable!("not a shift"),
+        };
+        let result = self.fix_zero(result, w);
+        OpResult {
+            va: decode(a, w, self.encoding),
+            vb: B::zero().or(limb_value::<B>(s)),
+            truth: limb_value::<B>(e.min(u32::MAX as u64)),
+            result,
+            carry_out,
+            overflow: false,
+            zero: self.zero_of(result, w),
+            negative: sign_bit(result, w, self.encoding),
+        }
+    }
+
+    fn mul<B: Bits>(&self, a: B, b: B) -> OpResult<B> {
+        let (w, enc) = (self.width, self.encoding);
+        let r = self.result_width();
+        let high = self.options.result_part == Some(ResultPart::High);
+        let (va, vb, truth, result, overflow) = match enc {
+            Encoding::SignMagnitude => {
+                let m = w - 1;
+                let sign = a.bit(m) != b.bit(m);
+                let mag = a.mask(m).mul(b.mask(m));
+                let va = decode(a, w, enc);
+                let vb = decode(b, w, enc);
+                let truth = if sign { mag.neg() } else { mag };
+                let kept = mag.mask(r - 1);
+                let result = if sign {
+                    kept.or(B::single_bit(r - 1))
+                } else {
+                    kept
+                };
+                (va, vb, truth, result, !mag.shr(r - 1).is_zero())
+            }
+            _ => {
+                let signed_b = self.options.signedness == Some(Signedness::Signed);
+                let va = decode(a, w, enc);
+                let vb = if signed_b { decode(b, w, enc) } else { b };
+                let truth = va.mul(vb);
+                let result = if high {
+                    truth.shr(2 * w - r).mask(r)
+                } else {
+                    truth.mask(r)
+                };
+                let overflow = !high && !representable(truth, r, enc);
+                (va, vb, truth, result, overflow)
+            }
+        };
+        let result = self.fix_zero(result, r);
+        OpResult {
+            va,
+            vb,
+            truth,
+            result,
+            carry_out: false,
+            overflow,
+            zero: self.zero_of(result, r),
+            negative: sign_bit(result, r, enc),
+        }
+    }
+
+    fn fix_zero<B: Bits>(&self, result: B, width: u32) -> B {
+        if self.negative_zero == NegativeZero::Positive
+            && is_negative_zero(result, width, self.encoding)
+        {
+            B::zero()
+        } else {
+            result
+        }
+    }
+
+    fn zero_of<B: Bits>(&self, result: B, width: u32) -> bool {
+        match self.zero_flag {
+            ZeroFlag::Value => decode(result, width, self.encoding).is_zero(),
+            ZeroFlag::Bits => result.is_zero(),
+        }
+    }
+}
+
+/// `v` as a `B`.
+fn limb_value<B: Bits>(v: u64) -> B {
+    let mut out = B::zero();
+    for i in 0..64 {
+        if v >> i & 1 == 1 {
+            out = out.or(B::single_bit(i));
+        }
+    }
+    out
+}
