@@ -22,6 +22,7 @@ use crate::arith::encoding::{decode, max_value, min_value};
 use crate::arith::model::{CarrySource, Cell, Inputs, Outputs, RippleView, Source};
 use crate::arith::word::Word;
 use crate::corners::classes::{alternating, Catalogue, Detail, Hits, Kind, Operand, Special};
+use crate::corners::compare;
 use crate::spec::{Encoding, Mix, Operation, Signal, Spec};
 
 /// The directed set and the random plan for one spec.
@@ -598,6 +599,24 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
             out.extend(solver.pairs(pool));
             out
         }
+        Kind::CompareFirstDifference | Kind::CompareSingleBit | Kind::CompareLowerOppose => {
+            let lower = if matches!(c.kind, Kind::CompareLowerOppose) {
+                compare::Lower::Oppose
+            } else {
+                compare::Lower::Fill
+            };
+            let (a, b) = compare::first_difference(w, k / 2, k.is_multiple_of(2), false, lower);
+            vec![pair(a, b)]
+        }
+        Kind::CompareSignOnly => {
+            let sign = Word::bit_mask(w - 1);
+            if k == 0 {
+                vec![pair(sign, Word::ZERO)]
+            } else {
+                vec![pair(Word::ZERO, sign)]
+            }
+        }
+        Kind::CompareEqualSpecial(codes) => vec![pair(codes[k as usize], codes[k as usize])],
         _ => solver.pairs(pool),
     }
 }
@@ -939,6 +958,25 @@ fn build_directed(spec: &Spec, cat: &mut Catalogue) -> (Vec<Inputs>, Vec<u32>) {
                     set.push((v, list, true));
                 }
             }
+        }
+    }
+
+    // A comparator's first-difference vectors, kept through pruning like the ripple seeds.
+    if spec.operation == Operation::Compare {
+        for (a, b) in compare::seed_pairs(spec.width) {
+            let v = Inputs {
+                a,
+                b,
+                ..Inputs::default()
+            };
+            if set.iter().any(|(s, _, _)| *s == v) {
+                continue;
+            }
+            let list = bins_of(cat, &v, &mut hits);
+            for &b in &list {
+                counts[b as usize] += 1;
+            }
+            set.push((v, list, true));
         }
     }
 

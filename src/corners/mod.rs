@@ -6,5 +6,6 @@
 //! May import `crate::error`, `crate::spec` and `crate::arith`; never files, logs or reports.
 
 pub(crate) mod classes;
+pub(crate) mod compare;
 pub(crate) mod construct;
 pub(crate) mod generate;

@@ -132,3 +132,45 @@ fn widths_1_and_512_work() {
         "width-1 sign-magnitude lists no unreachable bin"
     );
 }
+
+/// Issue 15: `classes` for a signed compare spec lists the comparator classes, each bin of
+/// the per-bit families reachable from bit 0 (bit 1 for the lower-bits class) to the top, and
+/// the directed vectors hit every one of them.
+#[test]
+fn issue15_compare_lists_first_difference_classes() {
+    let sb = Sandbox::new();
+    let spec = sb.write(
+        "cmp.toml",
+        "name = \"cmp\"\noperation = \"compare\"\nwidth = 12\nencoding = \"twos\"\n\
+         [ports]\na = \"a\"\nb = \"b\"\nless = \"lt\"\nequal = \"eq\"\ngreater = \"gt\"\n",
+    );
+    let list = classes_json(&sb, &spec);
+    let find = |id: &str| {
+        list.iter()
+            .find(|c| c["id"] == id)
+            .unwrap_or_else(|| panic!("no class {id} in {list:?}"))
+            .clone()
+    };
+    for (id, bins, reachable) in [
+        ("compare.first_difference", 24, 24),
+        ("compare.single_bit_difference", 24, 24),
+        ("compare.lower_bits_oppose", 24, 22),
+        ("compare.equal_specials", 5, 5),
+        ("compare.sign_only", 2, 2),
+    ] {
+        let c = find(id);
+        assert_eq!(u64_of(&c["bins_total"]), bins, "{id}: {c}");
+        assert_eq!(u64_of(&c["bins_reachable"]), reachable, "{id}: {c}");
+    }
+    let bins = find("compare.first_difference")["bins"].clone();
+    assert_eq!(bins[0]["label"], "bit0.a1b0");
+    assert_eq!(bins[23]["label"], "bit11.a0b1");
+    // Unsigned compare has no sign bit, so no sign-only class.
+    let unsigned = sb.write(
+        "cmpu.toml",
+        &sb.read("cmp.toml").replace("\"twos\"", "\"unsigned\""),
+    );
+    assert!(classes_json(&sb, &unsigned)
+        .iter()
+        .all(|c| c["id"] != "compare.sign_only"));
+}

@@ -5,6 +5,7 @@
 //! otherwise.
 
 mod compact;
+mod compare;
 mod ctest;
 mod errors;
 mod icarus;

@@ -127,6 +127,12 @@ pub(crate) enum Kind {
     CompareOffByOne,
     CompareSignsDiffer,
     CompareExtremes,
+    CompareFirstDifference,
+    CompareSingleBit,
+    CompareLowerOppose,
+    /// Equal operands at each of these special patterns, one bin each.
+    CompareEqualSpecial(Vec<Word>),
+    CompareSignOnly,
     /// A class of the shift, rotate and multiply operations (see `ext`).
     Ext(ExtKind),
 }
@@ -876,6 +882,21 @@ impl Catalogue {
                         bin(hits, k);
                     }
                 }
+                Kind::CompareFirstDifference
+                | Kind::CompareSingleBit
+                | Kind::CompareLowerOppose
+                | Kind::CompareSignOnly => {
+                    if let Some(k) = compare_bit_bin(&class.kind, a, b, w) {
+                        bin(hits, k);
+                    }
+                }
+                Kind::CompareEqualSpecial(codes) => {
+                    if a == b {
+                        if let Some(k) = codes.iter().position(|c| B::from_word(c) == a) {
+                            bin(hits, k as u32);
+                        }
+                    }
+                }
                 Kind::Ext(kind) => {
                     ext::ext_bins(&self.model, kind, a, b, t, |k| bin(hits, k));
                 }
@@ -1088,6 +1109,49 @@ impl Catalogue {
         }
     }
 }
+/// The highest set bit of `x` (which must not be zero), looking at the low `w` bits.
+fn top_bit<B: Bits>(x: B, w: u32) -> u32 {
+    let mut l = w.div_ceil(64) as usize;
+    while l > 0 {
+        l -= 1;
+        let limb = x.limb(l);
+        if limb != 0 {
+            return l as u32 * 64 + 63 - limb.leading_zeros();
+        }
+    }
+    0
+}
+
+/// The bin a first-difference-style compare class hits: 2i for a1b0, 2i + 1 for a0b1 at the
+/// first differing bit i (the sign-only class has just those two bins).
+fn compare_bit_bin<B: Bits>(kind: &Kind, a: B, b: B, w: u32) -> Option<u32> {
+    let d = a.xor(b);
+    if d.is_zero() {
+        return None;
+    }
+    let i = top_bit(d, w);
+    let order = if a.bit(i) { 0 } else { 1 };
+    let hit = match kind {
+        Kind::CompareFirstDifference => true,
+        Kind::CompareSingleBit => d.count_ones() == 1,
+        Kind::CompareLowerOppose => {
+            let low = B::low_mask(i);
+            let (la, lb) = (a.and(low), b.and(low));
+            // Masked patterns are non-negative, so the signed order is the unsigned one.
+            if a.bit(i) {
+                la.slt(&lb)
+            } else {
+                lb.slt(&la)
+            }
+        }
+        Kind::CompareSignOnly => {
+            return (d == B::single_bit(w - 1)).then_some(order);
+        }
+        _ => false,
+    };
+    hit.then_some(2 * i + order)
+}
+
 /// The pattern ...0101 (LSB set).
 pub(crate) fn alternating<B: Bits>(width: u32) -> B {
     let mut p = B::zero();

@@ -122,6 +122,7 @@ pub(super) fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) ->
                 "max_vs_max".into(),
             ],
         ));
+        compare_bit_templates(model, spec, &mut out);
         return out;
     }
 
@@ -322,4 +323,67 @@ pub(super) fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) ->
         ));
     }
     out
+}
+
+/// The compare classes a comparator's gates need (issue 15): where the operands first differ
+/// and in which order, what the lower bits say, equal operands at each special value and the
+/// sign bit alone differing. A magnitude comparator is a borrow chain or a prefix tree over
+/// per-bit (greater, equal) pairs; its single stuck-at faults show only when every bit above
+/// the one at fault is equal and the bits below are set so that the faulty node decides the
+/// answer (common practice, no source).
+fn compare_bit_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>) {
+    let w = spec.width;
+    let orders = |_: ()| {
+        (0..w)
+            .flat_map(|i| [format!("bit{i}.a1b0"), format!("bit{i}.a0b1")])
+            .collect::<Vec<_>>()
+    };
+    out.push((
+        "compare.first_difference".into(),
+        "a and b agree above bit i and differ first at bit i, with a's bit 1 (a1b0) or 0 (a0b1)"
+            .into(),
+        Kind::CompareFirstDifference,
+        orders(()),
+    ));
+    out.push((
+        "compare.single_bit_difference".into(),
+        "a and b differ only at bit i (each input of the equality detector alone unequal)".into(),
+        Kind::CompareSingleBit,
+        orders(()),
+    ));
+    out.push((
+        "compare.lower_bits_oppose".into(),
+        "a and b differ first at bit i and the bits below i, read alone as unsigned, order them \
+         the other way"
+            .into(),
+        Kind::CompareLowerOppose,
+        orders(()),
+    ));
+    let mut seen: Vec<Word> = Vec::new();
+    let mut specials = Vec::new();
+    let mut labels = Vec::new();
+    for s in Special::ALL {
+        if let Some(code) = s.code(model) {
+            if seen.contains(&code) {
+                continue;
+            }
+            seen.push(code);
+            specials.push(code);
+            labels.push(s.id().to_string());
+        }
+    }
+    out.push((
+        "compare.equal_specials".into(),
+        "a and b are the same special value (zero, one, max, min, -1, -0 where they exist)".into(),
+        Kind::CompareEqualSpecial(specials),
+        labels,
+    ));
+    if spec.encoding != Encoding::Unsigned {
+        out.push((
+            "compare.sign_only".into(),
+            "a and b differ only in the sign bit: a's sign bit 1 (a1b0) or 0 (a0b1)".into(),
+            Kind::CompareSignOnly,
+            vec!["a1b0".into(), "a0b1".into()],
+        ));
+    }
 }
