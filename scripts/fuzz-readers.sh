@@ -75,6 +75,12 @@ if [ "$minimise" = 1 ]; then
     afl-cmin -i "$tmp" -o "fuzz/corpus/$r.min" -t "$TIMEOUT_MS" -m "$MEMORY_MB" -- "$bin/$r"
     rm -rf "fuzz/corpus/$r" "$tmp"
     mv "fuzz/corpus/$r.min" "fuzz/corpus/$r"
+    # AFL++'s queue names (id:000123,src:...) hold ':' and ','; name kept findings by content.
+    for f in "fuzz/corpus/$r"/*; do
+      case "$(basename "$f")" in
+        *:*|*,*) mv "$f" "fuzz/corpus/$r/min-$(sha256sum "$f" | cut -c1-12)" ;;
+      esac
+    done
   done
   exit 0
 fi

@@ -185,28 +185,44 @@ pub struct SmallSet {
     pub expected: String,
 }
 
-/// The first `words` data words of a `$readmemh` text, with the comments before them; when
-/// the text holds fewer, its words repeat (so a file of any length can be matched).
-fn cut_words(text: &str, words: usize) -> String {
-    let mut out = String::new();
-    let mut data = Vec::new();
-    for line in text.lines() {
-        let t = line.trim();
-        if t.is_empty() || t.starts_with("//") {
-            if data.is_empty() {
-                out.push_str(line);
-                out.push('\n');
-            }
-        } else {
-            data.push(line);
-        }
+/// The first `words` data words of an example set's stimulus (`expected` false) or expected
+/// file, with the comments before them; when the file holds fewer, its words repeat (so a
+/// file of any length can be matched). The files are split into lines once: walking a whole
+/// example file on every execution made the hex target slow.
+fn cut_example(k: usize, expected: bool, words: usize) -> String {
+    struct Split {
+        header: String,
+        data: Vec<&'static str>,
     }
-    for k in 0..words {
-        if data.is_empty() {
-            break;
+    static SPLIT: OnceLock<Vec<[Split; 2]>> = OnceLock::new();
+    let split = SPLIT.get_or_init(|| {
+        let one = |text: &'static str| {
+            let mut header = String::new();
+            let mut data = Vec::new();
+            for line in text.lines() {
+                let t = line.trim();
+                if t.is_empty() || t.starts_with("//") {
+                    if data.is_empty() {
+                        header.push_str(line);
+                        header.push('\n');
+                    }
+                } else {
+                    data.push(line);
+                }
+            }
+            Split { header, data }
+        };
+        SETS.iter()
+            .map(|set| [one(set.stimulus), one(set.expected)])
+            .collect()
+    });
+    let s = &split[k][usize::from(expected)];
+    let mut out = s.header.clone();
+    if !s.data.is_empty() {
+        for j in 0..words {
+            out.push_str(s.data[j % s.data.len()]);
+            out.push('\n');
         }
-        out.push_str(data[k % data.len()]);
-        out.push('\n');
     }
     out
 }
@@ -224,6 +240,19 @@ fn count_words(text: &str) -> usize {
 
 /// The example set's manifest rewritten for `vectors` words and the given file contents.
 fn manifest_for(set: &ExampleSet, vectors: usize, stimulus: &[u8], expected: &[u8]) -> String {
+    manifest_with(set, vectors, stimulus, expected, true)
+}
+
+/// [`manifest_for`]; without `with_spec` the manifest's copy of the normalised spec is left
+/// out (null): the set reader identifies the spec by `spec_sha256`, and the hex target, whose
+/// input is not the manifest, need not write and parse the copy on every execution.
+fn manifest_with(
+    set: &ExampleSet,
+    vectors: usize,
+    stimulus: &[u8],
+    expected: &[u8],
+    with_spec: bool,
+) -> String {
     static PARSED: OnceLock<Vec<Manifest>> = OnceLock::new();
     let parsed = PARSED.get_or_init(|| {
         SETS.iter()
@@ -243,7 +272,12 @@ fn manifest_for(set: &ExampleSet, vectors: usize, stimulus: &[u8], expected: &[u
         rec.bytes = bytes.len() as u64;
         rec.sha256 = arithvec::sha256_hex(bytes);
     }
-    serde_json::to_string_pretty(&m).expect("manifest serialises")
+    if with_spec {
+        serde_json::to_string_pretty(&m).expect("manifest serialises")
+    } else {
+        m.spec = serde_json::Value::Null;
+        serde_json::to_string(&m).expect("manifest serialises")
+    }
 }
 
 /// The example sets cut to [`SMALL_WORDS`] words, in [`SETS`] order.
@@ -251,9 +285,10 @@ pub fn small_sets() -> &'static [SmallSet] {
     static SMALL: OnceLock<Vec<SmallSet>> = OnceLock::new();
     SMALL.get_or_init(|| {
         SETS.iter()
-            .map(|set| {
-                let stimulus = cut_words(set.stimulus, SMALL_WORDS);
-                let expected = cut_words(set.expected, SMALL_WORDS);
+            .enumerate()
+            .map(|(k, set)| {
+                let stimulus = cut_example(k, false, SMALL_WORDS);
+                let expected = cut_example(k, true, SMALL_WORDS);
                 SmallSet {
                     name: set.name,
                     manifest: manifest_for(
@@ -320,12 +355,12 @@ pub fn hex_reads(data: &[u8], scratch: &Scratch) -> bool {
     let set = &SETS[k];
     let words = count_words(&text).min(MAX_MATCHED_WORDS);
     if is_stimulus(&text, data.len()) {
-        let expected = cut_words(set.expected, words);
-        let manifest = manifest_for(set, words, data, expected.as_bytes());
+        let expected = cut_example(k, true, words);
+        let manifest = manifest_with(set, words, data, expected.as_bytes(), false);
         read_set(scratch, k, manifest.as_bytes(), data, expected.as_bytes())
     } else {
-        let stimulus = cut_words(set.stimulus, words);
-        let manifest = manifest_for(set, words, stimulus.as_bytes(), data);
+        let stimulus = cut_example(k, false, words);
+        let manifest = manifest_with(set, words, stimulus.as_bytes(), data, false);
         read_set(scratch, k, manifest.as_bytes(), stimulus.as_bytes(), data)
     }
 }
