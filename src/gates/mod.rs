@@ -8,3 +8,4 @@
 pub(crate) mod fault;
 pub(crate) mod grade;
 pub(crate) mod netlist;
+pub(crate) mod sat;
