@@ -12,4 +12,5 @@ mod icarus;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
+mod topup;
 mod util;
