@@ -68,6 +68,13 @@ pub use gates::grade::{
     TOP_UP_METHOD,
 };
 pub use gates::netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
+pub use gates::prove::{
+    prove, prove_against, CounterOutput, Counterexample, ProveReport, ProveVerdict, PROOF_CLAIM,
+    PROOF_LIMITS,
+};
+pub use gates::sat::{
+    equivalence_miter, equivalence_miter_bits, fault_miter, Answer, RefBit, Solved,
+};
 pub use sets::hexfile::Packer;
 pub use sets::layout::{Field, Layout, WordLayout};
 pub use sets::vectorset::{

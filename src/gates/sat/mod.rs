@@ -351,15 +351,24 @@ pub fn fault_miter(nl: &Netlist, fault: Fault, conflict_budget: u64) -> Solved {
     cnf.solve(&inputs)
 }
 
-/// The equivalence miter of two netlists over shared inputs: `a` and `b` must have the same
-/// input ports (names and widths, any order) and `outputs` names the output ports compared
-/// (each present in both with the same width). Sat gives an input (in `a`'s
-/// [`Netlist::input_nets`] order) on which some compared output bit differs; Unsat proves the
-/// compared outputs equal for every input.
-pub fn equivalence_miter(
+/// One bit of a reference circuit as a miter compares it: a net, or a flag derived from nets.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum RefBit {
+    /// The net itself.
+    Net(NetId),
+    /// 1 exactly when every listed net is 0 (a zero flag over result bits).
+    AllZero(Vec<NetId>),
+}
+
+/// The equivalence miter of a reference `a` and a netlist `b` over shared inputs (ports
+/// matched by name; `b`'s input ports must all be `a`'s, same widths). `pairs` lists the
+/// compared bits: a reference bit and the net of `b` that must equal it. Sat gives an input
+/// (in `a`'s [`Netlist::input_nets`] order) on which some pair differs; Unsat proves every
+/// pair equal for every input.
+pub fn equivalence_miter_bits(
     a: &Netlist,
     b: &Netlist,
-    outputs: &[String],
+    pairs: &[(RefBit, NetId)],
     conflict_budget: u64,
 ) -> Solved {
     let mut cnf = Cnf::new(conflict_budget);
@@ -378,30 +387,56 @@ pub fn equivalence_miter(
             inputs_b.push(inputs_a[start + bit]);
         }
     }
-    let nets = |nl: &Netlist| -> Vec<NetId> {
-        outputs
-            .iter()
-            .flat_map(|name| {
-                let p = nl.output_port(name).expect("compared port exists");
-                nl.outputs()[p].nets().to_vec()
-            })
-            .collect()
-    };
-    let (outs_a, outs_b) = (nets(a), nets(b));
-    let la = encode_good(&mut cnf, a, &inputs_a, &fan_in(a, outs_a.iter().copied()));
-    let lb = encode_good(&mut cnf, b, &inputs_b, &fan_in(b, outs_b.iter().copied()));
-    let pairs: Vec<(Lit, Lit)> = outs_a
+    let ref_nets: Vec<NetId> = pairs
         .iter()
-        .zip(&outs_b)
-        .map(|(x, y)| {
-            (
-                la[x.index()].expect("encoded"),
-                lb[y.index()].expect("encoded"),
-            )
+        .flat_map(|(r, _)| match r {
+            RefBit::Net(n) => vec![*n],
+            RefBit::AllZero(ns) => ns.clone(),
         })
         .collect();
-    cnf.assert_some_differs(&pairs);
+    let la = encode_good(&mut cnf, a, &inputs_a, &fan_in(a, ref_nets));
+    let lb = encode_good(
+        &mut cnf,
+        b,
+        &inputs_b,
+        &fan_in(b, pairs.iter().map(|p| p.1)),
+    );
+    let mut lits = Vec::with_capacity(pairs.len());
+    for (r, n) in pairs {
+        let x = match r {
+            RefBit::Net(m) => la[m.index()].expect("encoded"),
+            RefBit::AllZero(ns) => {
+                let mut any = cnf.constant(false);
+                for m in ns {
+                    let l = la[m.index()].expect("encoded");
+                    any = cnf.or(any, l);
+                }
+                !any
+            }
+        };
+        lits.push((x, lb[n.index()].expect("encoded")));
+    }
+    cnf.assert_some_differs(&lits);
     cnf.solve(&inputs_a)
+}
+
+/// [`equivalence_miter_bits`] on the output ports named `outputs`, present in both with the
+/// same width.
+pub fn equivalence_miter(
+    a: &Netlist,
+    b: &Netlist,
+    outputs: &[String],
+    conflict_budget: u64,
+) -> Solved {
+    let mut pairs = Vec::new();
+    for name in outputs {
+        let pa = &a.outputs()[a.output_port(name).expect("compared port exists")];
+        let pb = &b.outputs()[b.output_port(name).expect("compared port exists")];
+        for (&x, &y) in pa.nets().iter().zip(pb.nets()) {
+            pairs.push((RefBit::Net(x), y));
+        }
+    }
+    equivalence_miter_bits(a, b, &pairs, conflict_budget)
 }
 
 #[cfg(test)]
