@@ -16,7 +16,7 @@ use arithvec::{
 use crate::cli::check::open_vectors;
 use crate::cli::util::{out, parse_percent, read_spec, stdout_error, write_output, Outcome};
 
-pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n\n\
+pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --top-up --out vec-topped/\n\n\
 The netlist's module is [dut] module unless --module says otherwise; its ports are matched by \
 name to the spec's [ports]. The fault-free netlist must reproduce the golden model on every \
 vector, or grading stops (exit 1). Exit 3 when fault coverage is below --require.\n\n\

@@ -228,9 +228,9 @@ fn encode_good(cnf: &mut Cnf, nl: &Netlist, inputs: &[Lit], needed: &[bool]) -> 
     for (net, &l) in nl.input_nets().iter().zip(inputs) {
         lits[net.index()] = Some(l);
     }
-    for n in 0..nl.net_count() {
+    for (n, lit) in lits.iter_mut().enumerate() {
         if let Driver::Constant(v) = nl.driver(NetId::from_index(n)) {
-            lits[n] = Some(cnf.constant(v));
+            *lit = Some(cnf.constant(v));
         }
     }
     for (g, gate) in nl.gates().iter().enumerate() {
