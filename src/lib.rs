@@ -62,16 +62,27 @@ pub use gates::fault::{
     compact, detection_matrix, grade, grade_with, DetectionMatrix, Fault, FaultEntry, FaultList,
     FaultReport, FaultSite, GradeOptions, PatternSet, PortValue, Redundancy, SimulationMode,
 };
-pub use gates::grade::{write_selection, BuiltinModel, GradeOutcome, Grader, NetlistMismatch};
+pub use gates::grade::{
+    write_selection, write_topped_up, BuiltinModel, GradeOutcome, Grader, NetlistMismatch,
+    TopUpFault, TopUpReport, TopUpStatus, EXHAUSTIVE_REDUNDANCY_METHOD, SAT_REDUNDANCY_METHOD,
+    TOP_UP_METHOD,
+};
 pub use gates::netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
+pub use gates::prove::{
+    prove, prove_against, CounterOutput, Counterexample, ProveReport, ProveVerdict, PROOF_CLAIM,
+    PROOF_LIMITS,
+};
+pub use gates::sat::{
+    equivalence_miter, equivalence_miter_bits, fault_miter, Answer, RefBit, Solved,
+};
 pub use sets::hexfile::Packer;
 pub use sets::layout::{Field, Layout, WordLayout};
 pub use sets::vectorset::{
     csv_header, csv_row, read_manifest, read_manifest_unverified,
     remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
     write as write_vector_set, FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord,
-    Selection, Shard, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX,
-    VECTORS_CSV,
+    Selection, Shard, TopUpVector, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON,
+    STIMULUS_HEX, VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{

@@ -132,6 +132,9 @@ enum Command {
     /// Grade the single stuck-at fault coverage of a vector set on a gate netlist.
     #[command(after_help = cli::grade::GRADE_HELP)]
     Grade(cli::grade::GradeArgs),
+    /// Prove a gate netlist equivalent to the spec on every output it names (SAT).
+    #[command(after_help = cli::prove::PROVE_HELP)]
+    Prove(cli::prove::ProveArgs),
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -206,6 +209,7 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
         Command::Check(args) => cli::check::check(args, quiet),
         Command::Merge(args) => cli::check::merge(args, quiet),
         Command::Grade(args) => cli::grade::grade(args, quiet),
+        Command::Prove(args) => cli::prove::prove(args, quiet),
     }
 }
 

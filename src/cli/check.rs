@@ -163,6 +163,27 @@ fn open_vectors_unverified(dir: &Path, spec: &Spec) -> Result<(Manifest, Generat
             .field("version"),
         ));
     }
+    if let Some(s) = &manifest.selection {
+        let positions = s.indices.len() as u64 + s.top_up.len() as u64;
+        if positions != manifest.vectors {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    format!(
+                        "the selection lists {} source indices and {} top-up vectors but the \
+                         set holds {} vectors",
+                        s.indices.len(),
+                        s.top_up.len(),
+                        manifest.vectors
+                    ),
+                )
+                .field("selection"),
+            ));
+        }
+        for (k, t) in s.top_up.iter().enumerate() {
+            t.operands(spec, &mpath, k)?;
+        }
+    }
     // A selected (compacted) set regenerates its source set and maps positions to indices.
     let (random, directed) = match &manifest.selection {
         Some(s) => (s.source_random, s.source_directed),

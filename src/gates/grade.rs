@@ -25,9 +25,15 @@ use crate::sets::hexfile::{header, Packer};
 use crate::sets::layout::Layout;
 use crate::sets::vectorset::{
     csv_header, csv_row, sha256_hex, spec_identity, FileRecord, Manifest, ManifestLayout,
-    ManifestWord, Selection, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
+    ManifestWord, Selection, TopUpVector, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 use crate::spec::{Encoding, Operation, Signal, Spec};
+
+mod topup;
+pub use topup::{
+    TopUpFault, TopUpReport, TopUpStatus, EXHAUSTIVE_REDUNDANCY_METHOD, SAT_REDUNDANCY_METHOD,
+    TOP_UP_METHOD,
+};
 
 /// The structural models arithvec can grade without a netlist file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -412,12 +418,29 @@ pub fn write_selection(
     dir: &Path,
     source_indices: &[u64],
 ) -> Result<Manifest> {
+    write_topped_up(generator, spec, dir, source_indices, &[])
+}
+
+/// [`write_selection`] followed by the vectors test top-up added (`top_up`, in order): the
+/// manifest's selection lists them with the fault each was made for, so `check` and
+/// `testbench` take the set like any other.
+pub fn write_topped_up(
+    generator: &Generator,
+    spec: &Spec,
+    dir: &Path,
+    source_indices: &[u64],
+    top_up: &[TopUpVector],
+) -> Result<Manifest> {
+    let mut added = Vec::with_capacity(top_up.len());
+    for (k, t) in top_up.iter().enumerate() {
+        added.push(t.operands(spec, "top-up", k)?);
+    }
     // Written into a staging directory that one rename makes the set (`sets::commit`).
     let staging = Staging::begin(dir)?;
     let layout = Layout::for_spec(spec);
     let stim = Packer::new(&layout.stimulus);
     let exp = Packer::new(&layout.expected);
-    let n = source_indices.len() as u64;
+    let n = (source_indices.len() + added.len()) as u64;
     let mut csv = csv_header(spec).into_bytes();
     let mut s = header("stimulus", &spec.name, &layout.stimulus, n).into_bytes();
     let mut e = header("expected outputs", &spec.name, &layout.expected, n).into_bytes();
@@ -435,6 +458,13 @@ pub fn write_selection(
         }
         let outputs = generator.catalogue().evaluate(&inputs, &mut hits);
         csv.extend_from_slice(csv_row(generator, spec, p as u64, &inputs).as_bytes());
+        stim.push_line(|sig| inputs.get(sig), &mut s);
+        exp.push_line(|sig| outputs.get(sig), &mut e);
+    }
+    for (k, inputs) in added.iter().enumerate() {
+        let p = source_indices.len() + k;
+        let outputs = generator.catalogue().evaluate(inputs, &mut hits);
+        csv.extend_from_slice(csv_row(generator, spec, p as u64, inputs).as_bytes());
         stim.push_line(|sig| inputs.get(sig), &mut s);
         exp.push_line(|sig| outputs.get(sig), &mut e);
     }
@@ -469,6 +499,7 @@ pub fn write_selection(
             source_directed: generator.directed().len() as u64,
             source_random: generator.random_count(),
             indices: source_indices.to_vec(),
+            top_up: top_up.to_vec(),
         }),
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");

@@ -162,6 +162,67 @@ pub struct Selection {
     pub source_random: u64,
     /// Source indices, in file order.
     pub indices: Vec<u64>,
+    /// Vectors `grade --top-up` added after the selected ones: position `indices.len() + k`
+    /// of these files is `top_up[k]`. They are not in the source set, so their operands are
+    /// recorded here (and a failing one has no seed index to reproduce it from).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub top_up: Vec<TopUpVector>,
+}
+
+/// One vector added by test top-up: its operands and why it was added.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct TopUpVector {
+    /// Input values by signal key (`a`, `b`, `carry_in`, `mode`), lowercase hex of the
+    /// signal's width.
+    pub inputs: BTreeMap<String, String>,
+    /// The fault it was made for, as the grade report names it (`net stuck-at-v (site)`).
+    pub fault: String,
+    /// The netlist module the fault is in.
+    pub module: String,
+    /// How it was found.
+    pub method: String,
+}
+
+impl TopUpVector {
+    /// The operands, checked against `spec`: every input signal of the spec present, each a
+    /// hex value that fits its width, and no other key. `file` and `k` name it in errors.
+    pub fn operands(&self, spec: &Spec, file: &str, k: usize) -> Result<Inputs> {
+        let mut inputs = Inputs::default();
+        let mut problems = Vec::new();
+        let field = |key: &str| format!("selection.top_up[{k}].inputs.{key}");
+        for (sig, _) in spec.inputs() {
+            match self.inputs.get(sig.key()) {
+                Some(hex) => match Word::parse_hex(hex) {
+                    Some(w) if w.significant_bits() <= spec.signal_width(sig) => inputs.set(sig, w),
+                    _ => problems.push(
+                        Problem::new(
+                            file,
+                            format!(
+                                "\"{hex}\" is not a hex value of {} bits",
+                                spec.signal_width(sig)
+                            ),
+                        )
+                        .field(field(sig.key())),
+                    ),
+                },
+                None => problems.push(
+                    Problem::new(file, "the top-up vector lacks this input")
+                        .field(field(sig.key())),
+                ),
+            }
+        }
+        for key in self.inputs.keys() {
+            if !spec.inputs().iter().any(|(s, _)| s.key() == key) {
+                problems
+                    .push(Problem::new(file, "not an input signal of the spec").field(field(key)));
+            }
+        }
+        if problems.is_empty() {
+            Ok(inputs)
+        } else {
+            Err(Error::input(problems))
+        }
+    }
 }
 
 /// SHA-256 of `bytes` as lowercase hex.

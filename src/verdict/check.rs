@@ -365,6 +365,8 @@ struct Shared {
     set: Option<(u64, u64)>,
     /// For a selected (compacted) set: position -> source index.
     selection: Option<Vec<u64>>,
+    /// For a topped-up set: the operands of the positions after the selected ones.
+    top_up: Vec<Inputs>,
     /// The spec's inputs, then its outputs, with their widths, in layout order. A staged row
     /// holds one value per entry.
     fields: Vec<(Signal, u32)>,
@@ -388,6 +390,13 @@ impl Shared {
             Some(map) => map.get(index as usize).copied(),
             None => Some(index),
         }
+    }
+
+    /// For a topped-up set, the number of the top-up vector at position `index`.
+    fn top_up_number(&self, index: u64) -> Option<usize> {
+        let selected = self.selection.as_ref()?.len() as u64;
+        let k = index.checked_sub(selected)? as usize;
+        (k < self.top_up.len()).then_some(k)
     }
 
     /// u64 entries one staged row takes: bits and unknown mask per field.
@@ -484,9 +493,12 @@ impl Worker {
         let present = |k: usize| row.present >> k & 1 == 1;
         let narrow = shared.limbs == 1;
         let from_set = match shared.set {
-            Some(_) => shared
-                .source_index(index)
-                .and_then(|i| self.lookup.get(&shared.generator, i)),
+            Some(_) => match shared.top_up_number(index) {
+                Some(k) => Some(shared.top_up[k]),
+                None => shared
+                    .source_index(index)
+                    .and_then(|i| self.lookup.get(&shared.generator, i)),
+            },
             None => None,
         };
         // Operands: the log's own where present, else the set's.
@@ -1015,12 +1027,22 @@ impl<'g> Checker<'g> {
             0 => std::thread::available_parallelism().map_or(1, |n| n.get().min(8)),
             n => n,
         };
+        let mut top_up = Vec::new();
+        if let Some(sel) = set.and_then(|m| m.selection.as_ref()) {
+            for (k, t) in sel.top_up.iter().enumerate() {
+                let operands = t
+                    .operands(spec, "manifest.json", k)
+                    .map_err(|e| Problem::new("manifest.json", e.to_string()))?;
+                top_up.push(operands);
+            }
+        }
         let inputs = spec.inputs();
         let shared = Arc::new(Shared {
             spec: spec.clone(),
             generator: generator.clone(),
             set: set.map(|m| (m.first_index, m.vectors)),
             selection: set.and_then(|m| m.selection.as_ref().map(|s| s.indices.clone())),
+            top_up,
             fields: inputs
                 .iter()
                 .map(|&(s, _)| s)
@@ -1458,7 +1480,12 @@ impl<'g> Checker<'g> {
 fn set_identity(m: &Manifest) -> SetIdentity {
     match &m.selection {
         Some(s) => {
-            let list: Vec<String> = s.indices.iter().map(u64::to_string).collect();
+            let mut list: Vec<String> = s.indices.iter().map(u64::to_string).collect();
+            // Top-up vectors are part of the set's identity: their operands, in order.
+            list.extend(s.top_up.iter().map(|t| {
+                let ops: Vec<String> = t.inputs.iter().map(|(k, v)| format!("{k}={v}")).collect();
+                format!("top_up:{}", ops.join(";"))
+            }));
             SetIdentity {
                 seed: m.seed,
                 directed: s.source_directed,
@@ -1583,6 +1610,18 @@ fn describe(
     }
     // In a selected (compacted) set, position `index` is vector `source` of the source set.
     let source = shared.source_index(index).unwrap_or(index);
+    let repro = match shared.top_up_number(index) {
+        // A top-up vector is in no seeded set: its operands (above, and in the manifest)
+        // are the reproduction.
+        Some(k) => format!(
+            "top-up vector {k}: not from the seed; apply the operands above (manifest.json \
+             selection.top_up[{k}])"
+        ),
+        None => format!(
+            "{} --index {source}{seed_part}",
+            shared.options.repro_command
+        ),
+    };
     Failure {
         index,
         line,
@@ -1590,10 +1629,7 @@ fn describe(
         inputs: inputs_report,
         outputs,
         classes,
-        repro: format!(
-            "{} --index {source}{seed_part}",
-            shared.options.repro_command
-        ),
+        repro,
     }
 }
 

@@ -9,7 +9,9 @@ mod compare;
 mod ctest;
 mod errors;
 mod icarus;
+mod prove;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
+mod topup;
 mod util;
