@@ -9,6 +9,7 @@ mod gen;
 mod machine_output;
 mod merge;
 mod repro;
+mod spec_errors;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
