@@ -15,3 +15,4 @@ mod support;
 mod threads;
 mod util;
 mod verdict;
+mod xz_digits;
