@@ -9,6 +9,7 @@ mod compare;
 mod ctest;
 mod errors;
 mod icarus;
+mod report_words;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
