@@ -4,6 +4,7 @@
 
 mod check;
 mod classes;
+mod classes_bins;
 mod errors;
 mod gen;
 mod machine_output;
