@@ -345,6 +345,7 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
     let generator = Generator::new(&spec, Some(0), None);
     let cat: &Catalogue = generator.catalogue();
     let class_hits = generator.directed_class_hits();
+    let why_unreachable = cli::reach::why_unreachable(&spec, cat);
     let mut o = out();
     if format == Format::Json {
         let list: Vec<serde_json::Value> = cat
@@ -355,11 +356,15 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
                 let bins: Vec<serde_json::Value> = (0..c.bin_count())
                     .map(|k| {
                         let b = c.first_bin() + k;
-                        serde_json::json!({
+                        let mut bin = serde_json::json!({
                             "label": c.bin_labels()[k],
                             "reachable": cat.is_reachable(b),
                             "directed_hits": generator.directed_hits(b),
-                        })
+                        });
+                        if !cat.is_reachable(b) {
+                            bin["unreachable_because"] = why_unreachable[b].json().into();
+                        }
+                        bin
                     })
                     .collect();
                 serde_json::json!({
@@ -377,23 +382,25 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
         writeln!(o, "{text}").map_err(cli::util::stdout_error)?;
         return Ok(Outcome::Success);
     }
-    let mut rows: Vec<[String; 4]> = Vec::new();
-    for (ci, c) in cat.classes().iter().enumerate() {
-        if bins {
-            for k in 0..c.bin_count() {
-                let b = c.first_bin() + k;
-                rows.push([
-                    cat.bin_id(b),
-                    if cat.is_reachable(b) {
-                        "reachable".into()
-                    } else {
-                        "unreachable at this width".into()
-                    },
-                    String::new(),
-                    generator.directed_hits(b).to_string(),
-                ]);
-            }
-        } else {
+    if bins {
+        let mut rows: Vec<[String; 3]> = Vec::new();
+        for b in 0..cat.bin_count() {
+            rows.push([
+                cat.bin_id(b),
+                if cat.is_reachable(b) {
+                    "reachable".into()
+                } else {
+                    format!("unreachable: {}", why_unreachable[b].words())
+                },
+                generator.directed_hits(b).to_string(),
+            ]);
+        }
+        let table = cli::util::table(&["bin", "status", "directed hits"], &rows);
+        writeln!(o, "{table}").map_err(cli::util::stdout_error)?;
+    }
+    if !bins {
+        let mut rows: Vec<[String; 4]> = Vec::new();
+        for (ci, c) in cat.classes().iter().enumerate() {
             let reachable = cat.reachable_bins(ci).count();
             let bins_text = if reachable == c.bin_count() {
                 reachable.to_string()
@@ -407,14 +414,10 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
                 class_hits[ci].to_string(),
             ]);
         }
+        let header = ["class", "description", "bins", "directed vectors"];
+        let table = cli::util::table(&header, &rows);
+        writeln!(o, "{table}").map_err(cli::util::stdout_error)?;
     }
-    let header = if bins {
-        ["bin", "status", "", "directed hits"]
-    } else {
-        ["class", "description", "bins", "directed vectors"]
-    };
-    let table = cli::util::table(&header, &rows);
-    writeln!(o, "{table}").map_err(cli::util::stdout_error)?;
     writeln!(
         o,
         "unit {}: {} {} {} bits; {} classes, {} reachable bins; {} directed vectors",

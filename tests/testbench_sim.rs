@@ -488,9 +488,13 @@ fn self_check_counts_one_mismatch_and_fails_the_run() {
             bad_run.describe()
         );
         assert!(
+            // Issue 9 item 22: one line per differing port, "vector 3: PORT = got, expected".
             bad_run
                 .describe()
-                .contains("arithvec-tb: vector 3: outputs"),
+                .lines()
+                .any(|l| l.contains("arithvec-tb: vector 3: ")
+                    && l.contains(" = ")
+                    && l.contains(", expected ")),
             "{sim}: {}",
             bad_run.describe()
         );
@@ -873,7 +877,11 @@ fn vhdl_self_check_on_ghdl() {
         bad.describe()
     );
     assert!(
-        bad.describe().contains("arithvec-tb: vector 5: outputs"),
+        bad.describe()
+            .lines()
+            .any(|l| l.contains("arithvec-tb: vector 5: ")
+                && l.contains(" = ")
+                && l.contains(", expected ")),
         "{}",
         bad.describe()
     );

@@ -10,7 +10,7 @@ use serde::Serialize;
 use arithvec::{
     render_grade_html, write_selection, write_topped_up, BuiltinModel, CompactedSet, Error,
     FaultEntry, FaultReport, GradeFault, GradeOutcome, GradeSummary, Grader, Netlist, Problem,
-    TopUpReport, TopUpStatus, VectorSet,
+    Redundancy, TopUpReport, TopUpStatus, VectorSet,
 };
 
 use crate::cli::check::open_vectors;
@@ -90,11 +90,63 @@ pub struct GradeArgs {
 
 /// The redundancy verdict of a fault in words, as the table and the HTML page show it.
 fn redundancy_words(f: &FaultEntry) -> String {
-    serde_json::to_value(&f.redundancy)
-        .ok()
-        .and_then(|v| v.get("status").and_then(|s| s.as_str()).map(str::to_string))
-        .unwrap_or_default()
-        .replace('_', " ")
+    match &f.redundancy {
+        Redundancy::Proven { support_bits } => {
+            format!("proven redundant ({support_bits} input bits enumerated)")
+        }
+        Redundancy::Testable { .. } => "testable: the set misses it".to_string(),
+        Redundancy::NotProven {
+            support_bits,
+            limit,
+        } => format!(
+            "not proven: {support_bits} input {} in its support, over the limit of {limit}",
+            if *support_bits == 1 { "bit" } else { "bits" }
+        ),
+    }
+}
+
+/// The output bits a fault can be seen at, with runs of one port's bits shortened
+/// (`y[0..3], co`).
+fn observed_words(labels: &[String]) -> String {
+    if labels.is_empty() {
+        return "none".to_string();
+    }
+    let mut parts: Vec<String> = Vec::new();
+    // (port, first bit, last bit) of the run being built.
+    let mut run: Option<(String, u64, u64)> = None;
+    let flush = |run: &mut Option<(String, u64, u64)>, parts: &mut Vec<String>| {
+        if let Some((port, lo, hi)) = run.take() {
+            parts.push(if lo == hi {
+                format!("{port}[{lo}]")
+            } else {
+                format!("{port}[{lo}..{hi}]")
+            });
+        }
+    };
+    for label in labels {
+        let indexed = label
+            .strip_suffix(']')
+            .and_then(|l| l.rsplit_once('['))
+            .and_then(|(port, bit)| bit.parse::<u64>().ok().map(|b| (port.to_string(), b)));
+        match indexed {
+            Some((port, bit)) => {
+                if let Some((p, _, hi)) = &mut run {
+                    if *p == port && *hi + 1 == bit {
+                        *hi = bit;
+                        continue;
+                    }
+                }
+                flush(&mut run, &mut parts);
+                run = Some((port, bit, bit));
+            }
+            None => {
+                flush(&mut run, &mut parts);
+                parts.push(label.clone());
+            }
+        }
+    }
+    flush(&mut run, &mut parts);
+    parts.join(", ")
 }
 
 /// The figures the HTML page shows, from the fault report and the compaction.
@@ -437,7 +489,7 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             .map_err(stdout_error)?;
         }
         if !report.undetected.is_empty() {
-            let rows: Vec<[String; 5]> = report
+            let rows: Vec<[String; 6]> = report
                 .undetected
                 .iter()
                 .take(50)
@@ -450,6 +502,7 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                             Some(c) => format!("{c} ({})", f.driver_type),
                             None => f.driver_type.clone(),
                         },
+                        observed_words(&f.observed_at),
                         redundancy_words(f),
                     ]
                 })
@@ -459,7 +512,14 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                 o,
                 "{}",
                 crate::cli::util::table(
-                    &["net", "fault", "site", "driven by", "redundancy"],
+                    &[
+                        "net",
+                        "fault",
+                        "site",
+                        "driven by",
+                        "observable at",
+                        "redundancy"
+                    ],
                     &rows
                 )
             )

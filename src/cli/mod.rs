@@ -6,6 +6,7 @@
 pub(crate) mod check;
 pub(crate) mod grade;
 pub(crate) mod prove;
+pub(crate) mod reach;
 pub(crate) mod signals;
 pub(crate) mod threads;
 pub(crate) mod util;

@@ -529,11 +529,21 @@ impl<'a> Plan<'a> {
                  \x20     // !== so that x and z outputs count as mismatches.\n\
                  \x20     if (v_got !== v_expected_word[EXPECTED_BITS-1:0]) begin\n\
                  \x20       v_mismatches = v_mismatches + 1;\n\
-                 \x20       if (v_mismatches <= {MISMATCH_REPORT_LIMIT})\n\
-                 \x20         $display(\"arithvec-tb: vector %0d: outputs %h, expected %h\",\n\
-                 \x20                  {logged}, v_got, v_expected_word[EXPECTED_BITS-1:0]);\n\
-                 \x20     end"
+                 \x20       if (v_mismatches <= {MISMATCH_REPORT_LIMIT}) begin\n\
+                 \x20         // One line per output port that differs."
             );
+            for f in &exp.fields {
+                let select = verilog_select(f);
+                let _ = writeln!(
+                    out,
+                    "          if ({sig} !== v_expected_word{select})\n\
+                     \x20           $display(\"arithvec-tb: vector %0d: {port} = %h, expected %h\",\n\
+                     \x20                    {logged}, {sig}, v_expected_word{select});",
+                    sig = signal_name(f),
+                    port = f.name,
+                );
+            }
+            out.push_str("        end\n      end\n");
         }
         out.push_str("    end\n    $fclose(v_fd);\n");
         if check {
@@ -574,6 +584,16 @@ impl<'a> Plan<'a> {
 
     /// Emits the load of one hex file into its array, with the check that every word was read.
     fn verilog_load(out: &mut String, what: &str, bits: &str, word: &str) {
+        // A file that cannot be opened is named with the plusarg that gives it, before
+        // $readmemh (which on Icarus only warns about it).
+        let _ = writeln!(
+            out,
+            "    v_fd = $fopen(v_{what}_path, \"r\");\n\
+             \x20   if (v_fd == 0)\n\
+             \x20     $fatal(1, \"arithvec-tb: cannot read the {what} file %0s; give the vector set's \
+             {what}.hex with +{what}=DIR/{what}.hex\", v_{what}_path);\n\
+             \x20   $fclose(v_fd);"
+        );
         let _ = writeln!(
             out,
             "    for (v_index = 0; v_index < VECTORS; v_index = v_index + 1)\n\
@@ -736,11 +756,18 @@ impl<'a> Plan<'a> {
         }
         files.push(("results", "write_mode"));
         for (f, mode) in files {
+            let how = if mode == "read_mode" {
+                format!(
+                    " & \" (the {f} file); give the vector set's {f}.hex with -g{f}=DIR/{f}.hex\""
+                )
+            } else {
+                String::new()
+            };
             let _ = writeln!(
                 out,
                 "    file_open(v_status, v_{f}_file, {f}, {mode});\n\
                  \x20   assert v_status = open_ok\n\
-                 \x20     report \"arithvec-tb: cannot open \" & {f} severity failure;"
+                 \x20     report \"arithvec-tb: cannot open \" & {f}{how} severity failure;"
             );
         }
         let _ = writeln!(
@@ -787,13 +814,22 @@ impl<'a> Plan<'a> {
                  \x20     if to_x01(v_got) /= v_expected_word(c_expected_bits - 1 downto 0) then\n\
                  \x20       v_mismatches := v_mismatches + 1;\n\
                  \x20       if v_mismatches <= {MISMATCH_REPORT_LIMIT} then\n\
-                 \x20         report \"arithvec-tb: vector \" & integer'image({logged}) & \": outputs \"\n\
-                 \x20           & to_hstring(f_digits(v_got)) & \", expected \"\n\
-                 \x20           & to_hstring(f_digits(v_expected_word(c_expected_bits - 1 downto 0)))\n\
-                 \x20           severity warning;\n\
-                 \x20       end if;\n\
-                 \x20     end if;"
+                 \x20         -- One report per output port that differs."
             );
+            for f in &exp.fields {
+                let select = vhdl_select(f);
+                let sig = signal_name(f);
+                let _ = writeln!(
+                    out,
+                    "          if to_x01({sig}) /= v_expected_word{select} then\n\
+                     \x20           report \"arithvec-tb: vector \" & integer'image({logged}) & \": {port} = \"\n\
+                     \x20             & to_hstring(f_digits({sig})) & \", expected \"\n\
+                     \x20             & to_hstring(f_digits(v_expected_word{select})) severity warning;\n\
+                     \x20         end if;",
+                    port = f.name,
+                );
+            }
+            out.push_str("        end if;\n      end if;\n");
         }
         out.push_str("    end loop;\n");
         let mut trailing = vec![("stimulus", "v_word")];

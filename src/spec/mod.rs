@@ -652,6 +652,19 @@ fn signal_allowed(
     }
 }
 
+/// Every key the `[conventions]` table may hold (which ones have an effect depends on the unit).
+fn convention_table_keys() -> Vec<&'static str> {
+    let mut keys = vec![
+        "carry_out",
+        "carry_in",
+        "negative_zero",
+        "zero_flag",
+        "offset_carry",
+    ];
+    keys.extend(ops::CONVENTION_KEYS);
+    keys
+}
+
 /// Walks the parsed TOML document, collecting problems.
 struct Reader<'a> {
     text: &'a str,
@@ -875,16 +888,34 @@ impl<'a> Reader<'a> {
         let (operation, encoding) = match (operation, encoding) {
             (Some((o, _)), Some((e, _))) => (o, e),
             _ => {
-                // Still check the sub-tables' keys so every problem is reported at once.
+                // Still check every table that does not depend on the operation and encoding,
+                // so that every problem is reported in one pass.
                 if let Some(t) = ports_table {
                     let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
                     self.check_keys(t, "ports.", &keys);
+                    for signal in Signal::ALL {
+                        if Self::get(t, signal.key()).is_some() {
+                            if let Some((name, at)) = self.string(t, "ports.", signal.key()) {
+                                self.check_port_name(&name, at, signal);
+                            }
+                        }
+                    }
+                }
+                if let Some(t) = conv_table {
+                    self.check_keys(t, "conventions.", &convention_table_keys());
+                }
+                if let Some(t) = random_table {
+                    self.read_random(t, &mut RandomSettings::default());
+                }
+                if let Some(t) = dut_table {
+                    self.read_dut(t);
                 }
                 return None;
             }
         };
+        let ports_line = Self::get(root, "ports").map_or(1, |(k, _)| self.line_of(k.span()));
         let ports = match ports_table {
-            Some(t) => self.read_ports(t, operation, encoding),
+            Some(t) => self.read_ports(t, operation, encoding, ports_line),
             None => {
                 self.problems.push(
                     Problem::new(self.file, "the [ports] table is missing")
@@ -928,7 +959,40 @@ impl<'a> Reader<'a> {
         Some(spec)
     }
 
-    fn read_ports(&mut self, t: &Table<'_>, operation: Operation, encoding: Encoding) -> Ports {
+    /// Reports a port name that no testbench or vector file could use; true when it is usable.
+    fn check_port_name(&mut self, name: &str, at: usize, signal: Signal) -> bool {
+        let key = format!("ports.{}", signal.key());
+        if !is_identifier(name) {
+            self.problem(
+                at..at,
+                &key,
+                format!(
+                    "\"{name}\" is not a usable port name (letters, digits and '_', not \
+                     starting with a digit)"
+                ),
+            );
+            return false;
+        }
+        if name == "index" || name == "classes" {
+            self.problem(
+                at..at,
+                &key,
+                format!("\"{name}\" is reserved for the vector files' own columns"),
+            );
+            return false;
+        }
+        true
+    }
+
+    /// Reads `[ports]`; `table_line` is the line of the table's header, where a missing
+    /// port is reported.
+    fn read_ports(
+        &mut self,
+        t: &Table<'_>,
+        operation: Operation,
+        encoding: Encoding,
+        table_line: usize,
+    ) -> Ports {
         let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
         self.check_keys(t, "ports.", &keys);
         let mut ports = Ports::default();
@@ -957,23 +1021,7 @@ impl<'a> Reader<'a> {
                 self.problem(k.span(), &key, msg);
                 continue;
             }
-            if !is_identifier(&name) {
-                self.problem(
-                    at..at,
-                    &key,
-                    format!(
-                        "\"{name}\" is not a usable port name (letters, digits and '_', not \
-                         starting with a digit)"
-                    ),
-                );
-                continue;
-            }
-            if name == "index" || name == "classes" {
-                self.problem(
-                    at..at,
-                    &key,
-                    format!("\"{name}\" is reserved for the vector files' own columns"),
-                );
+            if !self.check_port_name(&name, at, signal) {
                 continue;
             }
             if let Some(other) = seen.get(&name) {
@@ -981,7 +1029,7 @@ impl<'a> Reader<'a> {
                     at..at,
                     &key,
                     format!(
-                        "port name \"{name}\" is already used by ports.{}",
+                        "duplicate port name: \"{name}\" is already used by ports.{}",
                         other.key()
                     ),
                 );
@@ -990,15 +1038,20 @@ impl<'a> Reader<'a> {
             seen.insert(name.clone(), signal);
             ports.set(signal, name);
         }
-        let line = 1;
-        if ports.get(Signal::A).is_none() {
+        // A port that is named but refused above has its own problem at its own line; saying
+        // also that the operation "needs" it would point at the wrong cause.
+        let missing = |ports: &Ports, signal: Signal| {
+            ports.get(signal).is_none() && Self::get(t, signal.key()).is_none()
+        };
+        let line = table_line;
+        if missing(&ports, Signal::A) {
             self.problems.push(
                 Problem::new(self.file, "every operation needs an `a` port")
                     .at_line(line)
                     .field("ports.a"),
             );
         }
-        if operation.is_binary() && ports.get(Signal::B).is_none() {
+        if operation.is_binary() && missing(&ports, Signal::B) {
             self.problems.push(
                 Problem::new(
                     self.file,
@@ -1008,7 +1061,7 @@ impl<'a> Reader<'a> {
                 .field("ports.b"),
             );
         }
-        if operation == Operation::AddSub && ports.get(Signal::Mode).is_none() {
+        if operation == Operation::AddSub && missing(&ports, Signal::Mode) {
             self.problems.push(
                 Problem::new(
                     self.file,
@@ -1032,20 +1085,7 @@ impl<'a> Reader<'a> {
     }
 
     fn read_conventions(&mut self, t: &Table<'_>, spec: &mut Spec) {
-        self.check_keys(
-            t,
-            "conventions.",
-            &[
-                "carry_out",
-                "carry_in",
-                "negative_zero",
-                "zero_flag",
-                "offset_carry",
-                ops::CONVENTION_KEYS[0],
-                ops::CONVENTION_KEYS[1],
-                ops::CONVENTION_KEYS[2],
-            ],
-        );
+        self.check_keys(t, "conventions.", &convention_table_keys());
         let p = "conventions.";
         // Every value is read first: whether one key has an effect can depend on another
         // (negative_zero and zero_flag).

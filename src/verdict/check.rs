@@ -93,12 +93,14 @@ pub struct OutputReport {
     pub status: String,
     /// Expected, hex.
     pub expected: String,
-    /// Got, hex (x where a digit had unknown bits).
+    /// Got, hex; a digit with unknown bits is x, z, X or Z (see `unknown_digit` in
+    /// src/verdict/check.rs: lowercase when all of the digit's bits are unknown, z only for
+    /// high impedance).
     pub got: String,
     /// Expected, binary MSB first (fields up to 64 bits).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub expected_bin: Option<String>,
-    /// Got, binary MSB first, x for unknown bits (fields up to 64 bits).
+    /// Got, binary MSB first, x or z for unknown bits (fields up to 64 bits).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub got_bin: Option<String>,
     /// Bit positions that differ (known bits only).
@@ -348,6 +350,26 @@ impl Seen {
     }
 }
 
+/// How a hex digit of a logged value is shown when some of its bits are unknown (`unk`, the
+/// digit's unknown bits; `z`, those that were high impedance; `in_field`, the digit's bits
+/// inside the field): `z` when every bit is z, `x` when every bit is unknown and none is z;
+/// when only some bits are unknown, `Z` if those are all z and `X` otherwise (as Verilog `%h`
+/// prints a partly unknown digit; IEEE 1364-2005 17.1.1.3, from memory); a digit holding
+/// both x and z bits shows `X`, since x is the stronger claim (the value is not known). The
+/// binary form (`got_bin`) shows every bit as 0, 1, x or z. None when the digit is known.
+pub(crate) fn unknown_digit(unk: u64, z: u64, in_field: u64) -> Option<char> {
+    if unk == 0 {
+        return None;
+    }
+    let all_z = z == unk;
+    Some(match (unk == in_field, all_z) {
+        (true, true) => 'z',
+        (true, false) => 'x',
+        (false, true) => 'Z',
+        (false, false) => 'X',
+    })
+}
+
 /// One log field as read: value bits and the mask of x/z bits.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct Observed {
@@ -355,6 +377,8 @@ pub struct Observed {
     pub bits: Word,
     /// Bits that were x or z.
     pub unknown: Word,
+    /// The unknown bits that were z (high impedance); the other unknown bits were x.
+    pub z: Word,
 }
 
 /// What every worker reads and nobody changes during a check.
@@ -399,7 +423,9 @@ impl Shared {
         (k < self.top_up.len()).then_some(k)
     }
 
-    /// u64 entries one staged row takes: bits and unknown mask per field.
+    /// u64 entries one staged row takes: bits and unknown mask per field. Where the unknown
+    /// mask is set the bits slot holds 1 for a z bit and 0 for an x bit (every comparison
+    /// masks unknown bits out), so x and z stay apart at no extra space.
     fn row_stride(&self) -> usize {
         self.fields.len() * 2 * self.limbs
     }
@@ -411,9 +437,11 @@ impl Shared {
         let mut unknown = [0u64; LIMBS];
         bits[..l].copy_from_slice(&values[k * 2 * l..k * 2 * l + l]);
         unknown[..l].copy_from_slice(&values[k * 2 * l + l..(k + 1) * 2 * l]);
+        let (raw, unknown) = (Word::from_limbs(bits), Word::from_limbs(unknown));
         Observed {
-            bits: Word::from_limbs(bits),
-            unknown: Word::from_limbs(unknown),
+            bits: raw.and(&unknown.not(MAX_WIDTH)),
+            unknown,
+            z: raw.and(&unknown),
         }
     }
 }
@@ -766,10 +794,11 @@ fn stage_fields(shared: &Shared, row: &LogRow, values: &mut Vec<u64>) -> u16 {
             present |= 1 << k;
             let at = k * 2 * l;
             if l == 1 {
-                staged[at] = f.bits.low_u64();
+                staged[at] = f.bits.low_u64() | f.z.low_u64();
                 staged[at + 1] = f.unknown.low_u64();
             } else {
-                staged[at..at + l].copy_from_slice(&f.bits.limbs()[..l]);
+                let raw = f.bits.or(&f.z);
+                staged[at..at + l].copy_from_slice(&raw.limbs()[..l]);
                 staged[at + l..at + 2 * l].copy_from_slice(&f.unknown.limbs()[..l]);
             }
         }
@@ -1121,7 +1150,8 @@ impl<'g> Checker<'g> {
             match field(sig) {
                 Some(o) => {
                     present |= 1 << k;
-                    self.batch.values.extend_from_slice(&o.bits.limbs()[..l]);
+                    let raw = o.bits.or(&o.z.and(&o.unknown));
+                    self.batch.values.extend_from_slice(&raw.limbs()[..l]);
                     self.batch.values.extend_from_slice(&o.unknown.limbs()[..l]);
                 }
                 None => self.batch.values.extend(std::iter::repeat_n(0, 2 * l)),
@@ -1545,23 +1575,24 @@ fn describe(
         } else {
             "ok"
         };
+        let z = o.z.and(&unknown);
         let got_hex: String = (0..w.div_ceil(4))
             .rev()
             .map(|d| {
                 let nib = o.bits.extract(d * 4, 4).low_u64();
                 let unk = unknown.extract(d * 4, 4).low_u64();
-                if unk != 0 {
-                    'x'
-                } else {
-                    char::from_digit(nib as u32, 16).unwrap_or('?')
-                }
+                let in_field = Word::ones(w).extract(d * 4, 4).low_u64();
+                unknown_digit(unk, z.extract(d * 4, 4).low_u64(), in_field)
+                    .unwrap_or_else(|| char::from_digit(nib as u32, 16).unwrap_or('?'))
             })
             .collect();
         let got_bin = (w <= 64).then(|| {
             (0..w)
                 .rev()
                 .map(|i| {
-                    if unknown.bit(i) {
+                    if z.bit(i) {
+                        'z'
+                    } else if unknown.bit(i) {
                         'x'
                     } else if o.bits.bit(i) {
                         '1'
@@ -2246,6 +2277,7 @@ mod tests {
                             row.get(s).map(|f| Observed {
                                 bits: f.bits,
                                 unknown: f.unknown,
+                                z: f.z,
                             })
                         }),
                         Ok(true) => c.log_row(&row),

@@ -4,13 +4,16 @@
 
 mod check;
 mod classes;
+mod classes_bins;
 mod errors;
 mod gen;
 mod machine_output;
 mod merge;
 mod repro;
+mod spec_errors;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
 mod util;
 mod verdict;
+mod xz_digits;

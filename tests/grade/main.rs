@@ -10,6 +10,7 @@ mod ctest;
 mod errors;
 mod icarus;
 mod prove;
+mod report_words;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
