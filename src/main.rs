@@ -116,7 +116,7 @@ enum Command {
         /// current directory).
         #[arg(long, short)]
         output: Option<PathBuf>,
-        /// Settle time per vector, in time units (ns for VHDL).
+        /// Settle time per vector, in nanoseconds.
         #[arg(long, default_value_t = 1)]
         settle: u32,
         /// Also load expected.hex and count mismatches in the testbench itself.
