@@ -65,13 +65,14 @@ pub use gates::fault::{
 pub use gates::grade::{write_selection, BuiltinModel, GradeOutcome, Grader, NetlistMismatch};
 pub use gates::netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
 pub use sets::hexfile::Packer;
+pub use sets::import::{csv_sha256, parse_import_csv, read_imported};
 pub use sets::layout::{Field, Layout, WordLayout};
 pub use sets::vectorset::{
     csv_header, csv_row, read_manifest, read_manifest_unverified,
     remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
-    write as write_vector_set, FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord,
-    Selection, Shard, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX,
-    VECTORS_CSV,
+    write as write_vector_set, write_imported, FileRecord, ImportSource, Imported, Manifest,
+    ManifestField, ManifestLayout, ManifestWord, Selection, Shard, VectorSet, WriteOptions,
+    EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{

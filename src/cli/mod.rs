@@ -5,6 +5,7 @@
 
 pub(crate) mod check;
 pub(crate) mod grade;
+pub(crate) mod import;
 pub(crate) mod signals;
 pub(crate) mod threads;
 pub(crate) mod util;

@@ -412,6 +412,15 @@ pub fn write_selection(
     dir: &Path,
     source_indices: &[u64],
 ) -> Result<Manifest> {
+    if !generator.appended().is_empty() {
+        // A selection's readers regenerate its source set, which imported vectors are not
+        // part of; refuse rather than write a set whose vectors check could not rebuild.
+        return Err(Error::problem(Problem::new(
+            "--compact",
+            "the vector set holds imported vectors, and a compacted selection of such a set \
+             is not supported yet; grade without --compact",
+        )));
+    }
     // Written into a staging directory that one rename makes the set (`sets::commit`).
     let staging = Staging::begin(dir)?;
     let layout = Layout::for_spec(spec);
@@ -470,6 +479,7 @@ pub fn write_selection(
             source_random: generator.random_count(),
             indices: source_indices.to_vec(),
         }),
+        imported: None,
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
     text.push('\n');

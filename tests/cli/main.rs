@@ -6,6 +6,7 @@ mod check;
 mod classes;
 mod errors;
 mod gen;
+mod import;
 mod machine_output;
 mod merge;
 mod repro;
