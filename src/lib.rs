@@ -94,7 +94,7 @@ pub use verdict::coverage::{
 };
 pub use verdict::html::{
     render_check_html, render_grade_html, CompactedSet, GradeFault, GradeSummary, HtmlContext,
-    HtmlRun, HTML_FAILURES,
+    HtmlRun, NetlistReference, HTML_FAILURES,
 };
 pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict_line, ClassRows};
 pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};

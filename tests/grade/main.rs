@@ -9,6 +9,7 @@ mod compare;
 mod ctest;
 mod errors;
 mod icarus;
+mod reference;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
