@@ -76,13 +76,14 @@ pub use gates::sat::{
     equivalence_miter, equivalence_miter_bits, fault_miter, Answer, RefBit, Solved,
 };
 pub use sets::hexfile::Packer;
+pub use sets::import::{csv_sha256, parse_import_csv, read_imported};
 pub use sets::layout::{Field, Layout, WordLayout};
 pub use sets::vectorset::{
     csv_header, csv_row, read_manifest, read_manifest_unverified,
     remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
-    write as write_vector_set, FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord,
-    Selection, Shard, TopUpVector, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON,
-    STIMULUS_HEX, VECTORS_CSV,
+    write as write_vector_set, write_imported, FileRecord, ImportSource, Imported, Manifest,
+    ManifestField, ManifestLayout, ManifestWord, Selection, Shard, TopUpVector, VectorSet,
+    WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{
@@ -104,7 +105,7 @@ pub use verdict::coverage::{
 };
 pub use verdict::html::{
     render_check_html, render_grade_html, CompactedSet, GradeFault, GradeSummary, HtmlContext,
-    HtmlRun, HTML_FAILURES,
+    HtmlRun, NetlistReference, HTML_FAILURES,
 };
 pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict_line, ClassRows};
 pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};

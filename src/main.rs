@@ -58,6 +58,24 @@ enum Command {
         /// unsharded files.
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
+        /// Also read this CSV of operand values (as for `import`) and put its vectors after
+        /// the random ones; the manifest records the file and its SHA-256.
+        #[arg(long, value_name = "FILE", conflicts_with = "shard")]
+        append: Option<PathBuf>,
+        #[command(flatten)]
+        threads: cli::threads::ThreadsArg,
+    },
+    /// Turn a CSV of operand values into a vector set with golden outputs and classes.
+    #[command(after_help = cli::import::IMPORT_HELP)]
+    Import {
+        /// The operation spec (TOML).
+        spec: PathBuf,
+        /// The CSV: a header naming the input ports, then one vector a line.
+        #[arg(long, value_name = "FILE")]
+        csv: PathBuf,
+        /// Output directory (created if missing).
+        #[arg(long, short)]
+        out: PathBuf,
         #[command(flatten)]
         threads: cli::threads::ThreadsArg,
     },
@@ -116,7 +134,7 @@ enum Command {
         /// current directory).
         #[arg(long, short)]
         output: Option<PathBuf>,
-        /// Settle time per vector, in time units (ns for VHDL).
+        /// Settle time per vector, in nanoseconds.
         #[arg(long, default_value_t = 1)]
         settle: u32,
         /// Also load expected.hex and count mismatches in the testbench itself.
@@ -187,8 +205,27 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             count,
             seed,
             shard,
+            append: Some(csv),
+            threads,
+        } => {
+            let _ = shard; // clap refuses --shard with --append
+            cli::import::gen_append(&spec, &dir, count, seed, &csv, threads, quiet)
+        }
+        Command::Gen {
+            spec,
+            out: dir,
+            count,
+            seed,
+            shard,
+            append: None,
             threads,
         } => gen(&spec, &dir, count, seed, shard.as_deref(), threads, quiet),
+        Command::Import {
+            spec,
+            csv,
+            out: dir,
+            threads,
+        } => cli::import::import(&spec, &csv, &dir, threads, quiet),
         Command::Classes { spec, format, bins } => classes(&spec, format, bins),
         Command::Repro {
             spec,

@@ -215,7 +215,39 @@ fn open_vectors_unverified(dir: &Path, spec: &Spec) -> Result<(Manifest, Generat
             ))
         }
     };
-    let generator = Generator::new(&set_spec, Some(random), Some(manifest.seed));
+    let mut generator = Generator::new(&set_spec, Some(random), Some(manifest.seed));
+    if let Some(imported) = &manifest.imported {
+        // Imported vectors are read from the set's own stimulus.hex; a set made only of them
+        // (`arithvec import`) has no directed or random part.
+        if manifest.selection.is_some() || manifest.shard.is_some() {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    "a set with imported vectors is never a shard or a selection; the manifest \
+                     is damaged",
+                )
+                .field("imported"),
+            ));
+        }
+        if imported.first_index == 0 {
+            generator = generator.without_generated();
+        }
+        let rows = arithvec::read_imported(dir, spec, &manifest)?;
+        generator = generator.with_appended(rows);
+        if generator.directed().len() as u64 + generator.random_count() != imported.first_index
+            || generator.total() != manifest.total
+        {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    "the imported vectors' position does not match the set's directed and \
+                     random counts",
+                )
+                .field("imported.first_index"),
+            ));
+        }
+        return Ok((manifest, generator));
+    }
     if generator.directed().len() as u64 != directed {
         return Err(Error::problem(
             Problem::new(

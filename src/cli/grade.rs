@@ -9,8 +9,8 @@ use serde::Serialize;
 
 use arithvec::{
     render_grade_html, write_selection, write_topped_up, BuiltinModel, CompactedSet, Error,
-    FaultEntry, FaultReport, GradeFault, GradeOutcome, GradeSummary, Grader, Netlist, Problem,
-    Redundancy, TopUpReport, TopUpStatus, VectorSet,
+    FaultEntry, FaultReport, GradeFault, GradeOutcome, GradeSummary, Grader, Netlist,
+    NetlistReference, Problem, Redundancy, TopUpReport, TopUpStatus, VectorSet,
 };
 
 use crate::cli::check::open_vectors;
@@ -19,7 +19,9 @@ use crate::cli::util::{out, parse_percent, read_spec, stdout_error, write_output
 pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --top-up --out vec-topped/\n\n\
 The netlist's module is [dut] module unless --module says otherwise; its ports are matched by \
 name to the spec's [ports]. The fault-free netlist must reproduce the golden model on every \
-vector, or grading stops (exit 1). Exit 3 when fault coverage is below --require.\n\n\
+vector, or grading stops (exit 1); --reference netlist grades against the netlist's own \
+fault-free responses instead (for a unit with a known bug), and every report says so and \
+lists where it disagrees with the model. Exit 3 when fault coverage is below --require.\n\n\
 Fault coverage, like class coverage, is evidence, not proof; sign-off follows your team's own \
 verification plan.";
 
@@ -86,7 +88,25 @@ pub struct GradeArgs {
     /// Write a self-contained HTML report here.
     #[arg(long, value_name = "FILE")]
     html: Option<PathBuf>,
+    /// What a faulty netlist's outputs are compared with: `golden` (the fault-free netlist
+    /// must reproduce the golden model on every vector, else grading stops with exit 1) or
+    /// `netlist` (its own fault-free responses, to grade a unit with a known functional bug;
+    /// every report says so and lists the vectors where it disagrees with the model).
+    #[arg(long, value_enum, default_value_t = Reference::Golden)]
+    reference: Reference,
 }
+
+/// The reference responses of `grade --reference`.
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+pub enum Reference {
+    /// The golden model (the default).
+    Golden,
+    /// The netlist's own fault-free responses.
+    Netlist,
+}
+
+/// Disagreements of the fault-free netlist with the golden model listed in reports.
+const LISTED_DISAGREEMENTS: usize = 50;
 
 /// The redundancy verdict of a fault in words, as the table and the HTML page show it.
 fn redundancy_words(f: &FaultEntry) -> String {
@@ -185,6 +205,7 @@ fn grade_summary(
         ungraded_gates: report.ungraded_gates,
         require: args.require,
         compacted,
+        netlist_reference: None,
     }
 }
 
@@ -246,16 +267,35 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
     };
     let mut grader = Grader::new(&spec, &netlist)?;
     grader.set_threads(args.threads.resolve()?);
-    let report = match grader.grade(&set.inputs, &set.expected)? {
+    let index_of = |position: usize| {
+        manifest
+            .selection
+            .as_ref()
+            .and_then(|s| s.indices.get(position).copied())
+            .unwrap_or(manifest.first_index + position as u64)
+    };
+    let mut netlist_reference = None;
+    let outcome = match args.reference {
+        Reference::Golden => grader.grade(&set.inputs, &set.expected)?,
+        Reference::Netlist => {
+            let (count, listed) = grader.fault_free_disagreements(
+                &set.inputs,
+                &set.expected,
+                LISTED_DISAGREEMENTS,
+            )?;
+            netlist_reference = Some(NetlistReference {
+                disagreeing_vectors: count,
+                listed: listed
+                    .into_iter()
+                    .map(|m| (index_of(m.position), m.port, m.expected, m.got))
+                    .collect(),
+            });
+            GradeOutcome::Graded(grader.grade_against_netlist(&set.inputs)?)
+        }
+    };
+    let report = match outcome {
         GradeOutcome::Graded(r) => r,
         GradeOutcome::NotTheSpec(bad) => {
-            let index_of = |position: usize| {
-                manifest
-                    .selection
-                    .as_ref()
-                    .and_then(|s| s.indices.get(position).copied())
-                    .unwrap_or(manifest.first_index + position as u64)
-            };
             let mut o = out();
             if args.format == GradeFormat::Json {
                 // One document on stdout, as for a graded netlist: a consumer parsing it sees
@@ -401,8 +441,52 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         None
     };
     let mut o = out();
+    if let Some(r) = &netlist_reference {
+        // Loud on stderr whatever the format, so a log of the run shows it too.
+        eprintln!(
+            "warning: graded against the netlist's own fault-free responses (--reference \
+             netlist), not the golden model; the fault-free netlist disagrees with the model \
+             on {} of {} vectors",
+            r.disagreeing_vectors,
+            set.inputs.len()
+        );
+    }
     if args.format == GradeFormat::Json {
         let mut doc = serde_json::to_value(&report).expect("report serialises");
+        if let Some(map) = doc.as_object_mut() {
+            map.insert(
+                "reference".into(),
+                match args.reference {
+                    Reference::Golden => "golden",
+                    Reference::Netlist => "netlist",
+                }
+                .into(),
+            );
+            if let Some(r) = &netlist_reference {
+                let listed: Vec<serde_json::Value> = r
+                    .listed
+                    .iter()
+                    .map(|(index, port, expected, got)| {
+                        serde_json::json!({
+                            "index": index,
+                            "port": port,
+                            "expected": expected,
+                            "got": got,
+                        })
+                    })
+                    .collect();
+                map.insert(
+                    "golden_disagreements".into(),
+                    serde_json::json!({
+                        "note": "graded against the netlist's own fault-free responses, not the \
+                                 golden model; these vectors show where the netlist disagrees \
+                                 with the model",
+                        "vectors": r.disagreeing_vectors,
+                        "listed": listed,
+                    }),
+                );
+            }
+        }
         if let (Some(c), Some(map)) = (&compaction, doc.as_object_mut()) {
             map.insert(
                 "compaction".into(),
@@ -438,6 +522,38 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             report.redundant.len().to_string(),
             format!("{:.2}%", report.coverage_percent),
         ]];
+        if let Some(r) = &netlist_reference {
+            writeln!(
+                o,
+                "*** REFERENCE: THE NETLIST'S OWN FAULT-FREE RESPONSES, NOT THE GOLDEN MODEL \
+                 (--reference netlist) ***"
+            )
+            .map_err(stdout_error)?;
+            if r.disagreeing_vectors == 0 {
+                writeln!(
+                    o,
+                    "the fault-free netlist agrees with the golden model on all {} vectors",
+                    set.inputs.len()
+                )
+                .map_err(stdout_error)?;
+            } else {
+                writeln!(
+                    o,
+                    "the fault-free netlist disagrees with the golden model on {} of {} vectors \
+                     (it does not implement the spec); first disagreements:",
+                    r.disagreeing_vectors,
+                    set.inputs.len()
+                )
+                .map_err(stdout_error)?;
+                for (index, port, want, got) in &r.listed {
+                    writeln!(
+                        o,
+                        "  vector {index}: port {port} golden 0x{want} netlist 0x{got}"
+                    )
+                    .map_err(stdout_error)?;
+                }
+            }
+        }
         writeln!(
             o,
             "single stuck-at faults of module {} ({} vectors of unit {})",
@@ -559,7 +675,8 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         dir: c.out.clone(),
     });
     if let Some(path) = &args.html {
-        let summary = grade_summary(&report, &args, manifest.seed, compacted);
+        let mut summary = grade_summary(&report, &args, manifest.seed, compacted);
+        summary.netlist_reference = netlist_reference;
         write_output(path, render_grade_html(&spec, &summary).as_bytes())?;
     }
     o.flush().map_err(stdout_error)?;

@@ -151,6 +151,34 @@ pub struct Manifest {
     /// set these are, in file order. Vector p of these files is source vector `indices[p]`.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub selection: Option<Selection>,
+    /// For a set holding vectors given from outside (`arithvec import`, `gen --append`):
+    /// where they came from and where they sit. Readers take those vectors from
+    /// `stimulus.hex` (checked against its SHA-256) instead of regenerating them.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub imported: Option<Imported>,
+}
+
+/// The provenance of imported vectors (see [`Manifest::imported`]).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Imported {
+    /// The CSV file the vectors were read from, as named on the command line.
+    pub file: String,
+    /// SHA-256 of that file's bytes when it was read.
+    pub csv_sha256: String,
+    /// Index of the first imported vector: 0 for `arithvec import`, directed + random for
+    /// `gen --append`.
+    pub first_index: u64,
+    /// How many vectors were imported (they run to the end of the set).
+    pub vectors: u64,
+}
+
+/// Where imported vectors came from, as given to [`write_imported`].
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ImportSource {
+    /// The CSV file, as named on the command line.
+    pub file: String,
+    /// SHA-256 of its bytes.
+    pub sha256: String,
 }
 
 /// The provenance of a selected (compacted) vector set.
@@ -371,9 +399,12 @@ impl Formatter<'_> {
             chunk.stimulus.reserve(rows * (n.stimulus.digits + 1));
             chunk.expected.reserve(rows * (n.expected.digits + 1));
         }
+        let appended_from = d + self.generator.random_count();
         for index in range {
             let inputs = if index < d {
                 self.generator.directed()[index as usize]
+            } else if index >= appended_from {
+                self.generator.appended()[(index - appended_from) as usize]
             } else {
                 stream
                     .get_or_insert_with(|| self.generator.random_stream(index - d))
@@ -730,7 +761,43 @@ pub fn write(
     generator: &Generator,
     spec: &Spec,
     dir: &Path,
+    options: WriteOptions<'_>,
+) -> Result<Manifest> {
+    let source = ImportSource {
+        file: "(given by a library caller)".into(),
+        sha256: String::new(),
+    };
+    write_set(generator, spec, dir, options, &source)
+}
+
+/// [`write`] for a generator with appended (imported) vectors: the manifest records
+/// `source` as their provenance. A shard of such a set is refused: its readers need every
+/// imported vector in the files.
+pub fn write_imported(
+    generator: &Generator,
+    spec: &Spec,
+    dir: &Path,
+    options: WriteOptions<'_>,
+    source: &ImportSource,
+) -> Result<Manifest> {
+    if options.shard.is_some() {
+        return Err(Error::problem(
+            Problem::new(
+                "--shard",
+                "a set with imported vectors is written whole; leave out --shard",
+            )
+            .field("shard"),
+        ));
+    }
+    write_set(generator, spec, dir, options, source)
+}
+
+fn write_set(
+    generator: &Generator,
+    spec: &Spec,
+    dir: &Path,
     mut options: WriteOptions<'_>,
+    source: &ImportSource,
 ) -> Result<Manifest> {
     // Everything goes into a staging directory beside `dir`, which one rename makes the set
     // (see `sets::commit`); a failure anywhere removes the staging directory (on drop).
@@ -896,6 +963,12 @@ pub fn write(
         },
         files: finished.iter().map(|(r, _, _)| r.clone()).collect(),
         selection: None,
+        imported: (!generator.appended().is_empty()).then(|| Imported {
+            file: source.file.clone(),
+            csv_sha256: source.sha256.clone(),
+            first_index: generator.directed().len() as u64 + generator.random_count(),
+            vectors: generator.appended().len() as u64,
+        }),
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
     text.push('\n');

@@ -51,8 +51,8 @@ pub struct TestbenchOptions {
     /// The global index of the stimulus file's first vector (the manifest's `first_index`;
     /// non-zero for a shard), so the log names every vector by its index in the whole set.
     pub first_index: u64,
-    /// How long to wait after applying a vector before sampling the outputs, in time units
-    /// (Verilog: the testbench's time unit; VHDL: nanoseconds). At least 1.
+    /// How long to wait after applying a vector before sampling the outputs,
+    /// in nanoseconds (the Verilog testbench opens with `` `timescale 1ns / 1ps ``). At least 1.
     pub settle: u32,
     /// Also load `expected.hex`, compare, count mismatches and fail the run on any.
     pub self_check: bool,
@@ -298,10 +298,7 @@ impl<'a> Plan<'a> {
                 },
                 self.dut.module,
                 self.options.settle,
-                match self.options.hdl {
-                    Hdl::Verilog => "time unit(s)",
-                    Hdl::Vhdl => "ns",
-                },
+                "ns",
             ),
             "and writes one CSV row per vector to the results file, for `arithvec check`."
                 .to_string(),
@@ -347,7 +344,10 @@ impl<'a> Plan<'a> {
             // No comment line may start with the word "verilator": Verilator reads such
             // comments as directives and rejects unknown ones. Hence the "$ " prompts.
             "With Icarus Verilog 11:".to_string(),
-            format!("  $ iverilog -g2005 -o sim {} {dut_file}", self.file_name),
+            format!(
+                "  $ iverilog -g2005 -s {} -o sim {} {dut_file}",
+                self.name, self.file_name
+            ),
             format!("  $ vvp sim {plusargs}"),
             "With Verilator 5:".to_string(),
             format!(
@@ -362,6 +362,13 @@ impl<'a> Plan<'a> {
             format!(
                 "(the values shown are the defaults); paths may be up to {PLUSARG_BYTES} characters."
             ),
+            format!(
+                "-s / --top-module name {} as the only top, so test modules in the DUT's files",
+                self.name
+            ),
+            "do not run as extra tops. SystemVerilog DUT sources (.sv, or any file using".to_string(),
+            "logic, always_comb, always_ff, interfaces or packages) need -g2012 in place of".to_string(),
+            "-g2005 with Icarus; Verilator reads them as they are.".to_string(),
         ]);
         if check {
             header.push(
@@ -378,6 +385,9 @@ impl<'a> Plan<'a> {
             }
         }
         out.push('\n');
+        // The settle delay is in nanoseconds, as in the VHDL testbench. A DUT file without a
+        // `timescale keeps the simulator's default; both simulators accept the mix.
+        out.push_str("`timescale 1ns / 1ps\n\n");
 
         let stim = &self.layout.stimulus;
         let exp = &self.layout.expected;
@@ -1280,7 +1290,7 @@ parameters = { W = 16, STYLE = "say \"fast\"" }
         );
         let joined = header.join("\n");
         for command in [
-            "//   $ iverilog -g2005 -o sim tb_pump_delta_v2.v sub_w.v",
+            "//   $ iverilog -g2005 -s tb_pump_delta_v2 -o sim tb_pump_delta_v2.v sub_w.v",
             "//   $ vvp sim +stimulus=stimulus.hex +results=results.csv +expected=expected.hex",
             "//   $ verilator --binary --timing -Wno-fatal --top-module tb_pump_delta_v2 \
              tb_pump_delta_v2.v sub_w.v -o sim",
@@ -1338,7 +1348,7 @@ parameters = { W = 16, STYLE = "say \"fast\"" }
         assert!(text.contains("    .STYLE(\"say \\\"fast\\\"\")"));
         assert!(text.contains("    .bin(s_carry_in),"));
         assert!(text.contains("      #1;\n"));
-        assert!(!text.contains("`timescale"));
+        assert!(text.contains("\n`timescale 1ns / 1ps\n"));
         assert!(!text.contains("$fatal(1, \"arithvec-tb: %0d of"));
     }
 

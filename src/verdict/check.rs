@@ -287,6 +287,11 @@ impl VectorLookup {
             return generator.directed().get(index as usize).copied();
         }
         let j = index - d;
+        if j >= generator.random_count() && !generator.appended().is_empty() {
+            // An imported vector (`arithvec import`, `gen --append`).
+            let k = usize::try_from(j - generator.random_count()).ok()?;
+            return generator.appended().get(k).copied();
+        }
         match &mut self.stream {
             Some((next, s)) if *next == j => {
                 *next += 1;
@@ -1522,6 +1527,7 @@ fn set_identity(m: &Manifest) -> SetIdentity {
                 random: s.source_random,
                 total: m.vectors,
                 selection_sha256: Some(sha256_hex(list.join(",").as_bytes())),
+                imported_sha256: None,
             }
         }
         None => SetIdentity {
@@ -1530,6 +1536,13 @@ fn set_identity(m: &Manifest) -> SetIdentity {
             random: m.random,
             total: m.total,
             selection_sha256: None,
+            // Two sets with imported vectors are the same set only with the same stimulus.
+            imported_sha256: m.imported.as_ref().and_then(|_| {
+                m.files
+                    .iter()
+                    .find(|f| f.name == crate::sets::vectorset::STIMULUS_HEX)
+                    .map(|f| f.sha256.clone())
+            }),
         },
     }
 }
@@ -1641,12 +1654,18 @@ fn describe(
     }
     // In a selected (compacted) set, position `index` is vector `source` of the source set.
     let source = shared.source_index(index).unwrap_or(index);
+    let generated = shared.generator.directed().len() as u64 + shared.generator.random_count();
     let repro = match shared.top_up_number(index) {
         // A top-up vector is in no seeded set: its operands (above, and in the manifest)
         // are the reproduction.
         Some(k) => format!(
             "top-up vector {k}: not from the seed; apply the operands above (manifest.json \
              selection.top_up[{k}])"
+        ),
+        None if source >= generated && !shared.generator.appended().is_empty() => format!(
+            "(imported vector {} of the set; repro cannot rebuild it: see row {index} of the \
+             set's vectors.csv)",
+            source - generated
         ),
         None => format!(
             "{} --index {source}{seed_part}",

@@ -7,6 +7,7 @@ mod classes;
 mod classes_bins;
 mod errors;
 mod gen;
+mod import;
 mod machine_output;
 mod merge;
 mod repro;

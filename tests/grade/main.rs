@@ -11,6 +11,7 @@ mod errors;
 mod icarus;
 mod prove;
 mod report_words;
+mod reference;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
