@@ -4,6 +4,7 @@
 
 mod check;
 mod classes;
+mod divide;
 mod errors;
 mod gen;
 mod machine_output;
