@@ -91,9 +91,9 @@ pub use sim::testbench::{
     MAX_TESTBENCH_VECTORS,
 };
 pub use spec::{
-    default_amount_width, is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut,
-    Encoding, LargeAmount, Mix, NegativeZero, OffsetCarry, OpOptions, Operation, ParamValue, Ports,
-    RandomSettings, ResultPart, Signal, Signedness, Spec, ZeroFlag,
+    default_amount_width, is_identifier, CarryInConvention, CarryOutConvention, Conventions,
+    DivByZero, Dut, Encoding, LargeAmount, Mix, NegativeZero, OffsetCarry, OpOptions, Operation,
+    ParamValue, Ports, RandomSettings, ResultPart, Rounding, Signal, Signedness, Spec, ZeroFlag,
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,

@@ -656,7 +656,10 @@ fn testbench(
 
 fn field_row(role: &str, sig: Signal, name: &str, v: &arithvec::Word, spec: &Spec) -> [String; 5] {
     let w = spec.signal_width(sig);
-    let value = if matches!(sig, Signal::A | Signal::B | Signal::Result) {
+    let value = if matches!(
+        sig,
+        Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
+    ) {
         format!("{} ({})", Value::decode(v, w, spec.encoding), spec.encoding)
     } else {
         (v.bit(0) as u8).to_string()

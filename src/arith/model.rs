@@ -50,6 +50,13 @@ pub struct Outputs {
     pub equal: bool,
     /// Compare: a > b.
     pub greater: bool,
+    /// Division: the remainder (the quotient is `result`).
+    pub remainder: Word,
+    /// Division: the divisor is zero.
+    pub div_by_zero: bool,
+    /// Division by zero under `div_by_zero = "dont_care"`: the quotient and remainder are
+    /// not compared for this vector (every other output is).
+    pub dont_care: bool,
 }
 
 impl Inputs {
@@ -79,6 +86,13 @@ impl Inputs {
 }
 
 impl Outputs {
+    /// False for an output this vector leaves unspecified (the quotient and remainder of a
+    /// division by zero under `div_by_zero = "dont_care"`), which no checker compares.
+    #[inline]
+    pub fn is_specified(&self, signal: Signal) -> bool {
+        !(self.dont_care && matches!(signal, Signal::Quotient | Signal::Remainder))
+    }
+
     /// The low 64 bits of an output signal's value, without building a word.
     #[inline]
     pub(crate) fn get_low(&self, signal: Signal) -> u64 {
@@ -91,6 +105,9 @@ impl Outputs {
             Signal::Less => self.less as u64,
             Signal::Equal => self.equal as u64,
             Signal::Greater => self.greater as u64,
+            Signal::Quotient => self.result.low_u64(),
+            Signal::Remainder => self.remainder.low_u64(),
+            Signal::DivByZero => self.div_by_zero as u64,
             _ => 0,
         }
     }
@@ -107,6 +124,9 @@ impl Outputs {
             Signal::Less => flag(self.less),
             Signal::Equal => flag(self.equal),
             Signal::Greater => flag(self.greater),
+            Signal::Quotient => self.result,
+            Signal::Remainder => self.remainder,
+            Signal::DivByZero => flag(self.div_by_zero),
             _ => Word::ZERO,
         }
     }
@@ -123,6 +143,9 @@ impl Outputs {
             Signal::Less => self.less = b,
             Signal::Equal => self.equal = b,
             Signal::Greater => self.greater = b,
+            Signal::Quotient => self.result = value,
+            Signal::Remainder => self.remainder = value,
+            Signal::DivByZero => self.div_by_zero = b,
             _ => {}
         }
     }
@@ -190,6 +213,8 @@ pub(crate) struct Trace<B> {
     pub result: B,
     pub path: Path<B>,
     pub outputs_flags: Flags,
+    /// Division: the remainder pattern (zero for the other operations).
+    pub remainder: B,
 }
 
 /// The one-bit outputs.
@@ -202,6 +227,9 @@ pub(crate) struct Flags {
     pub less: bool,
     pub equal: bool,
     pub greater: bool,
+    pub div_by_zero: bool,
+    /// See [`Outputs::dont_care`].
+    pub dont_care: bool,
 }
 
 /// Where one input of a ripple datapath comes from.
@@ -408,7 +436,10 @@ impl Model {
                 | Operation::Sra
                 | Operation::Rol
                 | Operation::Ror
-                | Operation::Mul,
+                | Operation::Mul
+                | Operation::Div
+                | Operation::Rem
+                | Operation::DivRem,
             ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,
             (Encoding::Ones, Operation::Negate) => return None,
@@ -488,6 +519,9 @@ impl Model {
             less: f.less,
             equal: f.equal,
             greater: f.greater,
+            remainder: t.remainder.to_word(),
+            div_by_zero: f.div_by_zero,
+            dont_care: f.dont_care,
         }
     }
 
@@ -527,8 +561,11 @@ impl Model {
                     overflow: r.overflow,
                     zero: r.zero,
                     negative: r.negative,
+                    div_by_zero: r.div_by_zero,
+                    dont_care: r.dont_care,
                     ..Flags::default()
                 },
+                remainder: r.remainder,
             };
         }
         let w = self.width;
@@ -582,6 +619,7 @@ impl Model {
                 result: B::zero(),
                 path: Path::None,
                 outputs_flags: flags,
+                remainder: B::zero(),
             };
         }
 
@@ -729,6 +767,7 @@ impl Model {
             result,
             path,
             outputs_flags: flags,
+            remainder: B::zero(),
         }
     }
 

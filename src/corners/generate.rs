@@ -432,6 +432,9 @@ impl Datapath {
 
 /// Candidate inputs for one bin, best first. The caller keeps the first that hits.
 fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word]) -> Vec<Inputs> {
+    if spec.operation.is_division() {
+        return crate::corners::construct_divide::candidates(cat, spec, class, k);
+    }
     if spec.operation.is_extended() {
         return crate::corners::construct::candidates(cat, spec, class, k);
     }

@@ -361,7 +361,7 @@ impl<'a> Grader<'a> {
                 let Some(sig) = sig else { continue };
                 let w = self.spec.signal_width(*sig);
                 let want = e.get(*sig).masked(w);
-                if g.masked(w) != want {
+                if e.is_specified(*sig) && g.masked(w) != want {
                     out.push(NetlistMismatch {
                         position: p,
                         port: port.name().to_string(),

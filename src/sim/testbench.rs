@@ -19,7 +19,7 @@ use std::fmt::Write as _;
 
 use crate::error::{Error, Problem, Result};
 use crate::sets::layout::{Field, Layout, WordLayout};
-use crate::spec::{Dut, NegativeZero, ParamValue, Signal, Spec};
+use crate::spec::{DivByZero, Dut, NegativeZero, ParamValue, Signal, Spec};
 
 /// The hardware description language of an emitted testbench.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -225,6 +225,19 @@ impl<'a> Plan<'a> {
                      judge its log with `arithvec check`",
                 )
                 .field("conventions.negative_zero"),
+            );
+        }
+        let free_quotient = spec.options.and_then(|o| o.div_by_zero) == Some(DivByZero::DontCare)
+            && (spec.has(Signal::Quotient) || spec.has(Signal::Remainder));
+        if options.self_check && free_quotient {
+            problems.push(
+                Problem::new(
+                    source.clone(),
+                    "self-check compares every expected bit, but div_by_zero = \"dont_care\" \
+                     leaves the quotient and remainder of a division by zero unspecified; emit \
+                     the testbench without self-check and judge its log with `arithvec check`",
+                )
+                .field("conventions.div_by_zero"),
             );
         }
         if layout.stimulus.fields.is_empty() || layout.expected.fields.is_empty() {
@@ -1048,7 +1061,10 @@ fn vhdl_value(value: &ParamValue) -> String {
 /// Operands and the result are vectors at every width (a VHDL DUT declares them as
 /// std_logic_vector even at width 1); the flags are single bits.
 fn is_vector(field: &Field) -> bool {
-    matches!(field.signal, Signal::A | Signal::B | Signal::Result)
+    matches!(
+        field.signal,
+        Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
+    )
 }
 
 /// Checks the names that appear in the emitted text: the DUT module, its parameters and its

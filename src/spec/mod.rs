@@ -20,7 +20,9 @@ use crate::error::{Error, Problem, Result};
 mod conventions;
 use conventions::ConventionKey;
 mod ops;
-pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
+pub use ops::{
+    default_amount_width, DivByZero, LargeAmount, OpOptions, ResultPart, Rounding, Signedness,
+};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -56,6 +58,12 @@ pub enum Operation {
     Ror,
     /// `a * b`, an R-bit result (default R = 2N).
     Mul,
+    /// `a / b`: quotient, with div_by_zero and overflow flags.
+    Div,
+    /// `a % b` (the remainder of the same division): remainder, div_by_zero, overflow.
+    Rem,
+    /// Quotient and remainder of one division.
+    DivRem,
 }
 
 impl Operation {
@@ -71,13 +79,16 @@ impl Operation {
     ];
 
     /// The shift, rotate and multiply operations (models in `arith::ops`).
-    pub const EXTENDED: [Operation; 6] = [
+    pub const EXTENDED: [Operation; 9] = [
         Operation::Shl,
         Operation::Shr,
         Operation::Sra,
         Operation::Rol,
         Operation::Ror,
         Operation::Mul,
+        Operation::Div,
+        Operation::Rem,
+        Operation::DivRem,
     ];
 
     /// The spec-file spelling.
@@ -96,6 +107,9 @@ impl Operation {
             Operation::Rol => "rol",
             Operation::Ror => "ror",
             Operation::Mul => "mul",
+            Operation::Div => "div",
+            Operation::Rem => "rem",
+            Operation::DivRem => "divrem",
         }
     }
 
@@ -108,6 +122,9 @@ impl Operation {
                 | Operation::AddSub
                 | Operation::Compare
                 | Operation::Mul
+                | Operation::Div
+                | Operation::Rem
+                | Operation::DivRem
         )
     }
 
@@ -129,6 +146,9 @@ impl Operation {
                 &[A, Amount, Result, CarryOut, Zero, Negative]
             }
             Operation::Mul => &[A, B, Result, Overflow, Zero, Negative],
+            Operation::Div => &[A, B, Overflow, Quotient, DivByZero],
+            Operation::Rem => &[A, B, Overflow, Remainder, DivByZero],
+            Operation::DivRem => &[A, B, Overflow, Quotient, Remainder, DivByZero],
         }
     }
 }
@@ -227,11 +247,17 @@ pub enum Signal {
     Greater,
     /// Shift amount (width `amount_width`).
     Amount,
+    /// Division: the N-bit quotient.
+    Quotient,
+    /// Division: the N-bit remainder.
+    Remainder,
+    /// Division: the divisor is zero.
+    DivByZero,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 13] = [
+    pub const ALL: [Signal; 16] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -245,6 +271,9 @@ impl Signal {
         Signal::Equal,
         Signal::Greater,
         Signal::Amount,
+        Signal::Quotient,
+        Signal::Remainder,
+        Signal::DivByZero,
     ];
 
     /// The key used in `[ports]`.
@@ -263,6 +292,9 @@ impl Signal {
             Signal::Equal => "equal",
             Signal::Greater => "greater",
             Signal::Amount => "amount",
+            Signal::Quotient => "quotient",
+            Signal::Remainder => "remainder",
+            Signal::DivByZero => "div_by_zero",
         }
     }
 
@@ -282,7 +314,7 @@ impl Signal {
     /// The signal's width in bits for a unit of operand width `width`.
     pub fn width(self, width: u32) -> u32 {
         match self {
-            Signal::A | Signal::B | Signal::Result => width,
+            Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder => width,
             _ => 1,
         }
     }
@@ -643,6 +675,11 @@ fn signal_allowed(
              datapath has no plain carry-in); remove it",
             encoding.name()
         )),
+        (Signal::Overflow, Encoding::Unsigned) if operation.is_division() => Err(
+            "an unsigned division never overflows (only the two's-complement min / -1 does); \
+             remove it"
+                .to_string(),
+        ),
         (Signal::CarryOut, Encoding::SignMagnitude) => Err(
             "a sign-magnitude unit has no carry-out of its own; use the overflow port for \
              magnitude overflow"

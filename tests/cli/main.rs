@@ -5,6 +5,7 @@
 mod check;
 mod classes;
 mod classes_bins;
+mod divide;
 mod errors;
 mod gen;
 mod import;
