@@ -35,6 +35,8 @@ pub struct Generator {
     random: RandomPlan,
     /// Special operand patterns for the corner-biased mix.
     pool: std::sync::Arc<[Word]>,
+    /// A select unit's codes, drawn uniformly for random vectors (empty for other units).
+    codes: std::sync::Arc<[u32]>,
 }
 
 /// Settings of the random part.
@@ -61,6 +63,8 @@ impl RandomPlan {
     }
 }
 
+mod select;
+
 /// Domain separation for the random key, so a seed's stream is arithvec's own.
 const KEY_LABEL: &[u8] = b"arithvec random vectors v1";
 
@@ -68,6 +72,9 @@ impl Generator {
     /// Builds the directed set for `spec` and plans `count` random vectors from `seed`
     /// (the spec's `[random]` values unless overridden).
     pub fn new(spec: &Spec, count: Option<u64>, seed: Option<u64>) -> Generator {
+        if spec.select.is_some() {
+            return Generator::for_select(spec, count, seed);
+        }
         let mut catalogue = Catalogue::candidates(spec);
         let (directed, directed_hits) = build_directed(spec, &mut catalogue);
         let seed = seed.unwrap_or(spec.random.seed);
@@ -78,6 +85,7 @@ impl Generator {
         let pool = operand_pool(&catalogue).into();
         Generator {
             pool,
+            codes: std::sync::Arc::from([]),
             catalogue,
             directed,
             directed_hits,
@@ -163,6 +171,7 @@ impl Generator {
             rng,
             plan: self.random,
             pool: self.pool.clone(),
+            codes: self.codes.clone(),
         }
     }
 }
@@ -172,6 +181,7 @@ pub struct RandomStream {
     rng: ChaCha20Rng,
     plan: RandomPlan,
     pool: std::sync::Arc<[Word]>,
+    codes: std::sync::Arc<[u32]>,
 }
 
 impl RandomStream {
@@ -212,11 +222,18 @@ impl RandomStream {
             Word::ZERO
         };
         let flags = self.rng.next_u32();
+        // A select unit's code comes from the same word's upper bits, so the stream of every
+        // other unit is unchanged.
+        let select = match self.codes.len() {
+            0 => 0,
+            n => self.codes[(flags >> 8) as usize % n],
+        };
         Inputs {
             a,
             b,
             carry_in: flags & 1 == 1,
             mode: flags & 2 == 2,
+            select,
         }
     }
 }
@@ -692,6 +709,7 @@ impl Solver<'_> {
                     b: pb,
                     carry_in: self.has_cin && self.port_for(c),
                     mode: self.mode,
+                    select: 0,
                 });
             }
         }
@@ -809,6 +827,7 @@ impl Solver<'_> {
                 b: uy.xor(flip).to_word(),
                 carry_in: self.has_cin && self.port_for(c),
                 mode: self.mode,
+                select: 0,
             });
         }
         out
@@ -830,6 +849,7 @@ impl Solver<'_> {
                         b,
                         carry_in: c,
                         mode: self.mode,
+                        select: 0,
                     });
                 }
             }
@@ -1183,6 +1203,7 @@ mod tests {
                                         b: Word::from_u64(b),
                                         carry_in: c & 1 == 1 && spec.has(Signal::CarryIn),
                                         mode: c & 2 == 2 && op == Operation::AddSub,
+                                        select: 0,
                                     };
                                     cat.evaluate(&v, &mut hits);
                                     hits.for_each_bin(|b| seen[b] = true);

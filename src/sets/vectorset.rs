@@ -223,7 +223,7 @@ struct NarrowRows {
 /// Every signal's value (low 64 bits), indexed by `Signal as usize`, so the row writer
 /// reads fields by number instead of matching on the signal per field.
 #[inline]
-fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 13] {
+fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 14] {
     [
         i.a.low_u64(),
         i.b.low_u64(),
@@ -238,6 +238,7 @@ fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 13] {
         o.equal as u64,
         o.greater as u64,
         i.b.low_u64(),
+        i.select as u64,
     ]
 }
 
@@ -265,7 +266,7 @@ impl NarrowWord {
 
     /// The packed word, as [`Packer::push_line`] packs it.
     #[inline]
-    fn pack(&self, values: &[u64; 13]) -> u128 {
+    fn pack(&self, values: &[u64; 14]) -> u128 {
         let mut packed = 0u128;
         for &(signal, lsb, mask) in &self.fields {
             packed |= ((values[signal] & mask) as u128) << lsb;

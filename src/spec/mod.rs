@@ -20,7 +20,9 @@ use crate::error::{Error, Problem, Result};
 mod conventions;
 use conventions::ConventionKey;
 mod ops;
+mod select;
 pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
+pub use select::{SelectSpec, UndefinedOutputs};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -56,6 +58,9 @@ pub enum Operation {
     Ror,
     /// `a * b`, an R-bit result (default R = 2N).
     Mul,
+    /// Several operations behind one select port; the `[select]` table gives the code of
+    /// each (see `spec::select`).
+    Select,
 }
 
 impl Operation {
@@ -96,6 +101,7 @@ impl Operation {
             Operation::Rol => "rol",
             Operation::Ror => "ror",
             Operation::Mul => "mul",
+            Operation::Select => "select",
         }
     }
 
@@ -129,6 +135,12 @@ impl Operation {
                 &[A, Amount, Result, CarryOut, Zero, Negative]
             }
             Operation::Mul => &[A, B, Result, Overflow, Zero, Negative],
+            // The union of the operations a select unit can carry; `spec::select` refuses a
+            // port no carried operation has.
+            Operation::Select => &[
+                A, B, CarryIn, Select, Result, CarryOut, Overflow, Zero, Negative, Less, Equal,
+                Greater,
+            ],
         }
     }
 }
@@ -227,11 +239,13 @@ pub enum Signal {
     Greater,
     /// Shift amount (width `amount_width`).
     Amount,
+    /// Operation select code of a select unit (width `[select] width`).
+    Select,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 13] = [
+    pub const ALL: [Signal; 14] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -245,6 +259,7 @@ impl Signal {
         Signal::Equal,
         Signal::Greater,
         Signal::Amount,
+        Signal::Select,
     ];
 
     /// The key used in `[ports]`.
@@ -263,6 +278,7 @@ impl Signal {
             Signal::Equal => "equal",
             Signal::Greater => "greater",
             Signal::Amount => "amount",
+            Signal::Select => "select",
         }
     }
 
@@ -275,7 +291,12 @@ impl Signal {
     pub fn is_input(self) -> bool {
         matches!(
             self,
-            Signal::A | Signal::B | Signal::CarryIn | Signal::Mode | Signal::Amount
+            Signal::A
+                | Signal::B
+                | Signal::CarryIn
+                | Signal::Mode
+                | Signal::Amount
+                | Signal::Select
         )
     }
 
@@ -476,6 +497,9 @@ pub struct Spec {
     /// Options of the shift, rotate and multiply operations (None for the others).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub options: Option<OpOptions>,
+    /// The `[select]` table of a select unit (None for the others).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub select: Option<SelectSpec>,
 }
 
 impl Spec {
@@ -509,6 +533,14 @@ impl Spec {
 
     /// True when the operation subtracts in some mode (and so the borrow conventions apply).
     pub fn subtracts(&self) -> bool {
+        if let Some(select) = &self.select {
+            return select.operations().any(|op| {
+                matches!(
+                    op,
+                    Operation::Sub | Operation::Negate | Operation::Decrement
+                )
+            });
+        }
         matches!(
             self.operation,
             Operation::Sub | Operation::AddSub | Operation::Negate | Operation::Decrement
@@ -540,6 +572,7 @@ impl Spec {
                 t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
             }
         }
+        t.push_str(&self.select_toml());
         let c = &self.conventions;
         let mut conv = String::new();
         for key in ConventionKey::ALL {
@@ -572,6 +605,7 @@ impl Spec {
             conv.push_str(&format!("{} = {}\n", key.name(), q(v)));
         }
         conv.push_str(&option_conv);
+        conv.push_str(&self.select_conventions_toml());
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
             t.push_str(&conv);
@@ -623,6 +657,7 @@ impl Spec {
             random: RandomSettings::default(),
             dut: None,
             options: Spec::default_options(operation, encoding, width),
+            select: None,
         }
     }
 }
@@ -818,6 +853,7 @@ impl<'a> Reader<'a> {
                 "conventions",
                 "random",
                 "dut",
+                "select",
                 ops::ROOT_KEYS[0],
                 ops::ROOT_KEYS[1],
             ],
@@ -843,6 +879,7 @@ impl<'a> Reader<'a> {
             &Operation::ALL
                 .into_iter()
                 .chain(Operation::EXTENDED)
+                .chain([Operation::Select])
                 .map(|o| (o.name(), o))
                 .collect::<Vec<_>>(),
         );
@@ -906,6 +943,7 @@ impl<'a> Reader<'a> {
             random: RandomSettings::default(),
             dut: None,
             options: None,
+            select: None,
         };
         spec.options = Spec::default_options(spec.operation, spec.encoding, spec.width);
         if let Some(why) = spec.operation.refuses(spec.encoding) {
@@ -913,7 +951,9 @@ impl<'a> Reader<'a> {
             self.problem(at, "encoding", why);
         }
         self.read_option_widths(root, &mut spec);
+        self.read_select(root, ports_table, &mut spec);
         if let Some(t) = conv_table {
+            self.read_select_conventions(t, &mut spec);
             self.read_conventions(t, &mut spec);
             self.read_option_conventions(t, &mut spec);
         }
@@ -1044,6 +1084,7 @@ impl<'a> Reader<'a> {
                 ops::CONVENTION_KEYS[0],
                 ops::CONVENTION_KEYS[1],
                 ops::CONVENTION_KEYS[2],
+                select::CONVENTION_KEY,
             ],
         );
         let p = "conventions.";

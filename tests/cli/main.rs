@@ -9,6 +9,7 @@ mod gen;
 mod machine_output;
 mod merge;
 mod repro;
+mod select;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
