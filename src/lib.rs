@@ -93,12 +93,13 @@ pub use sim::testbench::{
 pub use spec::{
     default_amount_width, is_identifier, CarryInConvention, CarryOutConvention, Conventions,
     DivByZero, Dut, Encoding, LargeAmount, Mix, NegativeZero, OffsetCarry, OpOptions, Operation,
-    ParamValue, Ports, RandomSettings, ResultPart, Rounding, Signal, Signedness, Spec, ZeroFlag,
+    ParamValue, Ports, RandomSettings, ResultPart, Rounding, SelectSpec, Signal, Signedness, Spec,
+    UndefinedOutputs, ZeroFlag,
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,
-    FieldValueReport, LogProblems, Observed, OutOfStep, OutputReport, OutputTally, Verdict,
-    EVIDENCE_NOTE,
+    FieldValueReport, LogProblems, Observed, OperationOutputs, OutOfStep, OutputReport,
+    OutputTally, Verdict, EVIDENCE_NOTE,
 };
 pub use verdict::coverage::{
     surprise, BinFailures, ClassStatus, ClassSummary, Coverage, CoverageCounts, CoverageSummary,

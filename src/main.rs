@@ -661,6 +661,12 @@ fn field_row(role: &str, sig: Signal, name: &str, v: &arithvec::Word, spec: &Spe
         Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
     ) {
         format!("{} ({})", Value::decode(v, w, spec.encoding), spec.encoding)
+    } else if sig == Signal::Select {
+        let code = v.low_u64() as u32;
+        match spec.select.as_ref().and_then(|s| s.operation_of(code)) {
+            Some(op) => op.name().to_string(),
+            None => "not a listed code".to_string(),
+        }
     } else {
         (v.bit(0) as u8).to_string()
     };

@@ -37,6 +37,8 @@ pub struct Generator {
     pool: std::sync::Arc<[Word]>,
     /// Vectors given from outside (`arithvec import`, `gen --append`), after the random part.
     appended: std::sync::Arc<[Inputs]>,
+    /// A select unit's codes, drawn uniformly for random vectors (empty for other units).
+    codes: std::sync::Arc<[u32]>,
 }
 
 /// Settings of the random part.
@@ -63,6 +65,8 @@ impl RandomPlan {
     }
 }
 
+mod select;
+
 /// Domain separation for the random key, so a seed's stream is arithvec's own.
 const KEY_LABEL: &[u8] = b"arithvec random vectors v1";
 
@@ -70,6 +74,9 @@ impl Generator {
     /// Builds the directed set for `spec` and plans `count` random vectors from `seed`
     /// (the spec's `[random]` values unless overridden).
     pub fn new(spec: &Spec, count: Option<u64>, seed: Option<u64>) -> Generator {
+        if spec.select.is_some() {
+            return Generator::for_select(spec, count, seed);
+        }
         let mut catalogue = Catalogue::candidates(spec);
         let (directed, directed_hits) = build_directed(spec, &mut catalogue);
         let seed = seed.unwrap_or(spec.random.seed);
@@ -81,6 +88,7 @@ impl Generator {
         Generator {
             pool,
             appended: Vec::new().into(),
+            codes: std::sync::Arc::from([]),
             catalogue,
             directed,
             directed_hits,
@@ -189,6 +197,7 @@ impl Generator {
             rng,
             plan: self.random,
             pool: self.pool.clone(),
+            codes: self.codes.clone(),
         }
     }
 }
@@ -198,6 +207,7 @@ pub struct RandomStream {
     rng: ChaCha20Rng,
     plan: RandomPlan,
     pool: std::sync::Arc<[Word]>,
+    codes: std::sync::Arc<[u32]>,
 }
 
 impl RandomStream {
@@ -238,11 +248,18 @@ impl RandomStream {
             Word::ZERO
         };
         let flags = self.rng.next_u32();
+        // A select unit's code comes from the same word's upper bits, so the stream of every
+        // other unit is unchanged.
+        let select = match self.codes.len() {
+            0 => 0,
+            n => self.codes[(flags >> 8) as usize % n],
+        };
         Inputs {
             a,
             b,
             carry_in: flags & 1 == 1,
             mode: flags & 2 == 2,
+            select,
         }
     }
 }
@@ -721,6 +738,7 @@ impl Solver<'_> {
                     b: pb,
                     carry_in: self.has_cin && self.port_for(c),
                     mode: self.mode,
+                    select: 0,
                 });
             }
         }
@@ -838,6 +856,7 @@ impl Solver<'_> {
                 b: uy.xor(flip).to_word(),
                 carry_in: self.has_cin && self.port_for(c),
                 mode: self.mode,
+                select: 0,
             });
         }
         out
@@ -859,6 +878,7 @@ impl Solver<'_> {
                         b,
                         carry_in: c,
                         mode: self.mode,
+                        select: 0,
                     });
                 }
             }
@@ -1212,6 +1232,7 @@ mod tests {
                                         b: Word::from_u64(b),
                                         carry_in: c & 1 == 1 && spec.has(Signal::CarryIn),
                                         mode: c & 2 == 2 && op == Operation::AddSub,
+                                        select: 0,
                                     };
                                     cat.evaluate(&v, &mut hits);
                                     hits.for_each_bin(|b| seen[b] = true);

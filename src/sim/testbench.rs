@@ -240,6 +240,20 @@ impl<'a> Plan<'a> {
                 .field("conventions.div_by_zero"),
             );
         }
+        if options.self_check
+            && spec
+                .select
+                .as_ref()
+                .is_some_and(|s| s.undefined_outputs == crate::spec::UndefinedOutputs::Unchecked)
+        {
+            problems.push(
+                Problem::new(
+                    source.clone(),
+                    "self-check compares every output, but a select unit's outputs that the selected operation does not define are not compared; emit the testbench without self-check and judge its log with `arithvec check`, or set [conventions] undefined_outputs = \"zero\"",
+                )
+                .field("conventions.undefined_outputs"),
+            );
+        }
         if layout.stimulus.fields.is_empty() || layout.expected.fields.is_empty() {
             problems.push(
                 Problem::new(
@@ -1059,11 +1073,12 @@ fn vhdl_value(value: &ParamValue) -> String {
 }
 
 /// Operands and the result are vectors at every width (a VHDL DUT declares them as
-/// std_logic_vector even at width 1); the flags are single bits.
+/// std_logic_vector even at width 1), and so is a select unit's code; the flags are single
+/// bits.
 fn is_vector(field: &Field) -> bool {
     matches!(
         field.signal,
-        Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
+        Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder | Signal::Select
     )
 }
 

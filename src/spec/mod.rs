@@ -20,9 +20,11 @@ use crate::error::{Error, Problem, Result};
 mod conventions;
 use conventions::ConventionKey;
 mod ops;
+mod select;
 pub use ops::{
     default_amount_width, DivByZero, LargeAmount, OpOptions, ResultPart, Rounding, Signedness,
 };
+pub use select::{SelectSpec, UndefinedOutputs};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -64,6 +66,9 @@ pub enum Operation {
     Rem,
     /// Quotient and remainder of one division.
     DivRem,
+    /// Several operations behind one select port; the `[select]` table gives the code of
+    /// each (see `spec::select`).
+    Select,
 }
 
 impl Operation {
@@ -110,6 +115,7 @@ impl Operation {
             Operation::Div => "div",
             Operation::Rem => "rem",
             Operation::DivRem => "divrem",
+            Operation::Select => "select",
         }
     }
 
@@ -149,6 +155,12 @@ impl Operation {
             Operation::Div => &[A, B, Overflow, Quotient, DivByZero],
             Operation::Rem => &[A, B, Overflow, Remainder, DivByZero],
             Operation::DivRem => &[A, B, Overflow, Quotient, Remainder, DivByZero],
+            // The union of the operations a select unit can carry; `spec::select` refuses a
+            // port no carried operation has.
+            Operation::Select => &[
+                A, B, CarryIn, Select, Result, CarryOut, Overflow, Zero, Negative, Less, Equal,
+                Greater,
+            ],
         }
     }
 }
@@ -253,11 +265,13 @@ pub enum Signal {
     Remainder,
     /// Division: the divisor is zero.
     DivByZero,
+    /// Operation select code of a select unit (width `[select] width`).
+    Select,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 16] = [
+    pub const ALL: [Signal; 17] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -274,6 +288,7 @@ impl Signal {
         Signal::Quotient,
         Signal::Remainder,
         Signal::DivByZero,
+        Signal::Select,
     ];
 
     /// The key used in `[ports]`.
@@ -295,6 +310,7 @@ impl Signal {
             Signal::Quotient => "quotient",
             Signal::Remainder => "remainder",
             Signal::DivByZero => "div_by_zero",
+            Signal::Select => "select",
         }
     }
 
@@ -307,7 +323,12 @@ impl Signal {
     pub fn is_input(self) -> bool {
         matches!(
             self,
-            Signal::A | Signal::B | Signal::CarryIn | Signal::Mode | Signal::Amount
+            Signal::A
+                | Signal::B
+                | Signal::CarryIn
+                | Signal::Mode
+                | Signal::Amount
+                | Signal::Select
         )
     }
 
@@ -508,6 +529,9 @@ pub struct Spec {
     /// Options of the shift, rotate and multiply operations (None for the others).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub options: Option<OpOptions>,
+    /// The `[select]` table of a select unit (None for the others).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub select: Option<SelectSpec>,
 }
 
 impl Spec {
@@ -541,6 +565,14 @@ impl Spec {
 
     /// True when the operation subtracts in some mode (and so the borrow conventions apply).
     pub fn subtracts(&self) -> bool {
+        if let Some(select) = &self.select {
+            return select.operations().any(|op| {
+                matches!(
+                    op,
+                    Operation::Sub | Operation::Negate | Operation::Decrement
+                )
+            });
+        }
         matches!(
             self.operation,
             Operation::Sub | Operation::AddSub | Operation::Negate | Operation::Decrement
@@ -572,6 +604,7 @@ impl Spec {
                 t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
             }
         }
+        t.push_str(&self.select_toml());
         let c = &self.conventions;
         let mut conv = String::new();
         for key in ConventionKey::ALL {
@@ -604,6 +637,7 @@ impl Spec {
             conv.push_str(&format!("{} = {}\n", key.name(), q(v)));
         }
         conv.push_str(&option_conv);
+        conv.push_str(&self.select_conventions_toml());
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
             t.push_str(&conv);
@@ -655,6 +689,7 @@ impl Spec {
             random: RandomSettings::default(),
             dut: None,
             options: Spec::default_options(operation, encoding, width),
+            select: None,
         }
     }
 }
@@ -699,6 +734,7 @@ fn convention_table_keys() -> Vec<&'static str> {
         "offset_carry",
     ];
     keys.extend(ops::CONVENTION_KEYS);
+    keys.push(select::CONVENTION_KEY);
     keys
 }
 
@@ -868,6 +904,7 @@ impl<'a> Reader<'a> {
                 "conventions",
                 "random",
                 "dut",
+                "select",
                 ops::ROOT_KEYS[0],
                 ops::ROOT_KEYS[1],
             ],
@@ -893,6 +930,7 @@ impl<'a> Reader<'a> {
             &Operation::ALL
                 .into_iter()
                 .chain(Operation::EXTENDED)
+                .chain([Operation::Select])
                 .map(|o| (o.name(), o))
                 .collect::<Vec<_>>(),
         );
@@ -974,6 +1012,7 @@ impl<'a> Reader<'a> {
             random: RandomSettings::default(),
             dut: None,
             options: None,
+            select: None,
         };
         spec.options = Spec::default_options(spec.operation, spec.encoding, spec.width);
         if let Some(why) = spec.operation.refuses(spec.encoding) {
@@ -981,7 +1020,9 @@ impl<'a> Reader<'a> {
             self.problem(at, "encoding", why);
         }
         self.read_option_widths(root, &mut spec);
+        self.read_select(root, ports_table, &mut spec);
         if let Some(t) = conv_table {
+            self.read_select_conventions(t, &mut spec);
             self.read_conventions(t, &mut spec);
             self.read_option_conventions(t, &mut spec);
         }

@@ -256,6 +256,55 @@ pub struct CheckReport {
     /// The vector set's seed, when a set was given.
     #[serde(default)]
     pub seed: Option<u64>,
+    /// A select unit: per carried operation, the output ports compared on its rows (empty
+    /// for other units).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub operation_outputs: Vec<OperationOutputs>,
+}
+
+/// The output ports compared on the rows of one operation of a select unit.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct OperationOutputs {
+    /// The operation's name.
+    pub operation: String,
+    /// Its select code.
+    pub code: u32,
+    /// The DUT's output ports compared on its rows, in port order.
+    pub compared: Vec<String>,
+    /// Output ports the unit has that this operation does not define and that are not
+    /// compared on its rows.
+    pub not_compared: Vec<String>,
+}
+
+/// The per-operation output lists of a select unit (only ports some row compared).
+pub(crate) fn operation_outputs(spec: &Spec, ports: &[OutputTally]) -> Vec<OperationOutputs> {
+    let Some(select) = &spec.select else {
+        return Vec::new();
+    };
+    let zero = select.undefined_outputs == crate::spec::UndefinedOutputs::Zero;
+    select
+        .codes
+        .iter()
+        .map(|&(op, code)| {
+            let (mut compared, mut not_compared) = (Vec::new(), Vec::new());
+            for (sig, port) in spec.outputs() {
+                if !ports.iter().any(|p| p.port == port && p.compared) {
+                    continue;
+                }
+                if zero || Spec::defines(op, sig, spec.encoding) {
+                    compared.push(port.to_string());
+                } else {
+                    not_compared.push(port.to_string());
+                }
+            }
+            OperationOutputs {
+                operation: op.name().to_string(),
+                code,
+                compared,
+                not_compared,
+            }
+        })
+        .collect()
 }
 
 /// One output port's line in the headline tally.
@@ -567,10 +616,13 @@ impl Worker {
         let expected = cat.evaluate_for_coverage(&inputs, &mut self.hits);
         let mut wrong = false;
         let mut unknown = operand_unknown;
+        let model = cat.model();
         let judge = |exp: &Outputs| {
             let (mut wrong, mut unknown) = (false, false);
             for (k, &(sig, w)) in shared.fields.iter().enumerate().skip(shared.inputs) {
-                if !present(k) || !exp.is_specified(sig) {
+                // A select unit's outputs the selected operation does not define are not
+                // compared (unless the spec says the unit drives them 0).
+                if !present(k) || !exp.is_specified(sig) || !model.compares(&inputs, sig) {
                     continue;
                 }
                 if w <= 64 {
@@ -595,7 +647,7 @@ impl Worker {
             wrong = w;
             unknown = u;
             if w || u {
-                if let Some(alt) = cat.model().alternative(&expected) {
+                if let Some(alt) = model.alternative_for(&inputs, &expected) {
                     let (w2, u2) = judge(&alt);
                     if !w2 && !u2 {
                         wrong = false;
@@ -606,7 +658,14 @@ impl Worker {
         }
         let failed = wrong || unknown;
         if failed && !operand_unknown {
-            tally_ports(shared, values, row.present, &expected, &mut v.ports);
+            tally_ports(
+                shared,
+                values,
+                row.present,
+                &inputs,
+                &expected,
+                &mut v.ports,
+            );
         }
         self.coverage.record(&self.hits, failed);
         if wrong {
@@ -636,16 +695,18 @@ fn tally_ports(
     shared: &Shared,
     values: &[u64],
     present: u16,
+    inputs: &Inputs,
     expected: &Outputs,
     ports: &mut Vec<(u64, u64)>,
 ) {
+    let model = shared.generator.catalogue().model();
     let outputs = &shared.fields[shared.inputs..];
     if ports.len() < outputs.len() {
         ports.resize(outputs.len(), (0, 0));
     }
     for (j, &(sig, w)) in outputs.iter().enumerate() {
         let k = shared.inputs + j;
-        if present >> k & 1 == 0 || !expected.is_specified(sig) {
+        if present >> k & 1 == 0 || !expected.is_specified(sig) || !model.compares(inputs, sig) {
             continue;
         }
         let o = shared.observed(values, k);
@@ -1577,6 +1638,9 @@ fn describe(
     let mut outputs = Vec::new();
     for (sig, port) in spec.outputs() {
         let Some(o) = field(sig) else { continue };
+        if !cat.model().compares(inputs, sig) {
+            continue;
+        }
         let w = spec.signal_width(sig);
         let e = expected.get(sig).masked(w);
         let unknown = o.unknown.masked(w);
@@ -1748,6 +1812,7 @@ fn build_report(
         &coverage,
         options.require,
     );
+    let per_operation = operation_outputs(spec, &outputs.ports);
     let mut report = CheckReport {
         tool: "arithvec".into(),
         version: env!("CARGO_PKG_VERSION").into(),
@@ -1774,6 +1839,7 @@ fn build_report(
         outputs_narrowed: outputs.narrowed,
         verdict_reasons: reasons,
         seed: outputs.seed,
+        operation_outputs: per_operation,
         seen,
         runs: Vec::new(),
     };

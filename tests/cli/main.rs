@@ -13,6 +13,7 @@ mod machine_output;
 mod merge;
 mod repro;
 mod spec_errors;
+mod select;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
