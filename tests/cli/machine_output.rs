@@ -16,17 +16,25 @@ const MACHINE_FORMATS: [&str; 2] = ["json", "csv"];
 fn format_values(sb: &Sandbox, command: &str) -> Vec<String> {
     let help = sb.run(&[command, "--help"]);
     help.expect_code(0);
-    let Some(line) = help
-        .stdout
-        .lines()
-        .find(|l| l.trim_start().starts_with("--format"))
+    // Short help puts the values on the option's line; long help (when some option of the
+    // command has a multi-line description) on a line of their own below it.
+    let lines: Vec<&str> = help.stdout.lines().collect();
+    let Some(start) = lines
+        .iter()
+        .position(|l| l.trim_start().starts_with("--format"))
     else {
         return Vec::new();
     };
-    let values = line
-        .split("[possible values: ")
-        .nth(1)
-        .unwrap_or_else(|| panic!("no possible values on {command}'s --format line: {line}"));
+    let values = lines[start..]
+        .iter()
+        .take_while(|l| *l == &lines[start] || !l.trim_start().starts_with('-'))
+        .find_map(|l| l.split("[possible values: ").nth(1))
+        .unwrap_or_else(|| {
+            panic!(
+                "no possible values under {command}'s --format line: {}",
+                lines[start]
+            )
+        });
     values
         .trim_end_matches(']')
         .split(',')
