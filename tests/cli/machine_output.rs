@@ -175,6 +175,13 @@ fn runs_of(command: &str, format: &str) -> Vec<(Vec<String>, i32)> {
                 ]),
                 1,
             ),
+            (
+                s(&[
+                    "grade", "graded.toml", "--vectors", "graded", "--builtin", "--top-up",
+                    "--format", format,
+                ]),
+                0,
+            ),
         ],
         "prove" => vec![
             (s(&["prove", "tiny.toml", "--netlist", "right.json", "--format", format]), 0),
