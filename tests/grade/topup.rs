@@ -379,6 +379,33 @@ fn offset_zero_detector_reaches_full_testable_coverage() {
         .unwrap_or_default()
         .to_string();
     assert!(repro.starts_with("top-up vector"), "{failures}");
+    // A manifest whose top-up operands are not values of the spec is refused, naming the
+    // field; so is one whose top-up list does not add up to the set's vector count.
+    for (name, edit) in [("bad_hex", "hex"), ("bad_count", "count")] {
+        let dir = format!("vec_{name}");
+        std::fs::create_dir_all(sb.path(&dir)).unwrap();
+        for f in ["vectors.csv", "stimulus.hex", "expected.hex"] {
+            std::fs::copy(
+                sb.path(&format!("vec2/{f}")),
+                sb.path(&format!("{dir}/{f}")),
+            )
+            .unwrap();
+        }
+        let mut m = sb.json("vec2/manifest.json");
+        if edit == "hex" {
+            m["selection"]["top_up"][0]["inputs"]["a"] = "zz".into();
+        } else {
+            m["selection"]["top_up"].as_array_mut().unwrap().pop();
+        }
+        sb.write(&format!("{dir}/manifest.json"), &m.to_string());
+        let run = sb.run(&["check", &spec, "--log", "results.csv", "--vectors", &dir]);
+        run.expect_code(2);
+        run.expect_stderr(if edit == "hex" {
+            "selection.top_up[0].inputs.a"
+        } else {
+            "top-up vectors but the set holds"
+        });
+    }
 }
 
 /// Appends an array multiplier of `x` by `y` (rows over `y`'s bits) to `b` and returns the
