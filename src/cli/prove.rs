@@ -42,10 +42,10 @@ pub struct ProveArgs {
     /// A reference netlist (Yosys JSON) to prove against instead of the built-in structure,
     /// for operations and encodings the built-ins do not cover. It is simulated against the
     /// golden model first, like the built-in one.
-    #[arg(long, value_name = "F.json")]
+    #[arg(long, value_name = "FILE")]
     reference: Option<PathBuf>,
     /// Module of --reference (default: the same module name as the netlist's).
-    #[arg(long, requires = "reference")]
+    #[arg(long, value_name = "NAME", requires = "reference")]
     reference_module: Option<String>,
     /// Conflicts the SAT solver may spend before the answer is "unknown".
     #[arg(long, value_name = "N", default_value_t = 1_000_000,

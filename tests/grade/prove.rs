@@ -240,7 +240,9 @@ fn a_multiplier_beyond_the_budget_ends_unknown_within_it() {
     run.expect_code(3);
     let r = run.json();
     assert_eq!(r["verdict"]["status"], "unknown", "{r}");
-    assert!(r["conflicts"].as_u64().unwrap() <= 3001, "{r}");
+    // The search stops within a few conflicts of the budget (see `gates::sat`).
+    let spent = r["conflicts"].as_u64().unwrap();
+    assert!((3000..=3300).contains(&spent), "{r}");
     assert_eq!(r["conflict_budget"], 3000);
     // The array multiplier reference agreed with the golden model before it was used.
     assert!(r["reference_checked_vectors"].as_u64().unwrap() > 1000);

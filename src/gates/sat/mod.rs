@@ -3,7 +3,9 @@
 //!
 //! The solver is batsat (a pure-Rust CDCL solver; DEVELOPERS.md says why). Every solve runs
 //! under a conflict budget: a call that spends it answers [`Answer::Unknown`] with the count
-//! spent, never a guess.
+//! spent, never a guess. The budget counts learnt clauses (one per conflict, except conflicts
+//! that learn only a unit), so the solver's own conflict count, which is what is reported,
+//! can run a few past it before the search stops.
 //!
 //! Tseitin transformation (common practice, no source): each gate output gets a fresh
 //! variable and clauses that force it to equal the gate's function of its input literals;

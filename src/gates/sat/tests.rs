@@ -162,7 +162,11 @@ fn budget_gives_unknown_on_a_multiplier() {
     }
     let solved = equivalence_miter(&m, &s, &["y".to_string()], 2000);
     assert_eq!(solved.answer, Answer::Unknown);
-    assert!(solved.conflicts <= 2001, "spent {}", solved.conflicts);
+    assert!(
+        (2000..=2200).contains(&solved.conflicts),
+        "spent {}",
+        solved.conflicts
+    );
     // A small multiplier is proved within the same kind of budget.
     let small = equivalence_miter(
         &multiplier(3, false),
