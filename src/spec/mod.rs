@@ -21,6 +21,8 @@ mod conventions;
 use conventions::ConventionKey;
 mod ops;
 pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
+mod ports;
+pub use ports::{check_ranges, parse_port_text, Bundle, PortRange};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -913,6 +915,13 @@ impl<'a> Reader<'a> {
             self.problem(at, "encoding", why);
         }
         self.read_option_widths(root, &mut spec);
+        if let Some(t) = ports_table {
+            // Bit ranges (`s[15:0]`) are checked once every role's width is known.
+            for (signal, message) in check_ranges(&spec.ports, |s| spec.signal_width(s)) {
+                let at = Self::get(t, signal.key()).map_or(0..0, |(_, v)| v.span());
+                self.problem(at, &format!("ports.{}", signal.key()), message);
+            }
+        }
         if let Some(t) = conv_table {
             self.read_conventions(t, &mut spec);
             self.read_option_conventions(t, &mut spec);
@@ -957,18 +966,25 @@ impl<'a> Reader<'a> {
                 self.problem(k.span(), &key, msg);
                 continue;
             }
-            if !is_identifier(&name) {
+            let port = match parse_port_text(&name) {
+                Ok((port, _)) => port,
+                Err(msg) => {
+                    self.problem(at..at, &key, msg);
+                    continue;
+                }
+            };
+            if !is_identifier(port) {
                 self.problem(
                     at..at,
                     &key,
                     format!(
-                        "\"{name}\" is not a usable port name (letters, digits and '_', not \
-                         starting with a digit)"
+                        "\"{port}\" is not a usable port name (letters, digits and '_', not \
+                         starting with a digit; a bit range is written NAME[MSB:LSB] or NAME[BIT])"
                     ),
                 );
                 continue;
             }
-            if name == "index" || name == "classes" {
+            if port == "index" || port == "classes" {
                 self.problem(
                     at..at,
                     &key,
