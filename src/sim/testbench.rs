@@ -357,6 +357,101 @@ impl<'a> Plan<'a> {
         lines
     }
 
+    /// The DUT's port connections, in log-column order: (DUT port, testbench signal). A
+    /// bundled port (roles mapped to bit ranges of it, see `spec::ports`) is connected once,
+    /// to its own bundle signal, where its first role would be.
+    fn connections(&self) -> Vec<(String, String)> {
+        let mut list: Vec<(String, String)> = Vec::new();
+        for f in self.all_fields() {
+            match self.spec.ports.range(f.signal) {
+                Some(r) => {
+                    if !list.iter().any(|(p, _)| *p == r.port) {
+                        list.push((r.port.clone(), bundle_signal(&r.port)));
+                    }
+                }
+                None => list.push((f.name.clone(), signal_name(f))),
+            }
+        }
+        list
+    }
+
+    /// Verilog declarations of the bundle signals and the assignments between them and the
+    /// roles' signals; an input bundle's gap bits are driven 0.
+    fn verilog_bundles(&self, out: &mut String) {
+        let bundles = self.spec.ports.bundles();
+        if bundles.is_empty() {
+            return;
+        }
+        out.push_str("  // Ports that bundle several roles (bit ranges in the spec's [ports]).\n");
+        for b in bundles {
+            let wire = bundle_signal(&b.port);
+            let _ = writeln!(
+                out,
+                "  wire {}{wire};  // port {}",
+                verilog_range(b.width),
+                b.port
+            );
+            let select = |msb: u32, lsb: u32| {
+                if b.width == 1 {
+                    String::new()
+                } else if msb == lsb {
+                    format!("[{lsb}]")
+                } else {
+                    format!("[{msb}:{lsb}]")
+                }
+            };
+            let mut next = 0;
+            for &(signal, msb, lsb) in &b.members {
+                let role = format!("s_{}", signal.key());
+                if b.input {
+                    if lsb > next {
+                        let _ = writeln!(
+                            out,
+                            "  assign {wire}{} = {}'b0;",
+                            select(lsb - 1, next),
+                            lsb - next
+                        );
+                    }
+                    let _ = writeln!(out, "  assign {wire}{} = {role};", select(msb, lsb));
+                } else {
+                    let _ = writeln!(out, "  assign {role} = {wire}{};", select(msb, lsb));
+                }
+                next = msb + 1;
+            }
+        }
+    }
+
+    /// VHDL concurrent assignments between the bundle signals and the roles' signals.
+    fn vhdl_bundle_assignments(&self, out: &mut String) {
+        for b in self.spec.ports.bundles() {
+            let sig = bundle_signal(&b.port);
+            let _ = writeln!(out, "  -- Port {} bundles several roles.", b.port);
+            let mut next = 0;
+            for &(signal, msb, lsb) in &b.members {
+                let role = format!("s_{}", signal.key());
+                let slice = if is_vector_signal(signal) {
+                    format!("({msb} downto {lsb})")
+                } else {
+                    format!("({lsb})")
+                };
+                if b.input {
+                    if lsb > next {
+                        let _ = writeln!(
+                            out,
+                            "  {sig}({} downto {next}) <= (others => '0');",
+                            lsb - 1
+                        );
+                    }
+                    let _ = writeln!(out, "  {sig}{slice} <= {role};");
+                } else {
+                    let _ = writeln!(out, "  {role} <= {sig}{slice};");
+                }
+                next = msb + 1;
+            }
+        }
+        out.push('\n');
+    }
+
     fn verilog(&self) -> String {
         let mut out = String::new();
         let check = self.options.self_check;
@@ -486,6 +581,7 @@ impl<'a> Plan<'a> {
                 f.name
             );
         }
+        self.verilog_bundles(&mut out);
         if check {
             out.push_str("  // The outputs packed like a word of the expected file.\n");
             let packed: Vec<String> = exp.fields.iter().map(signal_name).collect();
@@ -510,8 +606,9 @@ impl<'a> Plan<'a> {
         }
         out.push_str("v_dut (\n");
         let ports: Vec<String> = self
-            .all_fields()
-            .map(|f| format!("    .{}({})", f.name, signal_name(f)))
+            .connections()
+            .into_iter()
+            .map(|(port, signal)| format!("    .{port}({signal})"))
             .collect();
         out.push_str(&ports.join(",\n"));
         out.push_str("\n  );\n\n");
@@ -749,6 +846,15 @@ impl<'a> Plan<'a> {
                 );
             }
         }
+        for b in self.spec.ports.bundles() {
+            let _ = writeln!(
+                out,
+                "  signal {} : std_logic_vector({} downto 0);  -- bundled port {}",
+                bundle_signal(&b.port),
+                b.width - 1,
+                b.port
+            );
+        }
         out.push_str(VHDL_HELPERS);
         out.push_str("begin\n");
         let _ = writeln!(out, "  v_dut : entity work.{}", self.dut.module);
@@ -762,10 +868,12 @@ impl<'a> Plan<'a> {
             let _ = writeln!(out, "    generic map (\n{}\n    )", params.join(",\n"));
         }
         let ports: Vec<String> = self
-            .all_fields()
-            .map(|f| format!("      {} => {}", f.name, signal_name(f)))
+            .connections()
+            .into_iter()
+            .map(|(port, signal)| format!("      {port} => {signal}"))
             .collect();
         let _ = writeln!(out, "    port map (\n{}\n    );\n", ports.join(",\n"));
+        self.vhdl_bundle_assignments(&mut out);
 
         out.push_str("  p_apply : process\n");
         out.push_str(
@@ -1076,8 +1184,12 @@ fn vhdl_value(value: &ParamValue) -> String {
 /// std_logic_vector even at width 1), and so is a select unit's code; the flags are single
 /// bits.
 fn is_vector(field: &Field) -> bool {
+    is_vector_signal(field.signal)
+}
+
+fn is_vector_signal(signal: Signal) -> bool {
     matches!(
-        field.signal,
+        signal,
         Signal::A
             | Signal::B
             | Signal::Result
@@ -1085,6 +1197,12 @@ fn is_vector(field: &Field) -> bool {
             | Signal::Remainder
             | Signal::Select
     )
+}
+
+/// The testbench's signal for a bundled DUT port (`b_` and the port name: the testbench's
+/// other names start with `s_`, `v_`, `c_` or `p_`, so it cannot clash).
+fn bundle_signal(port: &str) -> String {
+    format!("b_{port}")
 }
 
 /// Checks the names that appear in the emitted text: the DUT module, its parameters and its
@@ -1106,7 +1224,14 @@ fn check_names(
     for name in dut.parameters.keys() {
         check(name, format!("dut.parameters.{name}"), problems);
     }
-    for (signal, port) in spec.inputs().into_iter().chain(spec.outputs()) {
+    let mut hdl_ports: Vec<(Signal, &str)> = Vec::new();
+    for (signal, _) in spec.inputs().into_iter().chain(spec.outputs()) {
+        let port = spec.ports.hdl_port(signal).unwrap_or_default();
+        if !hdl_ports.iter().any(|(_, p)| *p == port) {
+            hdl_ports.push((signal, port));
+        }
+    }
+    for &(signal, port) in &hdl_ports {
         check(port, format!("ports.{}", signal.key()), problems);
     }
     let fold = |s: &str| match hdl {
@@ -1128,7 +1253,7 @@ fn check_names(
     if hdl == Hdl::Vhdl {
         // VHDL names are case-insensitive: ports or generics that differ only in case are one.
         let mut seen: BTreeMap<String, String> = BTreeMap::new();
-        for (signal, port) in spec.inputs().into_iter().chain(spec.outputs()) {
+        for &(signal, port) in &hdl_ports {
             let key = format!("ports.{}", signal.key());
             if let Some(other) = seen.insert(fold(port), key.clone()) {
                 problems.push(

@@ -25,6 +25,8 @@ pub use ops::{
     default_amount_width, DivByZero, LargeAmount, OpOptions, ResultPart, Rounding, Signedness,
 };
 pub use select::{SelectSpec, UndefinedOutputs};
+mod ports;
+pub use ports::{check_ranges, parse_port_text, Bundle, PortRange};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -1021,6 +1023,13 @@ impl<'a> Reader<'a> {
         }
         self.read_option_widths(root, &mut spec);
         self.read_select(root, ports_table, &mut spec);
+        if let Some(t) = ports_table {
+            // Bit ranges (`s[15:0]`) are checked once every role's width is known.
+            for (signal, message) in check_ranges(&spec.ports, |s| spec.signal_width(s)) {
+                let at = Self::get(t, signal.key()).map_or(0..0, |(_, v)| v.span());
+                self.problem(at, &format!("ports.{}", signal.key()), message);
+            }
+        }
         if let Some(t) = conv_table {
             self.read_select_conventions(t, &mut spec);
             self.read_conventions(t, &mut spec);
@@ -1040,18 +1049,27 @@ impl<'a> Reader<'a> {
     /// Reports a port name that no testbench or vector file could use; true when it is usable.
     fn check_port_name(&mut self, name: &str, at: usize, signal: Signal) -> bool {
         let key = format!("ports.{}", signal.key());
-        if !is_identifier(name) {
+        // A role may be a bit range of a port (`s[15:0]`, `s[16]`): the name is the part
+        // before the range.
+        let port = match parse_port_text(name) {
+            Ok((port, _)) => port,
+            Err(msg) => {
+                self.problem(at..at, &key, msg);
+                return false;
+            }
+        };
+        if !is_identifier(port) {
             self.problem(
                 at..at,
                 &key,
                 format!(
-                    "\"{name}\" is not a usable port name (letters, digits and '_', not \
-                     starting with a digit)"
+                    "\"{port}\" is not a usable port name (letters, digits and '_', not \
+                     starting with a digit; a bit range is written NAME[MSB:LSB] or NAME[BIT])"
                 ),
             );
             return false;
         }
-        if name == "index" || name == "classes" {
+        if port == "index" || port == "classes" {
             self.problem(
                 at..at,
                 &key,

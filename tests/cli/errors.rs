@@ -235,3 +235,22 @@ fn issue9_require_is_validated_the_same_way_everywhere() {
             .expect_stderr("--require");
     }
 }
+
+#[test]
+fn issue15_bad_port_ranges_name_line_and_key() {
+    let sb = crate::util::Sandbox::new();
+    let spec = sb.write(
+        "bundle.toml",
+        "name = \"bundle\"\noperation = \"add\"\nwidth = 8\nencoding = \"twos\"\n\n[ports]\n\
+         a = \"ab[15:8]\"\nb = \"ab[8:1]\"\ncarry_in = \"cin[0:1]\"\nresult = \"s[6:0]\"\n\
+         carry_out = \"ab[0]\"\noverflow = \"s\"\n",
+    );
+    sb.run(&["gen", &spec, "--out", "v"])
+        .expect_code(2)
+        .expect_stderr("bundle.toml:7: ports.a: ab[15:8] overlaps ab[8:1] of b (bit 8)")
+        .expect_stderr("bundle.toml:9: ports.carry_in: \"cin[0:1]\": the range runs from MSB down to LSB, so write cin[1:0]")
+        .expect_stderr("bundle.toml:10: ports.result: \"s[6:0]\" is 7 bits wide, but result is 8 bits wide")
+        .expect_stderr("ports.carry_out: port ab holds both inputs and outputs")
+        .expect_stderr("bundle.toml:12: ports.overflow: port s is used whole by overflow and in part by result");
+    assert!(!sb.path("v").exists());
+}

@@ -16,6 +16,7 @@ mod bugs;
 mod flow;
 mod reference;
 mod select;
+mod shapes;
 mod spec;
 #[path = "../support/mod.rs"]
 mod support;
