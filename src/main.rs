@@ -45,8 +45,9 @@ enum Command {
     Gen {
         /// The operation spec (TOML).
         spec: PathBuf,
-        /// Output directory (created if missing).
-        #[arg(long, short)]
+        /// Output directory (created if missing). `-o` is a file in every other command, so
+        /// here it is only a hidden alias kept for old scripts.
+        #[arg(long, short_alias = 'o')]
         out: PathBuf,
         /// Number of random vectors (overrides [random] count).
         #[arg(long)]
@@ -69,7 +70,7 @@ enum Command {
         /// The operation spec (TOML).
         spec: PathBuf,
         /// Output format.
-        #[arg(long, value_enum, default_value_t = Format::Table)]
+        #[arg(long, value_enum, default_value_t = Format::Text)]
         format: Format,
         /// One row per bin instead of per class.
         #[arg(long)]
@@ -136,7 +137,9 @@ enum Command {
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
 enum Format {
-    Table,
+    // A table for people (`table` is the old spelling, still accepted as a hidden alias).
+    #[value(alias = "table")]
+    Text,
     Json,
 }
 

@@ -9,6 +9,7 @@ mod errors;
 mod gen;
 mod machine_output;
 mod merge;
+mod options;
 mod repro;
 mod spec_errors;
 #[path = "../support/mod.rs"]
