@@ -383,13 +383,13 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
     }
     if bins {
         let mut rows: Vec<[String; 3]> = Vec::new();
-        for b in 0..cat.bin_count() {
+        for (b, why) in why_unreachable.iter().enumerate() {
             rows.push([
                 cat.bin_id(b),
                 if cat.is_reachable(b) {
                     "reachable".into()
                 } else {
-                    format!("unreachable: {}", why_unreachable[b].words())
+                    format!("unreachable: {}", why.words())
                 },
                 generator.directed_hits(b).to_string(),
             ]);

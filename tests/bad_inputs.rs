@@ -37,13 +37,16 @@ seed = 5
 module = "feed_add"
 "#;
 
+/// An edit of an existing file: its path and a function of its text.
+type Edit = (&'static str, fn(String) -> String);
+
 /// One bad input: what to break, the command, the exit code and a phrase of the first line.
 struct Case {
     what: &'static str,
     /// Files to (over)write before the run: (path, contents).
     files: &'static [(&'static str, &'static str)],
     /// An edit of an existing file: (path, function of its text).
-    edit: Option<(&'static str, fn(String) -> String)>,
+    edit: Option<Edit>,
     args: &'static [&'static str],
     code: i32,
     needle: &'static str,
@@ -67,7 +70,7 @@ const fn case(
 
 const fn edited(
     what: &'static str,
-    edit: (&'static str, fn(String) -> String),
+    edit: Edit,
     args: &'static [&'static str],
     needle: &'static str,
 ) -> Case {

@@ -10,6 +10,7 @@ mod gen;
 mod machine_output;
 mod merge;
 mod options;
+mod plain_words;
 mod repro;
 mod spec_errors;
 #[path = "../support/mod.rs"]
