@@ -195,14 +195,14 @@ fn fixture() -> Sandbox {
     sb
 }
 
-/// A first line as the table shows it: hashes (runs of 16 or more hex digits) replaced by
+/// A first line as the table shows it: hashes (runs of 32 or more hex digits) replaced by
 /// `<hash>`, so the table does not change with every report format change, and cut at 110
 /// characters.
 fn shown(line: &str) -> String {
     let mut out = String::new();
     let mut run = String::new();
     let flush = |run: &mut String, out: &mut String| {
-        if run.len() >= 16 {
+        if run.len() >= 32 {
             out.push_str("<hash>");
         } else {
             out.push_str(run);
