@@ -59,6 +59,24 @@ enum Command {
         /// unsharded files.
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
+        /// Also read this CSV of operand values (as for `import`) and put its vectors after
+        /// the random ones; the manifest records the file and its SHA-256.
+        #[arg(long, value_name = "FILE", conflicts_with = "shard")]
+        append: Option<PathBuf>,
+        #[command(flatten)]
+        threads: cli::threads::ThreadsArg,
+    },
+    /// Turn a CSV of operand values into a vector set with golden outputs and classes.
+    #[command(after_help = cli::import::IMPORT_HELP)]
+    Import {
+        /// The operation spec (TOML).
+        spec: PathBuf,
+        /// The CSV: a header naming the input ports, then one vector a line.
+        #[arg(long, value_name = "FILE")]
+        csv: PathBuf,
+        /// Output directory (created if missing).
+        #[arg(long, short)]
+        out: PathBuf,
         #[command(flatten)]
         threads: cli::threads::ThreadsArg,
     },
@@ -117,7 +135,7 @@ enum Command {
         /// current directory).
         #[arg(long, short)]
         output: Option<PathBuf>,
-        /// Settle time per vector, in time units (ns for VHDL).
+        /// Settle time per vector, in nanoseconds.
         #[arg(long, default_value_t = 1)]
         settle: u32,
         /// Also load expected.hex and count mismatches in the testbench itself.
@@ -133,6 +151,9 @@ enum Command {
     /// Grade the single stuck-at fault coverage of a vector set on a gate netlist.
     #[command(after_help = cli::grade::GRADE_HELP)]
     Grade(cli::grade::GradeArgs),
+    /// Prove a gate netlist equivalent to the spec on every output it names (SAT).
+    #[command(after_help = cli::prove::PROVE_HELP)]
+    Prove(cli::prove::ProveArgs),
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -187,8 +208,27 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             count,
             seed,
             shard,
+            append: Some(csv),
+            threads,
+        } => {
+            let _ = shard; // clap refuses --shard with --append
+            cli::import::gen_append(&spec, &dir, count, seed, &csv, threads, quiet)
+        }
+        Command::Gen {
+            spec,
+            out: dir,
+            count,
+            seed,
+            shard,
+            append: None,
             threads,
         } => gen(&spec, &dir, count, seed, shard.as_deref(), threads, quiet),
+        Command::Import {
+            spec,
+            csv,
+            out: dir,
+            threads,
+        } => cli::import::import(&spec, &csv, &dir, threads, quiet),
         Command::Classes { spec, format, bins } => classes(&spec, format, bins),
         Command::Repro {
             spec,
@@ -209,6 +249,7 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
         Command::Check(args) => cli::check::check(args, quiet),
         Command::Merge(args) => cli::check::merge(args, quiet),
         Command::Grade(args) => cli::grade::grade(args, quiet),
+        Command::Prove(args) => cli::prove::prove(args, quiet),
     }
 }
 
@@ -618,8 +659,17 @@ fn testbench(
 
 fn field_row(role: &str, sig: Signal, name: &str, v: &arithvec::Word, spec: &Spec) -> [String; 5] {
     let w = spec.signal_width(sig);
-    let value = if matches!(sig, Signal::A | Signal::B | Signal::Result) {
+    let value = if matches!(
+        sig,
+        Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
+    ) {
         format!("{} ({})", Value::decode(v, w, spec.encoding), spec.encoding)
+    } else if sig == Signal::Select {
+        let code = v.low_u64() as u32;
+        match spec.select.as_ref().and_then(|s| s.operation_of(code)) {
+            Some(op) => op.name().to_string(),
+            None => "not a listed code".to_string(),
+        }
     } else {
         (v.bit(0) as u8).to_string()
     };

@@ -20,7 +20,11 @@ use crate::error::{Error, Problem, Result};
 mod conventions;
 use conventions::ConventionKey;
 mod ops;
-pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
+mod select;
+pub use ops::{
+    default_amount_width, DivByZero, LargeAmount, OpOptions, ResultPart, Rounding, Signedness,
+};
+pub use select::{SelectSpec, UndefinedOutputs};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -56,6 +60,15 @@ pub enum Operation {
     Ror,
     /// `a * b`, an R-bit result (default R = 2N).
     Mul,
+    /// `a / b`: quotient, with div_by_zero and overflow flags.
+    Div,
+    /// `a % b` (the remainder of the same division): remainder, div_by_zero, overflow.
+    Rem,
+    /// Quotient and remainder of one division.
+    DivRem,
+    /// Several operations behind one select port; the `[select]` table gives the code of
+    /// each (see `spec::select`).
+    Select,
 }
 
 impl Operation {
@@ -71,13 +84,16 @@ impl Operation {
     ];
 
     /// The shift, rotate and multiply operations (models in `arith::ops`).
-    pub const EXTENDED: [Operation; 6] = [
+    pub const EXTENDED: [Operation; 9] = [
         Operation::Shl,
         Operation::Shr,
         Operation::Sra,
         Operation::Rol,
         Operation::Ror,
         Operation::Mul,
+        Operation::Div,
+        Operation::Rem,
+        Operation::DivRem,
     ];
 
     /// The spec-file spelling.
@@ -96,6 +112,10 @@ impl Operation {
             Operation::Rol => "rol",
             Operation::Ror => "ror",
             Operation::Mul => "mul",
+            Operation::Div => "div",
+            Operation::Rem => "rem",
+            Operation::DivRem => "divrem",
+            Operation::Select => "select",
         }
     }
 
@@ -108,6 +128,9 @@ impl Operation {
                 | Operation::AddSub
                 | Operation::Compare
                 | Operation::Mul
+                | Operation::Div
+                | Operation::Rem
+                | Operation::DivRem
         )
     }
 
@@ -129,6 +152,15 @@ impl Operation {
                 &[A, Amount, Result, CarryOut, Zero, Negative]
             }
             Operation::Mul => &[A, B, Result, Overflow, Zero, Negative],
+            Operation::Div => &[A, B, Overflow, Quotient, DivByZero],
+            Operation::Rem => &[A, B, Overflow, Remainder, DivByZero],
+            Operation::DivRem => &[A, B, Overflow, Quotient, Remainder, DivByZero],
+            // The union of the operations a select unit can carry; `spec::select` refuses a
+            // port no carried operation has.
+            Operation::Select => &[
+                A, B, CarryIn, Select, Result, CarryOut, Overflow, Zero, Negative, Less, Equal,
+                Greater,
+            ],
         }
     }
 }
@@ -227,11 +259,19 @@ pub enum Signal {
     Greater,
     /// Shift amount (width `amount_width`).
     Amount,
+    /// Division: the N-bit quotient.
+    Quotient,
+    /// Division: the N-bit remainder.
+    Remainder,
+    /// Division: the divisor is zero.
+    DivByZero,
+    /// Operation select code of a select unit (width `[select] width`).
+    Select,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 13] = [
+    pub const ALL: [Signal; 17] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -245,6 +285,10 @@ impl Signal {
         Signal::Equal,
         Signal::Greater,
         Signal::Amount,
+        Signal::Quotient,
+        Signal::Remainder,
+        Signal::DivByZero,
+        Signal::Select,
     ];
 
     /// The key used in `[ports]`.
@@ -263,6 +307,10 @@ impl Signal {
             Signal::Equal => "equal",
             Signal::Greater => "greater",
             Signal::Amount => "amount",
+            Signal::Quotient => "quotient",
+            Signal::Remainder => "remainder",
+            Signal::DivByZero => "div_by_zero",
+            Signal::Select => "select",
         }
     }
 
@@ -275,14 +323,19 @@ impl Signal {
     pub fn is_input(self) -> bool {
         matches!(
             self,
-            Signal::A | Signal::B | Signal::CarryIn | Signal::Mode | Signal::Amount
+            Signal::A
+                | Signal::B
+                | Signal::CarryIn
+                | Signal::Mode
+                | Signal::Amount
+                | Signal::Select
         )
     }
 
     /// The signal's width in bits for a unit of operand width `width`.
     pub fn width(self, width: u32) -> u32 {
         match self {
-            Signal::A | Signal::B | Signal::Result => width,
+            Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder => width,
             _ => 1,
         }
     }
@@ -476,6 +529,9 @@ pub struct Spec {
     /// Options of the shift, rotate and multiply operations (None for the others).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub options: Option<OpOptions>,
+    /// The `[select]` table of a select unit (None for the others).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub select: Option<SelectSpec>,
 }
 
 impl Spec {
@@ -509,6 +565,14 @@ impl Spec {
 
     /// True when the operation subtracts in some mode (and so the borrow conventions apply).
     pub fn subtracts(&self) -> bool {
+        if let Some(select) = &self.select {
+            return select.operations().any(|op| {
+                matches!(
+                    op,
+                    Operation::Sub | Operation::Negate | Operation::Decrement
+                )
+            });
+        }
         matches!(
             self.operation,
             Operation::Sub | Operation::AddSub | Operation::Negate | Operation::Decrement
@@ -540,6 +604,7 @@ impl Spec {
                 t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
             }
         }
+        t.push_str(&self.select_toml());
         let c = &self.conventions;
         let mut conv = String::new();
         for key in ConventionKey::ALL {
@@ -572,6 +637,7 @@ impl Spec {
             conv.push_str(&format!("{} = {}\n", key.name(), q(v)));
         }
         conv.push_str(&option_conv);
+        conv.push_str(&self.select_conventions_toml());
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
             t.push_str(&conv);
@@ -623,6 +689,7 @@ impl Spec {
             random: RandomSettings::default(),
             dut: None,
             options: Spec::default_options(operation, encoding, width),
+            select: None,
         }
     }
 }
@@ -643,6 +710,11 @@ fn signal_allowed(
              datapath has no plain carry-in); remove it",
             encoding.name()
         )),
+        (Signal::Overflow, Encoding::Unsigned) if operation.is_division() => Err(
+            "an unsigned division never overflows (only the two's-complement min / -1 does); \
+             remove it"
+                .to_string(),
+        ),
         (Signal::CarryOut, Encoding::SignMagnitude) => Err(
             "a sign-magnitude unit has no carry-out of its own; use the overflow port for \
              magnitude overflow"
@@ -662,6 +734,7 @@ fn convention_table_keys() -> Vec<&'static str> {
         "offset_carry",
     ];
     keys.extend(ops::CONVENTION_KEYS);
+    keys.push(select::CONVENTION_KEY);
     keys
 }
 
@@ -831,6 +904,7 @@ impl<'a> Reader<'a> {
                 "conventions",
                 "random",
                 "dut",
+                "select",
                 ops::ROOT_KEYS[0],
                 ops::ROOT_KEYS[1],
             ],
@@ -856,6 +930,7 @@ impl<'a> Reader<'a> {
             &Operation::ALL
                 .into_iter()
                 .chain(Operation::EXTENDED)
+                .chain([Operation::Select])
                 .map(|o| (o.name(), o))
                 .collect::<Vec<_>>(),
         );
@@ -937,6 +1012,7 @@ impl<'a> Reader<'a> {
             random: RandomSettings::default(),
             dut: None,
             options: None,
+            select: None,
         };
         spec.options = Spec::default_options(spec.operation, spec.encoding, spec.width);
         if let Some(why) = spec.operation.refuses(spec.encoding) {
@@ -944,7 +1020,9 @@ impl<'a> Reader<'a> {
             self.problem(at, "encoding", why);
         }
         self.read_option_widths(root, &mut spec);
+        self.read_select(root, ports_table, &mut spec);
         if let Some(t) = conv_table {
+            self.read_select_conventions(t, &mut spec);
             self.read_conventions(t, &mut spec);
             self.read_option_conventions(t, &mut spec);
         }

@@ -5,14 +5,17 @@
 mod check;
 mod classes;
 mod classes_bins;
+mod divide;
 mod errors;
 mod gen;
+mod import;
 mod machine_output;
 mod merge;
 mod options;
 mod plain_words;
 mod repro;
 mod spec_errors;
+mod select;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;

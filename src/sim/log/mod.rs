@@ -720,8 +720,11 @@ fn parse_header(
             Target::Value {
                 slot: slot(signal),
                 width: spec.signal_width(signal),
-                encoding: matches!(signal, Signal::A | Signal::B | Signal::Result)
-                    .then_some(spec.encoding),
+                encoding: matches!(
+                    signal,
+                    Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
+                )
+                .then_some(spec.encoding),
             }
         } else if i == 0 && name.bytes().all(|b| b.is_ascii_digit()) {
             // A data line where the header should be: one problem says it all.
