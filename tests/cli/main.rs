@@ -14,8 +14,8 @@ mod merge;
 mod options;
 mod plain_words;
 mod repro;
-mod spec_errors;
 mod select;
+mod spec_errors;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;

@@ -68,6 +68,7 @@ impl Generator {
         let pool = operand_pool(&catalogue).into();
         Generator {
             pool,
+            appended: Vec::new().into(),
             codes: codes.into(),
             catalogue,
             directed,
