@@ -74,8 +74,8 @@ enum Command {
         /// The CSV: a header naming the input ports, then one vector a line.
         #[arg(long, value_name = "FILE")]
         csv: PathBuf,
-        /// Output directory (created if missing).
-        #[arg(long, short)]
+        /// Output directory (created if missing); `-o` is only a hidden alias, as for gen.
+        #[arg(long, short_alias = 'o')]
         out: PathBuf,
         #[command(flatten)]
         threads: cli::threads::ThreadsArg,

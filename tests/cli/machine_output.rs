@@ -16,13 +16,21 @@ const MACHINE_FORMATS: [&str; 2] = ["json", "csv"];
 fn format_values(sb: &Sandbox, command: &str) -> Vec<String> {
     let help = sb.run(&[command, "--help"]);
     help.expect_code(0);
-    let Some(line) = help
-        .stdout
-        .lines()
-        .find(|l| l.trim_start().starts_with("--format"))
+    // Clap prints the values on the option's line, or below it when the command's help has
+    // the long layout (an option with a multi-paragraph description).
+    let lines: Vec<&str> = help.stdout.lines().collect();
+    let Some(at) = lines
+        .iter()
+        .position(|l| l.trim_start().starts_with("--format"))
     else {
         return Vec::new();
     };
+    let line = lines[at..]
+        .iter()
+        .take(8)
+        .find(|l| l.contains("[possible values: "))
+        .copied()
+        .unwrap_or(lines[at]);
     let values = line
         .split("[possible values: ")
         .nth(1)

@@ -27,7 +27,20 @@ fn issue9_option_names_mean_one_thing_in_every_command() {
     for command in &commands {
         let help = sb.run(&[command, "--help"]);
         help.expect_code(0);
+        // In clap's long layout an option's description and values follow on the next
+        // lines; join each option with them.
+        let mut options: Vec<String> = Vec::new();
         for line in help.stdout.lines().map(str::trim_start) {
+            if line.starts_with('-') {
+                options.push(line.to_string());
+            } else if let Some(last) = options.last_mut() {
+                if !line.is_empty() {
+                    last.push(' ');
+                    last.push_str(line);
+                }
+            }
+        }
+        for line in options.iter().map(String::as_str) {
             let describe = || format!("{command} --help: {line}");
             if line.starts_with("-o, ") {
                 assert!(line.starts_with("-o, --output "), "{}", describe());
