@@ -16,6 +16,8 @@
 //! `ARITHVEC_BENCH_LINES=N` runs one size only (for instruction counting under callgrind),
 //! `ARITHVEC_BENCH_THREADS=T` sets the thread count and `ARITHVEC_BENCH_BIG=1` adds a run of
 //! 100,000,000 lines, to show the peak RSS staying flat (the log is made on the fly: no disk).
+//! It also prints what verifying a 1M-vector set against its manifest costs as a share of
+//! checking 1M lines (`ARITHVEC_BENCH_ONLY=manifest` prints only that).
 
 use std::io::{BufRead, BufReader, Read};
 use std::time::Instant;
@@ -151,6 +153,11 @@ fn main() {
     let mut spec = Spec::with_defaults(Operation::Sub, Encoding::Twos, 32);
     spec.name = "bench_sub32".into();
     let generator = Generator::new(&spec, Some(0), None);
+    // ARITHVEC_BENCH_ONLY=manifest runs only the manifest-verification share.
+    if std::env::var("ARITHVEC_BENCH_ONLY").as_deref() == Ok("manifest") {
+        manifest_share(&spec, 0);
+        return;
+    }
     let mut one_m = 0.0;
     // ARITHVEC_BENCH_LINES=N runs one size only (for instruction counting under callgrind).
     let single = std::env::var("ARITHVEC_BENCH_LINES").ok();
@@ -214,7 +221,65 @@ fn main() {
     );
     println!("arithvec / bare scan: {:.2}", one_m / bare);
     println!("goal: >= 5 M lines/s on a 2-core machine");
+    manifest_share(&spec, threads);
     python_peer(&spec, &generator, threads);
+}
+
+/// What verifying a vector set against its manifest (sizes and SHA-256 of every file, one
+/// streaming pass: `verify_files`, which `check --vectors` runs beside the check) costs next
+/// to checking a log of the same 1,000,000 vectors. Issue 9's goal: at most 10%.
+fn manifest_share(spec: &Spec, threads: usize) {
+    const VECTORS: u64 = 1_000_000;
+    let directed = Generator::new(spec, Some(0), None).directed().len() as u64;
+    let generator = Generator::new(spec, Some(VECTORS - directed), Some(3));
+    let dir = std::path::Path::new(env!("CARGO_TARGET_TMPDIR"))
+        .join(format!("arithvec-check-bench-set-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    let manifest = arithvec::write_vector_set(
+        &generator,
+        spec,
+        &dir,
+        arithvec::WriteOptions {
+            shard: None,
+            progress: None,
+            threads,
+        },
+    )
+    .expect("write the 1M-vector set");
+    assert_eq!(generator.total(), VECTORS);
+    let best = |f: &mut dyn FnMut()| {
+        (0..3)
+            .map(|_| {
+                let t = Instant::now();
+                f();
+                t.elapsed().as_secs_f64()
+            })
+            .fold(f64::INFINITY, f64::min)
+    };
+    let verify = best(&mut || {
+        arithvec::verify_files(&dir, &manifest).expect("the set matches its manifest");
+    });
+    let check = best(&mut || {
+        let source = BufReader::with_capacity(1 << 20, LogSource::new(spec, VECTORS));
+        let mut reader = LogReader::new(source, "bench.csv", spec, Radix::Hex).expect("header");
+        let options = CheckOptions {
+            threads,
+            ..CheckOptions::default()
+        };
+        let mut checker =
+            Checker::new(spec, &generator, None, reader.columns(), options).expect("checker");
+        let bad = checker.check_log(&mut reader, false, |_| {}).expect("read");
+        assert!(bad.is_empty());
+        assert_eq!(checker.finish().vectors, VECTORS);
+    });
+    let bytes: u64 = manifest.files.iter().map(|f| f.bytes).sum();
+    println!(
+        "manifest verification of a 1M-vector set ({:.1} MB): {verify:.3} s; check of 1M \
+         lines: {check:.3} s; verification / check = {:.1}% (goal <= 10%)",
+        bytes as f64 / 1e6,
+        100.0 * verify / check
+    );
+    let _ = std::fs::remove_dir_all(&dir);
 }
 
 /// Checks a 1,000,000-line log file with arithvec and reads it with `benches/csv_peer.py`,

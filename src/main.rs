@@ -45,8 +45,9 @@ enum Command {
     Gen {
         /// The operation spec (TOML).
         spec: PathBuf,
-        /// Output directory (created if missing).
-        #[arg(long, short)]
+        /// Output directory (created if missing). `-o` is a file in every other command, so
+        /// here it is only a hidden alias kept for old scripts.
+        #[arg(long, short_alias = 'o')]
         out: PathBuf,
         /// Number of random vectors (overrides [random] count).
         #[arg(long)]
@@ -73,8 +74,8 @@ enum Command {
         /// The CSV: a header naming the input ports, then one vector a line.
         #[arg(long, value_name = "FILE")]
         csv: PathBuf,
-        /// Output directory (created if missing).
-        #[arg(long, short)]
+        /// Output directory (created if missing); `-o` is only a hidden alias, as for gen.
+        #[arg(long, short_alias = 'o')]
         out: PathBuf,
         #[command(flatten)]
         threads: cli::threads::ThreadsArg,
@@ -87,7 +88,7 @@ enum Command {
         /// The operation spec (TOML).
         spec: PathBuf,
         /// Output format.
-        #[arg(long, value_enum, default_value_t = Format::Table)]
+        #[arg(long, value_enum, default_value_t = Format::Text)]
         format: Format,
         /// One row per bin instead of per class.
         #[arg(long)]
@@ -157,7 +158,9 @@ enum Command {
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
 enum Format {
-    Table,
+    // A table for people (`table` is the old spelling, still accepted as a hidden alias).
+    #[value(alias = "table")]
+    Text,
     Json,
 }
 
@@ -421,13 +424,13 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
     }
     if bins {
         let mut rows: Vec<[String; 3]> = Vec::new();
-        for b in 0..cat.bin_count() {
+        for (b, why) in why_unreachable.iter().enumerate() {
             rows.push([
                 cat.bin_id(b),
                 if cat.is_reachable(b) {
                     "reachable".into()
                 } else {
-                    format!("unreachable: {}", why_unreachable[b].words())
+                    format!("unreachable: {}", why.words())
                 },
                 generator.directed_hits(b).to_string(),
             ]);

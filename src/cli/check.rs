@@ -46,8 +46,9 @@ pub struct CheckArgs {
     /// and operands by index for logs without operand columns).
     #[arg(long)]
     vectors: Option<PathBuf>,
-    /// Radix of the log's values.
-    #[arg(long, default_value = "hex", value_parser = parse_radix)]
+    /// Radix of the log's values: hex, bin or dec (a leading - in dec is a signed value in
+    /// the spec's encoding).
+    #[arg(long, default_value = "hex", value_parser = parse_radix, value_name = "hex|bin|dec")]
     radix: Radix,
     /// Count and list unparseable lines instead of failing with exit 2.
     #[arg(long)]

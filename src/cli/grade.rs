@@ -27,7 +27,9 @@ verification plan.";
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
 pub enum GradeFormat {
-    Table,
+    // A table for people (`table` is the old spelling, still accepted as a hidden alias).
+    #[value(alias = "table")]
+    Text,
     Json,
 }
 
@@ -64,7 +66,7 @@ pub struct GradeArgs {
     #[arg(long)]
     module: Option<String>,
     /// Output format.
-    #[arg(long, value_enum, default_value_t = GradeFormat::Table)]
+    #[arg(long, value_enum, default_value_t = GradeFormat::Text)]
     format: GradeFormat,
     /// Fault coverage required, in percent (exit 3 when short).
     #[arg(long, value_name = "PCT", value_parser = parse_percent)]

@@ -25,7 +25,9 @@ outputs, not the synthesis flow.";
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
 pub enum ProveFormat {
-    Table,
+    // A table for people (`table` is the old spelling, still accepted as a hidden alias).
+    #[value(alias = "table")]
+    Text,
     Json,
 }
 
@@ -51,11 +53,12 @@ pub struct ProveArgs {
     #[arg(long, value_name = "N", default_value_t = 1_000_000,
           value_parser = clap::value_parser!(u64).range(1..))]
     conflicts: u64,
-    /// Write a counterexample here as a one-vector set (for `testbench` and `check`).
+    /// Write a counterexample into this directory as a one-vector set (for `testbench` and
+    /// `check`).
     #[arg(long, value_name = "DIR")]
     out: Option<PathBuf>,
     /// Output format.
-    #[arg(long, value_enum, default_value_t = ProveFormat::Table)]
+    #[arg(long, value_enum, default_value_t = ProveFormat::Text)]
     format: ProveFormat,
 }
 

@@ -928,10 +928,10 @@ fn failure_block(f: &Failure) -> Markup {
                                         (e) br; (marked_bits(g, &o.differing_bits))
                                     } @else if bad { (e) " / " (marked_bits(g, &o.differing_bits)) }
                                 } @else if !o.differing_bits.is_empty() {
-                                    "differing bits: " (format!("{:?}", o.differing_bits))
+                                    "differing bits: " (crate::verdict::report::list_numbers(&o.differing_bits))
                                 }
                                 @if !o.unknown_bits.is_empty() {
-                                    br; "unknown (x/z) bits: " (format!("{:?}", o.unknown_bits))
+                                    br; "unknown (x/z) bits: " (crate::verdict::report::list_numbers(&o.unknown_bits))
                                 }
                             }
                         }
@@ -996,13 +996,13 @@ fn log_problems_section(r: &CheckReport) -> Markup {
         } @else {
             ul {
                 @if p.missing > 0 {
-                    li { strong { "\u{2716} missing: " } (p.missing) " vectors of the set are not in the log; first: " span.mono { (format!("{:?}", p.missing_first)) } }
+                    li { strong { "\u{2716} missing: " } (p.missing) " vectors of the set are not in the log; first: " span.mono { (crate::verdict::report::list_numbers(&p.missing_first)) } }
                 }
                 @if p.duplicate_count > 0 {
-                    li { strong { "\u{2716} duplicates: " } (p.duplicate_count) " repeated indices (index, line): " span.mono { (format!("{:?}", p.duplicates)) } }
+                    li { strong { "\u{2716} duplicates: " } (p.duplicate_count) " repeated indices: " span.mono { (crate::verdict::report::list_lines(&p.duplicates)) } }
                 }
                 @if !p.out_of_range.is_empty() {
-                    li { strong { "\u{2716} out of range: " } "indices outside the vector set (index, line): " span.mono { (format!("{:?}", p.out_of_range)) } }
+                    li { strong { "\u{2716} out of range: " } "indices outside the vector set: " span.mono { (crate::verdict::report::list_lines(&p.out_of_range)) } }
                 }
                 @if let Some(o) = &p.out_of_step {
                     li { strong { "\u{2716} out of step: " } (o.count) " rows carry operands that are not those of their index, starting at index " (o.first_index) " (log line " (o.first_line) ")" }

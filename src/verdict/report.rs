@@ -178,8 +178,8 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
                 }
             } else if !o.differing_bits.is_empty() {
                 s.push_str(&format!(
-                    "             differing bits: {:?}\n",
-                    o.differing_bits
+                    "             differing bits: {}\n",
+                    list_numbers(&o.differing_bits)
                 ));
             }
             if !o.got_as.is_empty() {
@@ -196,20 +196,25 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
     let more = r.failed + r.unknown - r.failures.len() as u64;
     if more > 0 {
         s.push_str(&format!(
-            "... and {more} more failing vectors (raise --max-failures to see them)\n"
+            "... and {more} more failing {} (raise --max-failures to see them)\n",
+            plural(more, "vector", "vectors")
         ));
     }
     let p = &r.log_problems;
     if p.missing > 0 {
         s.push_str(&format!(
-            "\nlog is missing {} vectors of the set; first: {:?}\n",
-            p.missing, p.missing_first
+            "\nlog is missing {} {} of the set; first: {}\n",
+            p.missing,
+            plural(p.missing, "vector", "vectors"),
+            list_numbers(&p.missing_first)
         ));
     }
     if p.duplicate_count > 0 {
         s.push_str(&format!(
-            "log repeats {} indices (index, line): {:?}\n",
-            p.duplicate_count, p.duplicates
+            "log repeats {} {}: {}\n",
+            p.duplicate_count,
+            plural(p.duplicate_count, "index", "indices"),
+            list_lines(&p.duplicates)
         ));
     }
     if !p.overlapping.is_empty() {
@@ -225,8 +230,8 @@ pub fn render_text(r: &CheckReport, rows: ClassRows) -> String {
     }
     if !p.out_of_range.is_empty() {
         s.push_str(&format!(
-            "log has indices outside the vector set (index, line): {:?}\n",
-            p.out_of_range
+            "log has indices outside the vector set: {}\n",
+            list_lines(&p.out_of_range)
         ));
     }
     if let Some(o) = &p.out_of_step {
@@ -491,4 +496,31 @@ pub fn render_junit_timed(r: &CheckReport, elapsed: Option<std::time::Duration>)
     }
     report.add_test_suite(suite);
     report.to_string().unwrap_or_default()
+}
+
+/// `word` for one, `words` otherwise.
+pub(crate) fn plural(count: u64, one: &'static str, many: &'static str) -> &'static str {
+    if count == 1 {
+        one
+    } else {
+        many
+    }
+}
+
+/// Numbers for people: `99, 100, 101` (not Rust's `[99, 100, 101]`).
+pub(crate) fn list_numbers<T: std::fmt::Display>(items: &[T]) -> String {
+    items
+        .iter()
+        .map(|i| i.to_string())
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// (index, log line) pairs for people: `48 (line 102), 49 (line 103)`.
+pub(crate) fn list_lines(items: &[(u64, usize)]) -> String {
+    items
+        .iter()
+        .map(|(index, line)| format!("{index} (line {line})"))
+        .collect::<Vec<_>>()
+        .join(", ")
 }

@@ -11,6 +11,8 @@ mod gen;
 mod import;
 mod machine_output;
 mod merge;
+mod options;
+mod plain_words;
 mod repro;
 mod select;
 mod spec_errors;

@@ -68,8 +68,8 @@ impl Generator {
         let pool = operand_pool(&catalogue).into();
         Generator {
             pool,
-            codes: codes.into(),
             appended: Vec::new().into(),
+            codes: codes.into(),
             catalogue,
             directed,
             directed_hits,
