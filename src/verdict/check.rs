@@ -508,7 +508,7 @@ struct Staged {
     /// The log gave the index (else it is the row's position, set on admission).
     given: bool,
     /// Bit k: field k of [`Shared::fields`] was in the log.
-    present: u16,
+    present: u32,
 }
 
 /// Rows handed to a worker together, in log order.
@@ -694,7 +694,7 @@ impl Worker {
 fn tally_ports(
     shared: &Shared,
     values: &[u64],
-    present: u16,
+    present: u32,
     inputs: &Inputs,
     expected: &Outputs,
     ports: &mut Vec<(u64, u64)>,
@@ -849,12 +849,12 @@ impl Worker {
 /// Copies the values of the spec's fields from a log row into `values` (bits then unknown
 /// mask, [`Shared::limbs`] limbs each); returns the presence mask.
 #[inline]
-fn stage_fields(shared: &Shared, row: &LogRow, values: &mut Vec<u64>) -> u16 {
+fn stage_fields(shared: &Shared, row: &LogRow, values: &mut Vec<u64>) -> u32 {
     let l = shared.limbs;
     let start = values.len();
     values.resize(start + shared.row_stride(), 0);
     let staged = &mut values[start..];
-    let mut present = 0u16;
+    let mut present = 0u32;
     for (k, &(sig, _)) in shared.fields.iter().enumerate() {
         if let Some(f) = row.get(sig) {
             present |= 1 << k;
@@ -1211,7 +1211,7 @@ impl<'g> Checker<'g> {
         };
         let shared = Arc::clone(&self.shared);
         let l = shared.limbs;
-        let mut present = 0u16;
+        let mut present = 0u32;
         for (k, &(sig, _)) in shared.fields.iter().enumerate() {
             match field(sig) {
                 Some(o) => {
@@ -1436,7 +1436,7 @@ impl<'g> Checker<'g> {
         Some(index)
     }
 
-    fn stage(&mut self, line: usize, index: u64, present: u16) {
+    fn stage(&mut self, line: usize, index: u64, present: u32) {
         self.batch.rows.push(Staged {
             line,
             index,

@@ -170,7 +170,7 @@ pub struct LogRow {
     /// The `index` column's value, or None when the log has no `index` column.
     pub index: Option<u64>,
     values: [FieldValue; SLOTS],
-    present: u16,
+    present: u32,
 }
 
 impl Default for LogRow {
@@ -263,7 +263,7 @@ pub(crate) struct LineFormat {
     columns: Vec<Column>,
     /// The columns as the hot path needs them, in the same order.
     plain: Vec<PlainColumn>,
-    present: u16,
+    present: u32,
     has_index: bool,
 }
 
@@ -679,7 +679,7 @@ fn parse_header(
     let comma = header.contains(&b',');
     let mut problems = Vec::new();
     let mut columns: Vec<Column> = Vec::new();
-    let mut present = 0u16;
+    let mut present = 0u32;
     let mut has_index = false;
     let port_list = || {
         Signal::ALL
@@ -816,6 +816,9 @@ fn parse_header(
 fn slot(signal: Signal) -> usize {
     signal as usize
 }
+
+// The `present` masks hold one bit per signal.
+const _: () = assert!(Signal::ALL.len() <= u32::BITS as usize);
 
 fn is_blank(b: u8) -> bool {
     b == b' ' || b == b'\t'
