@@ -439,7 +439,15 @@ impl Model {
                 | Operation::Mul
                 | Operation::Div
                 | Operation::Rem
-                | Operation::DivRem,
+                | Operation::DivRem
+                | Operation::Abs
+                | Operation::Min
+                | Operation::Max
+                | Operation::And
+                | Operation::Or
+                | Operation::Xor
+                | Operation::Not
+                | Operation::Pass,
             ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,
             (Encoding::Ones, Operation::Negate) => return None,

@@ -21,6 +21,7 @@ use crate::spec::{Encoding, Operation, Signal, Spec};
 mod divide;
 mod ext;
 mod program;
+mod simple;
 mod templates;
 pub(crate) use divide::case_labels;
 pub(crate) use ext::{booth_digits, booth_operand, ExtKind};
