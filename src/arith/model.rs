@@ -12,6 +12,7 @@ use crate::arith::encoding::{
     decode, encode, is_negative_zero, negative_zero, representable, sign_bit,
 };
 use crate::arith::ops::OpUnit;
+use crate::arith::select::SelectModel;
 use crate::arith::word::Word;
 use crate::spec::{
     CarryInConvention, CarryOutConvention, Encoding, NegativeZero, OffsetCarry, Operation, Signal,
@@ -29,6 +30,8 @@ pub struct Inputs {
     pub carry_in: bool,
     /// addsub select: false = add, true = subtract.
     pub mode: bool,
+    /// A select unit's operation code (0 for other units).
+    pub select: u32,
 }
 
 /// The outputs of one vector. Fields the unit lacks are still computed where defined.
@@ -68,6 +71,7 @@ impl Inputs {
             Signal::CarryIn => Word::from_u64(self.carry_in as u64),
             Signal::Mode => Word::from_u64(self.mode as u64),
             Signal::Amount => self.b,
+            Signal::Select => Word::from_u64(self.select as u64),
             _ => Word::ZERO,
         }
     }
@@ -80,6 +84,7 @@ impl Inputs {
             Signal::CarryIn => self.carry_in = value.bit(0),
             Signal::Mode => self.mode = value.bit(0),
             Signal::Amount => self.b = value,
+            Signal::Select => self.select = value.low_u64() as u32,
             _ => {}
         }
     }
@@ -324,6 +329,8 @@ pub struct Model {
     views: [Option<RippleView>; 2],
     /// The shift, rotate or multiply unit, for those operations.
     unit: Option<OpUnit>,
+    /// A select unit's per-operation models (see `arith::select`).
+    pub(crate) select: Option<std::sync::Arc<SelectModel>>,
 }
 
 impl Model {
@@ -354,6 +361,7 @@ impl Model {
                 negative_zero: spec.conventions.negative_zero,
                 zero_flag: spec.conventions.zero_flag,
             }),
+            select: SelectModel::new(spec).map(std::sync::Arc::new),
         };
         model.views = [model.find_ripple_view(false), model.find_ripple_view(true)];
         model
@@ -447,7 +455,8 @@ impl Model {
                 | Operation::Or
                 | Operation::Xor
                 | Operation::Not
-                | Operation::Pass,
+                | Operation::Pass
+                | Operation::Select,
             ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,
             (Encoding::Ones, Operation::Negate) => return None,
@@ -484,6 +493,9 @@ impl Model {
 
     /// The outputs a correct unit gives for `inputs`.
     pub fn evaluate(&self, inputs: &Inputs) -> Outputs {
+        if let Some(select) = &self.select {
+            return select.evaluate(inputs);
+        }
         if self.uses_fast_path() {
             self.outputs_of(&self.trace::<u128>(inputs))
         } else if self.needs_huge() {
@@ -554,6 +566,9 @@ impl Model {
 
     /// Runs the model and keeps the datapath trace.
     pub(crate) fn trace<B: Bits>(&self, inputs: &Inputs) -> Trace<B> {
+        if let Some(select) = &self.select {
+            return select.trace(inputs);
+        }
         if let Some(unit) = &self.unit {
             let r = unit.evaluate(B::from_word(&inputs.a), B::from_word(&inputs.b));
             return Trace {
@@ -814,6 +829,7 @@ mod tests {
             b: Word::from_u64(b),
             carry_in: cin,
             mode,
+            select: 0,
         })
     }
 

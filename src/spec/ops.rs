@@ -180,6 +180,7 @@ impl Spec {
     /// amount of a shifter have their own widths).
     pub fn signal_width(&self, signal: Signal) -> u32 {
         match (signal, &self.options) {
+            (Signal::Select, _) => self.select.as_ref().map_or(1, |s| s.width),
             (Signal::Amount, Some(o)) => o.amount_width.unwrap_or(1),
             (Signal::Result, Some(o)) if o.result_width.is_some() => {
                 o.result_width.unwrap_or(self.width)

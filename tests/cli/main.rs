@@ -4,14 +4,19 @@
 
 mod check;
 mod classes;
+mod classes_bins;
 mod divide;
 mod errors;
 mod gen;
+mod import;
 mod machine_output;
 mod merge;
 mod repro;
+mod spec_errors;
+mod select;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
 mod util;
 mod verdict;
+mod xz_digits;

@@ -138,6 +138,9 @@ pub struct FieldValue {
     pub unknown: Word,
     /// True when any digit was high impedance (`z`, `Z`, `?`), so reports can say "undriven".
     pub high_z: bool,
+    /// The unknown bits that were printed as high impedance (a subset of `unknown`); the
+    /// others were x. Per digit: every bit of a `z`/`Z`/`?` digit is here.
+    pub z: Word,
 }
 
 impl FieldValue {
@@ -147,6 +150,7 @@ impl FieldValue {
             bits,
             unknown: Word::ZERO,
             high_z: false,
+            z: Word::ZERO,
         }
     }
 
