@@ -1078,7 +1078,12 @@ fn vhdl_value(value: &ParamValue) -> String {
 fn is_vector(field: &Field) -> bool {
     matches!(
         field.signal,
-        Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder | Signal::Select
+        Signal::A
+            | Signal::B
+            | Signal::Result
+            | Signal::Quotient
+            | Signal::Remainder
+            | Signal::Select
     )
 }
 

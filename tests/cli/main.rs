@@ -12,8 +12,8 @@ mod import;
 mod machine_output;
 mod merge;
 mod repro;
-mod spec_errors;
 mod select;
+mod spec_errors;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;

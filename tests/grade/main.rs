@@ -10,8 +10,8 @@ mod ctest;
 mod errors;
 mod icarus;
 mod prove;
-mod report_words;
 mod reference;
+mod report_words;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
