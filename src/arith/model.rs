@@ -448,6 +448,14 @@ impl Model {
                 | Operation::Div
                 | Operation::Rem
                 | Operation::DivRem
+                | Operation::Abs
+                | Operation::Min
+                | Operation::Max
+                | Operation::And
+                | Operation::Or
+                | Operation::Xor
+                | Operation::Not
+                | Operation::Pass
                 | Operation::Select,
             ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,

@@ -79,6 +79,8 @@ impl OpUnit {
             self.shift(a, s)
         } else if self.operation.is_division() {
             self.divide(a, b.mask(w))
+        } else if self.operation.is_logic() || self.operation.is_select_value() {
+            self.bitwise_or_select(a, b.mask(w))
         } else {
             self.mul(a, b.mask(w))
         }
@@ -192,6 +194,47 @@ impl OpUnit {
             overflow,
             zero: self.zero_of(result, r),
             negative: sign_bit(result, r, enc),
+            remainder: B::zero(),
+            div_by_zero: false,
+            dont_care: false,
+        }
+    }
+
+    /// abs, min, max and the logic operations. abs is |a| encoded (-0 gives +0); where -min
+    /// does not fit (twos, offset) the result is a's own pattern, the wrapped value, with
+    /// overflow. min and max return the operand's pattern, a on a tie of values (so +0 against
+    /// -0 returns a). The logic operations work on the patterns.
+    fn bitwise_or_select<B: Bits>(&self, a: B, b: B) -> OpResult<B> {
+        let (w, enc) = (self.width, self.encoding);
+        let va = decode(a, w, enc);
+        let vb = decode(b, w, enc);
+        let mask = B::low_mask(w);
+        let (truth, result, overflow) = match self.operation {
+            Operation::Abs => {
+                let m = if va.is_negative() { va.neg() } else { va };
+                if representable(m, w, enc) {
+                    (m, crate::arith::encoding::encode(m, w, enc), false)
+                } else {
+                    (m, a, true)
+                }
+            }
+            Operation::Min => (va, if vb.slt(&va) { b } else { a }, false),
+            Operation::Max => (va, if va.slt(&vb) { b } else { a }, false),
+            Operation::And => (B::zero(), a.and(b), false),
+            Operation::Or => (B::zero(), a.or(b), false),
+            Operation::Xor => (B::zero(), a.xor(b), false),
+            Operation::Not => (B::zero(), a.not().and(mask), false),
+            _ => (B::zero(), a, false),
+        };
+        OpResult {
+            va,
+            vb,
+            truth,
+            result,
+            carry_out: false,
+            overflow,
+            zero: self.zero_of(result, w),
+            negative: sign_bit(result, w, enc),
             remainder: B::zero(),
             div_by_zero: false,
             dont_care: false,

@@ -76,6 +76,7 @@ impl SelectModel {
                 remainder: B::zero(),
                 path: Path::None,
                 outputs_flags: Flags::default(),
+                remainder: B::zero(),
             },
         }
     }

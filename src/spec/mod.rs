@@ -68,6 +68,22 @@ pub enum Operation {
     Rem,
     /// Quotient and remainder of one division.
     DivRem,
+    /// |a|, with overflow where -min does not fit.
+    Abs,
+    /// The operand of smaller value (a on a tie).
+    Min,
+    /// The operand of larger value (a on a tie).
+    Max,
+    /// Bitwise a AND b.
+    And,
+    /// Bitwise a OR b.
+    Or,
+    /// Bitwise a XOR b.
+    Xor,
+    /// Bitwise NOT a.
+    Not,
+    /// a unchanged.
+    Pass,
     /// Several operations behind one select port; the `[select]` table gives the code of
     /// each (see `spec::select`).
     Select,
@@ -86,7 +102,7 @@ impl Operation {
     ];
 
     /// The shift, rotate and multiply operations (models in `arith::ops`).
-    pub const EXTENDED: [Operation; 9] = [
+    pub const EXTENDED: [Operation; 17] = [
         Operation::Shl,
         Operation::Shr,
         Operation::Sra,
@@ -96,6 +112,14 @@ impl Operation {
         Operation::Div,
         Operation::Rem,
         Operation::DivRem,
+        Operation::Abs,
+        Operation::Min,
+        Operation::Max,
+        Operation::And,
+        Operation::Or,
+        Operation::Xor,
+        Operation::Not,
+        Operation::Pass,
     ];
 
     /// The spec-file spelling.
@@ -117,6 +141,14 @@ impl Operation {
             Operation::Div => "div",
             Operation::Rem => "rem",
             Operation::DivRem => "divrem",
+            Operation::Abs => "abs",
+            Operation::Min => "min",
+            Operation::Max => "max",
+            Operation::And => "and",
+            Operation::Or => "or",
+            Operation::Xor => "xor",
+            Operation::Not => "not",
+            Operation::Pass => "pass",
             Operation::Select => "select",
         }
     }
@@ -133,6 +165,11 @@ impl Operation {
                 | Operation::Div
                 | Operation::Rem
                 | Operation::DivRem
+                | Operation::Min
+                | Operation::Max
+                | Operation::And
+                | Operation::Or
+                | Operation::Xor
         )
     }
 
@@ -157,6 +194,10 @@ impl Operation {
             Operation::Div => &[A, B, Overflow, Quotient, DivByZero],
             Operation::Rem => &[A, B, Overflow, Remainder, DivByZero],
             Operation::DivRem => &[A, B, Overflow, Quotient, Remainder, DivByZero],
+            Operation::Abs => &[A, Result, Overflow],
+            Operation::Min | Operation::Max => &[A, B, Result],
+            Operation::And | Operation::Or | Operation::Xor => &[A, B, Result, Zero, Negative],
+            Operation::Not | Operation::Pass => &[A, Result, Zero, Negative],
             // The union of the operations a select unit can carry; `spec::select` refuses a
             // port no carried operation has.
             Operation::Select => &[
@@ -717,6 +758,14 @@ fn signal_allowed(
              remove it"
                 .to_string(),
         ),
+        (Signal::Overflow, Encoding::Ones | Encoding::SignMagnitude)
+            if operation == Operation::Abs =>
+        {
+            Err(format!(
+                "the abs of a {} value never overflows (-min is max); remove it",
+                encoding.name()
+            ))
+        }
         (Signal::CarryOut, Encoding::SignMagnitude) => Err(
             "a sign-magnitude unit has no carry-out of its own; use the overflow port for \
              magnitude overflow"

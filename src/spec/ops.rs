@@ -118,14 +118,31 @@ impl Operation {
         matches!(self, Operation::Div | Operation::Rem | Operation::DivRem)
     }
 
+    /// True for and, or, xor, not and pass (bit patterns in, a bit pattern out).
+    pub fn is_logic(self) -> bool {
+        matches!(
+            self,
+            Operation::And | Operation::Or | Operation::Xor | Operation::Not | Operation::Pass
+        )
+    }
+
+    /// True for abs, min and max.
+    pub fn is_select_value(self) -> bool {
+        matches!(self, Operation::Abs | Operation::Min | Operation::Max)
+    }
+
     /// True for the operations whose model lives in `arith::ops` (shifts, rotates, mul,
-    /// division).
+    /// division, abs/min/max and the logic operations).
     pub fn is_extended(self) -> bool {
-        self.is_shift() || self == Operation::Mul || self.is_division()
+        self.is_shift()
+            || self == Operation::Mul
+            || self.is_division()
+            || self.is_logic()
+            || self.is_select_value()
     }
 
     /// Why `encoding` makes no sense for this operation, if it does not.
-    pub(super) fn refuses(self, encoding: Encoding) -> Option<String> {
+    pub(crate) fn refuses(self, encoding: Encoding) -> Option<String> {
         match self {
             Operation::Sra if encoding != Encoding::Twos => Some(format!(
                 "sra fills with copies of the two's-complement sign bit and is defined for \
@@ -143,6 +160,9 @@ impl Operation {
                     encoding.name()
                 ))
             }
+            Operation::Abs if encoding == Encoding::Unsigned => Some(
+                "abs of an unsigned value is the value itself; use operation \"pass\"".to_string(),
+            ),
             op if op.is_division() && !matches!(encoding, Encoding::Unsigned | Encoding::Twos) => {
                 Some(format!(
                     "{} is defined for encodings unsigned and twos (got \"{}\")",
@@ -490,6 +510,22 @@ impl Reader<'_> {
                     .field("conventions.negative_zero"),
                 );
             }
+        }
+        if (spec.operation.is_logic() || spec.operation.is_select_value())
+            && spec.conventions.negative_zero != super::NegativeZero::Hardware
+        {
+            self.problems.push(
+                super::Problem::new(
+                    self.file,
+                    format!(
+                        "negative_zero has no effect on {}: its result is an operand's pattern \
+                         (or, for abs, the magnitude's +0); remove it",
+                        spec.operation.name()
+                    ),
+                )
+                .at_line(1)
+                .field("conventions.negative_zero"),
+            );
         }
         if spec.operation.is_shift() && !spec.has(Signal::Amount) {
             self.problems.push(

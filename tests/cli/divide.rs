@@ -132,3 +132,65 @@ fn dont_care_leaves_only_the_quotient_and_remainder_of_a_zero_divisor_unchecked(
     sb.run(&["testbench", &spec, "--vectors", "vec", "-o", "tb.v"])
         .expect_code(0);
 }
+
+/// abs, min, max and the logic operations: encodings and ports that make no sense are refused
+/// at their line; a perfect log of a logic unit passes with full coverage.
+#[test]
+fn abs_min_max_and_logic_units() {
+    let sb = Sandbox::new();
+    let unit = |op: &str, enc: &str, ports: &str| {
+        format!(
+            "name = \"sluice_{op}\"\noperation = \"{op}\"\nwidth = 8\nencoding = \"{enc}\"\n\n\
+             [ports]\n{ports}\n"
+        )
+    };
+    let spec = sb.write(
+        "abs.toml",
+        &unit("abs", "unsigned", "a = \"a\"\nresult = \"y\""),
+    );
+    sb.run(&["classes", &spec])
+        .expect_code(2)
+        .expect_stderr("abs.toml:4: encoding")
+        .expect_stderr("pass");
+    let spec = sb.write(
+        "abs_sm.toml",
+        &unit(
+            "abs",
+            "signmag",
+            "a = \"a\"\nresult = \"y\"\noverflow = \"v\"",
+        ),
+    );
+    sb.run(&["classes", &spec])
+        .expect_code(2)
+        .expect_stderr("abs_sm.toml:9: ports.overflow");
+    let spec = sb.write(
+        "not_b.toml",
+        &unit("not", "twos", "a = \"a\"\nb = \"b\"\nresult = \"y\""),
+    );
+    sb.run(&["classes", &spec])
+        .expect_code(2)
+        .expect_stderr("not_b.toml:8: ports.b");
+    for (op, enc, ports) in [
+        (
+            "xor",
+            "ones",
+            "a = \"a\"\nb = \"b\"\nresult = \"y\"\nzero = \"z\"\nnegative = \"n\"",
+        ),
+        ("max", "offset", "a = \"a\"\nb = \"b\"\nresult = \"y\""),
+        ("abs", "twos", "a = \"a\"\nresult = \"y\"\noverflow = \"v\""),
+    ] {
+        let spec = sb.write(&format!("{op}.toml"), &unit(op, enc, ports));
+        let dir = format!("vec_{op}");
+        sb.gen(&spec, &dir, &[]);
+        let csv = VectorCsv::read(&sb, &dir);
+        let log = sb.write(&format!("{op}.csv"), &csv.perfect_log().csv());
+        let (run, report) = sb.check(&spec, &log, &["--vectors", &dir, "--require", "100"], 0);
+        run.expect_stdout("PASS");
+        assert_eq!(report["coverage"]["percent"], 100.0, "{op}");
+        let mut bad = csv.perfect_log();
+        let y = bad.cell(0, "y").clone();
+        *bad.cell(0, "y") = crate::util::flip_hex_bit(&y, 7);
+        let log = sb.write(&format!("{op}_bad.csv"), &bad.csv());
+        sb.check(&spec, &log, &["--vectors", &dir], 1);
+    }
+}

@@ -38,6 +38,13 @@ pub(crate) enum ExtKind {
     /// Division: restoring step at quotient bit i: bin 3i subtract, 3i + 1 restore,
     /// 3i + 2 exact.
     DivStep,
+    /// Binary logic: (a[i], b[i]) at each bit, bin 4i + 2a[i] + b[i].
+    BitPairs,
+    /// min, max: the order cases of [`super::simple::order_labels`], with the special codes
+    /// (min, max, +0, -0) they compare.
+    ValueOrder(Vec<Word>),
+    /// abs: the operand cases of [`super::simple::abs_labels`], with their codes.
+    AbsCases(Vec<Word>),
 }
 
 /// Labels of the overflow-boundary bins.
@@ -153,52 +160,63 @@ pub(crate) fn boundary_bin<B: Bits>(unit: &OpUnit, truth: B) -> Option<u32> {
     }
 }
 
+/// The result classes of an N-bit result (the adders' own, minus the datapath ones).
+fn result_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>) {
+    let w = spec.width;
+    let bits = |f: &dyn Fn(u32) -> String| (0..w).map(f).collect::<Vec<_>>();
+    out.push((
+        "result.zero_from_nonzero".into(),
+        "the result's value is zero although an operand is not".into(),
+        Kind::ResultZeroFromNonzero,
+        one_bin(),
+    ));
+    let mut seen: Vec<Word> = Vec::new();
+    for s in [Special::Max, Special::Min, Special::NegativeZero] {
+        if let Some(code) = s.code(model) {
+            if seen.contains(&code) {
+                continue;
+            }
+            seen.push(code);
+            out.push((
+                format!("result.{}", s.id()),
+                format!("the result {}", s.describe()),
+                Kind::ResultPattern(s, code),
+                one_bin(),
+            ));
+        }
+    }
+    out.push((
+        "result.bits".into(),
+        "every result bit seen at 0 and at 1".into(),
+        Kind::ResultBits,
+        (0..w)
+            .flat_map(|i| [format!("bit{i}=0"), format!("bit{i}=1")])
+            .collect(),
+    ));
+    if spec.has(Signal::Zero) {
+        out.push((
+            "result.walking_one".into(),
+            "the result has exactly one 1 bit, at each position (each input of the zero \
+             flag's detector alone at 1)"
+                .into(),
+            Kind::ResultWalkingOne,
+            bits(&|i| format!("bit{i}")),
+        ));
+    }
+}
+
 /// Adds the classes of an extended operation after the operand classes.
 pub(super) fn ext_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>) {
     let Some(unit) = model.unit() else { return };
     let w = spec.width;
     let op = spec.operation;
-    let bits = |f: &dyn Fn(u32) -> String| (0..w).map(f).collect::<Vec<_>>();
+    if op.is_logic() || op.is_select_value() {
+        result_templates(model, spec, out);
+        super::simple::simple_templates(model, spec, out);
+        return;
+    }
     if op.is_shift() {
-        out.push((
-            "result.zero_from_nonzero".into(),
-            "the result's value is zero although an operand is not".into(),
-            Kind::ResultZeroFromNonzero,
-            one_bin(),
-        ));
-        let mut seen: Vec<Word> = Vec::new();
-        for s in [Special::Max, Special::Min, Special::NegativeZero] {
-            if let Some(code) = s.code(model) {
-                if seen.contains(&code) {
-                    continue;
-                }
-                seen.push(code);
-                out.push((
-                    format!("result.{}", s.id()),
-                    format!("the result {}", s.describe()),
-                    Kind::ResultPattern(s, code),
-                    one_bin(),
-                ));
-            }
-        }
-        out.push((
-            "result.bits".into(),
-            "every result bit seen at 0 and at 1".into(),
-            Kind::ResultBits,
-            (0..w)
-                .flat_map(|i| [format!("bit{i}=0"), format!("bit{i}=1")])
-                .collect(),
-        ));
-        if spec.has(Signal::Zero) {
-            out.push((
-                "result.walking_one".into(),
-                "the result has exactly one 1 bit, at each position (each input of the zero \
-                 flag's detector alone at 1)"
-                    .into(),
-                Kind::ResultWalkingOne,
-                bits(&|i| format!("bit{i}")),
-            ));
-        }
+        result_templates(model, spec, out);
         let aw = unit.amount_width();
         let mut labels: Vec<String> = (0..=w).map(|k| format!("amount={k}")).collect();
         if aw >= 64 || (1u64 << aw) - 1 > w as u64 {
@@ -367,6 +385,9 @@ pub(super) fn ext_bins<B: Bits>(
         }
         ExtKind::DivCases | ExtKind::DivQuotientBit | ExtKind::DivSigns | ExtKind::DivStep => {
             super::divide::div_bins(unit, kind, a, t, bin);
+        }
+        ExtKind::BitPairs | ExtKind::ValueOrder(_) | ExtKind::AbsCases(_) => {
+            super::simple::simple_bins(model, kind, a, b, t, bin);
         }
     }
 }

@@ -22,6 +22,7 @@ mod divide;
 mod ext;
 mod program;
 mod select;
+mod simple;
 mod templates;
 pub(crate) use divide::case_labels;
 pub(crate) use ext::{booth_digits, booth_operand, ExtKind};

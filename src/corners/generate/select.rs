@@ -67,6 +67,7 @@ impl Generator {
         let key: [u8; 32] = hasher.finalize().into();
         let pool = operand_pool(&catalogue).into();
         Generator {
+            appended: Vec::new().into(),
             pool,
             appended: Vec::new().into(),
             codes: codes.into(),
