@@ -100,6 +100,7 @@ fn behaviour(spec: &Spec, outputs: &[Signal]) -> Vec<BTreeSet<Vec<Word>>> {
                         b: Word::from_u64(b),
                         carry_in: cin == 1,
                         mode: mode == 1,
+                        select: 0,
                     };
                     let out = model.evaluate(&inputs);
                     let mut set = BTreeSet::from([pick(&out)]);

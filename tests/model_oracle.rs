@@ -115,6 +115,7 @@ fn vectors(seed: u64, width: u32, count: usize) -> Vec<Inputs> {
                 b: *b,
                 carry_in: rng.coin(),
                 mode: rng.coin(),
+                select: 0,
             });
         }
     }
@@ -126,6 +127,7 @@ fn vectors(seed: u64, width: u32, count: usize) -> Vec<Inputs> {
             b,
             carry_in: rng.coin(),
             mode: rng.coin(),
+            select: 0,
         });
     }
     out
@@ -744,6 +746,7 @@ fn every_input(spec: &Spec) -> Vec<Inputs> {
                         b: Word::from_u64(b),
                         carry_in,
                         mode,
+                        select: 0,
                     });
                 }
             }
@@ -883,6 +886,7 @@ fn run(spec: &Spec, a: u128, b: u128, carry_in: bool, mode: bool) -> Outputs {
         b: Word::from_u128(b),
         carry_in,
         mode,
+        select: 0,
     })
 }
 

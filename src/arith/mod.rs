@@ -8,4 +8,5 @@ pub(crate) mod bits;
 pub(crate) mod encoding;
 pub(crate) mod model;
 pub(crate) mod ops;
+pub(crate) mod select;
 pub(crate) mod word;

@@ -12,6 +12,7 @@ use crate::arith::encoding::{
     decode, encode, is_negative_zero, negative_zero, representable, sign_bit,
 };
 use crate::arith::ops::OpUnit;
+use crate::arith::select::SelectModel;
 use crate::arith::word::Word;
 use crate::spec::{
     CarryInConvention, CarryOutConvention, Encoding, NegativeZero, OffsetCarry, Operation, Signal,
@@ -29,6 +30,8 @@ pub struct Inputs {
     pub carry_in: bool,
     /// addsub select: false = add, true = subtract.
     pub mode: bool,
+    /// A select unit's operation code (0 for other units).
+    pub select: u32,
 }
 
 /// The outputs of one vector. Fields the unit lacks are still computed where defined.
@@ -50,6 +53,13 @@ pub struct Outputs {
     pub equal: bool,
     /// Compare: a > b.
     pub greater: bool,
+    /// Division: the remainder (the quotient is `result`).
+    pub remainder: Word,
+    /// Division: the divisor is zero.
+    pub div_by_zero: bool,
+    /// Division by zero under `div_by_zero = "dont_care"`: the quotient and remainder are
+    /// not compared for this vector (every other output is).
+    pub dont_care: bool,
 }
 
 impl Inputs {
@@ -61,6 +71,7 @@ impl Inputs {
             Signal::CarryIn => Word::from_u64(self.carry_in as u64),
             Signal::Mode => Word::from_u64(self.mode as u64),
             Signal::Amount => self.b,
+            Signal::Select => Word::from_u64(self.select as u64),
             _ => Word::ZERO,
         }
     }
@@ -73,12 +84,20 @@ impl Inputs {
             Signal::CarryIn => self.carry_in = value.bit(0),
             Signal::Mode => self.mode = value.bit(0),
             Signal::Amount => self.b = value,
+            Signal::Select => self.select = value.low_u64() as u32,
             _ => {}
         }
     }
 }
 
 impl Outputs {
+    /// False for an output this vector leaves unspecified (the quotient and remainder of a
+    /// division by zero under `div_by_zero = "dont_care"`), which no checker compares.
+    #[inline]
+    pub fn is_specified(&self, signal: Signal) -> bool {
+        !(self.dont_care && matches!(signal, Signal::Quotient | Signal::Remainder))
+    }
+
     /// The low 64 bits of an output signal's value, without building a word.
     #[inline]
     pub(crate) fn get_low(&self, signal: Signal) -> u64 {
@@ -91,6 +110,9 @@ impl Outputs {
             Signal::Less => self.less as u64,
             Signal::Equal => self.equal as u64,
             Signal::Greater => self.greater as u64,
+            Signal::Quotient => self.result.low_u64(),
+            Signal::Remainder => self.remainder.low_u64(),
+            Signal::DivByZero => self.div_by_zero as u64,
             _ => 0,
         }
     }
@@ -107,6 +129,9 @@ impl Outputs {
             Signal::Less => flag(self.less),
             Signal::Equal => flag(self.equal),
             Signal::Greater => flag(self.greater),
+            Signal::Quotient => self.result,
+            Signal::Remainder => self.remainder,
+            Signal::DivByZero => flag(self.div_by_zero),
             _ => Word::ZERO,
         }
     }
@@ -123,6 +148,9 @@ impl Outputs {
             Signal::Less => self.less = b,
             Signal::Equal => self.equal = b,
             Signal::Greater => self.greater = b,
+            Signal::Quotient => self.result = value,
+            Signal::Remainder => self.remainder = value,
+            Signal::DivByZero => self.div_by_zero = b,
             _ => {}
         }
     }
@@ -190,6 +218,8 @@ pub(crate) struct Trace<B> {
     pub result: B,
     pub path: Path<B>,
     pub outputs_flags: Flags,
+    /// Division: the remainder pattern (zero for the other operations).
+    pub remainder: B,
 }
 
 /// The one-bit outputs.
@@ -202,6 +232,9 @@ pub(crate) struct Flags {
     pub less: bool,
     pub equal: bool,
     pub greater: bool,
+    pub div_by_zero: bool,
+    /// See [`Outputs::dont_care`].
+    pub dont_care: bool,
 }
 
 /// Where one input of a ripple datapath comes from.
@@ -296,6 +329,8 @@ pub struct Model {
     views: [Option<RippleView>; 2],
     /// The shift, rotate or multiply unit, for those operations.
     unit: Option<OpUnit>,
+    /// A select unit's per-operation models (see `arith::select`).
+    pub(crate) select: Option<std::sync::Arc<SelectModel>>,
 }
 
 impl Model {
@@ -326,6 +361,7 @@ impl Model {
                 negative_zero: spec.conventions.negative_zero,
                 zero_flag: spec.conventions.zero_flag,
             }),
+            select: SelectModel::new(spec).map(std::sync::Arc::new),
         };
         model.views = [model.find_ripple_view(false), model.find_ripple_view(true)];
         model
@@ -408,7 +444,11 @@ impl Model {
                 | Operation::Sra
                 | Operation::Rol
                 | Operation::Ror
-                | Operation::Mul,
+                | Operation::Mul
+                | Operation::Div
+                | Operation::Rem
+                | Operation::DivRem
+                | Operation::Select,
             ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,
             (Encoding::Ones, Operation::Negate) => return None,
@@ -445,6 +485,9 @@ impl Model {
 
     /// The outputs a correct unit gives for `inputs`.
     pub fn evaluate(&self, inputs: &Inputs) -> Outputs {
+        if let Some(select) = &self.select {
+            return select.evaluate(inputs);
+        }
         if self.uses_fast_path() {
             self.outputs_of(&self.trace::<u128>(inputs))
         } else if self.needs_huge() {
@@ -488,6 +531,9 @@ impl Model {
             less: f.less,
             equal: f.equal,
             greater: f.greater,
+            remainder: t.remainder.to_word(),
+            div_by_zero: f.div_by_zero,
+            dont_care: f.dont_care,
         }
     }
 
@@ -512,6 +558,9 @@ impl Model {
 
     /// Runs the model and keeps the datapath trace.
     pub(crate) fn trace<B: Bits>(&self, inputs: &Inputs) -> Trace<B> {
+        if let Some(select) = &self.select {
+            return select.trace(inputs);
+        }
         if let Some(unit) = &self.unit {
             let r = unit.evaluate(B::from_word(&inputs.a), B::from_word(&inputs.b));
             return Trace {
@@ -527,8 +576,11 @@ impl Model {
                     overflow: r.overflow,
                     zero: r.zero,
                     negative: r.negative,
+                    div_by_zero: r.div_by_zero,
+                    dont_care: r.dont_care,
                     ..Flags::default()
                 },
+                remainder: r.remainder,
             };
         }
         let w = self.width;
@@ -582,6 +634,7 @@ impl Model {
                 result: B::zero(),
                 path: Path::None,
                 outputs_flags: flags,
+                remainder: B::zero(),
             };
         }
 
@@ -729,6 +782,7 @@ impl Model {
             result,
             path,
             outputs_flags: flags,
+            remainder: B::zero(),
         }
     }
 
@@ -767,6 +821,7 @@ mod tests {
             b: Word::from_u64(b),
             carry_in: cin,
             mode,
+            select: 0,
         })
     }
 

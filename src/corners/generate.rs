@@ -35,6 +35,10 @@ pub struct Generator {
     random: RandomPlan,
     /// Special operand patterns for the corner-biased mix.
     pool: std::sync::Arc<[Word]>,
+    /// Vectors given from outside (`arithvec import`, `gen --append`), after the random part.
+    appended: std::sync::Arc<[Inputs]>,
+    /// A select unit's codes, drawn uniformly for random vectors (empty for other units).
+    codes: std::sync::Arc<[u32]>,
 }
 
 /// Settings of the random part.
@@ -61,6 +65,8 @@ impl RandomPlan {
     }
 }
 
+mod select;
+
 /// Domain separation for the random key, so a seed's stream is arithvec's own.
 const KEY_LABEL: &[u8] = b"arithvec random vectors v1";
 
@@ -68,6 +74,9 @@ impl Generator {
     /// Builds the directed set for `spec` and plans `count` random vectors from `seed`
     /// (the spec's `[random]` values unless overridden).
     pub fn new(spec: &Spec, count: Option<u64>, seed: Option<u64>) -> Generator {
+        if spec.select.is_some() {
+            return Generator::for_select(spec, count, seed);
+        }
         let mut catalogue = Catalogue::candidates(spec);
         let (directed, directed_hits) = build_directed(spec, &mut catalogue);
         let seed = seed.unwrap_or(spec.random.seed);
@@ -78,6 +87,8 @@ impl Generator {
         let pool = operand_pool(&catalogue).into();
         Generator {
             pool,
+            appended: Vec::new().into(),
+            codes: std::sync::Arc::from([]),
             catalogue,
             directed,
             directed_hits,
@@ -137,12 +148,34 @@ impl Generator {
         self.random.seed
     }
 
-    /// Directed plus random.
+    /// Directed plus random plus appended.
     pub fn total(&self) -> u64 {
-        self.directed.len() as u64 + self.random.count
+        self.directed.len() as u64 + self.random.count + self.appended.len() as u64
     }
 
-    /// The inputs of vector `index` (directed first, then random), or None past the end.
+    /// The same set with `vectors` after its random part (indices `directed + random ..`).
+    /// They are given, not generated: a set holding them records where they came from.
+    pub fn with_appended(mut self, vectors: Vec<Inputs>) -> Generator {
+        self.appended = vectors.into();
+        self
+    }
+
+    /// The same catalogue with no directed and no random vectors, for a set made only of
+    /// appended (imported) vectors.
+    pub fn without_generated(mut self) -> Generator {
+        self.directed.clear();
+        self.directed_hits.iter_mut().for_each(|h| *h = 0);
+        self.random.count = 0;
+        self
+    }
+
+    /// The appended vectors, in file order.
+    pub fn appended(&self) -> &[Inputs] {
+        &self.appended
+    }
+
+    /// The inputs of vector `index` (directed first, then random, then appended), or None
+    /// past the end.
     pub fn vector(&self, index: u64) -> Option<Inputs> {
         let d = self.directed.len() as u64;
         if index < d {
@@ -151,7 +184,8 @@ impl Generator {
             let mut stream = self.random_stream(index - d);
             Some(stream.next_inputs())
         } else {
-            None
+            let k = index - d - self.random.count;
+            self.appended.get(usize::try_from(k).ok()?).copied()
         }
     }
 
@@ -163,6 +197,7 @@ impl Generator {
             rng,
             plan: self.random,
             pool: self.pool.clone(),
+            codes: self.codes.clone(),
         }
     }
 }
@@ -172,6 +207,7 @@ pub struct RandomStream {
     rng: ChaCha20Rng,
     plan: RandomPlan,
     pool: std::sync::Arc<[Word]>,
+    codes: std::sync::Arc<[u32]>,
 }
 
 impl RandomStream {
@@ -212,11 +248,18 @@ impl RandomStream {
             Word::ZERO
         };
         let flags = self.rng.next_u32();
+        // A select unit's code comes from the same word's upper bits, so the stream of every
+        // other unit is unchanged.
+        let select = match self.codes.len() {
+            0 => 0,
+            n => self.codes[(flags >> 8) as usize % n],
+        };
         Inputs {
             a,
             b,
             carry_in: flags & 1 == 1,
             mode: flags & 2 == 2,
+            select,
         }
     }
 }
@@ -406,6 +449,9 @@ impl Datapath {
 
 /// Candidate inputs for one bin, best first. The caller keeps the first that hits.
 fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word]) -> Vec<Inputs> {
+    if spec.operation.is_division() {
+        return crate::corners::construct_divide::candidates(cat, spec, class, k);
+    }
     if spec.operation.is_extended() {
         return crate::corners::construct::candidates(cat, spec, class, k);
     }
@@ -692,6 +738,7 @@ impl Solver<'_> {
                     b: pb,
                     carry_in: self.has_cin && self.port_for(c),
                     mode: self.mode,
+                    select: 0,
                 });
             }
         }
@@ -809,6 +856,7 @@ impl Solver<'_> {
                 b: uy.xor(flip).to_word(),
                 carry_in: self.has_cin && self.port_for(c),
                 mode: self.mode,
+                select: 0,
             });
         }
         out
@@ -830,6 +878,7 @@ impl Solver<'_> {
                         b,
                         carry_in: c,
                         mode: self.mode,
+                        select: 0,
                     });
                 }
             }
@@ -1183,6 +1232,7 @@ mod tests {
                                         b: Word::from_u64(b),
                                         carry_in: c & 1 == 1 && spec.has(Signal::CarryIn),
                                         mode: c & 2 == 2 && op == Operation::AddSub,
+                                        select: 0,
                                     };
                                     cat.evaluate(&v, &mut hits);
                                     hits.for_each_bin(|b| seen[b] = true);

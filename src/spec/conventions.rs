@@ -43,6 +43,19 @@ impl Spec {
     /// None when `key` has an effect on this spec; otherwise why it has none (the message the
     /// reader gives, ending in what to do).
     pub(crate) fn convention_without_effect(&self, key: ConventionKey) -> Option<&'static str> {
+        if self.select.is_some() {
+            // A select unit: the key has an effect when it has one on some carried operation.
+            let parts = self.select_parts();
+            let whys: Vec<_> = parts
+                .iter()
+                .map(|(_, part)| part.convention_without_effect(key))
+                .collect();
+            return if whys.iter().any(Option::is_none) {
+                None
+            } else {
+                whys.into_iter().flatten().next()
+            };
+        }
         let enc = self.encoding;
         let op = self.operation;
         match key {

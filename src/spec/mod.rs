@@ -20,7 +20,11 @@ use crate::error::{Error, Problem, Result};
 mod conventions;
 use conventions::ConventionKey;
 mod ops;
-pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
+mod select;
+pub use ops::{
+    default_amount_width, DivByZero, LargeAmount, OpOptions, ResultPart, Rounding, Signedness,
+};
+pub use select::{SelectSpec, UndefinedOutputs};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -56,6 +60,15 @@ pub enum Operation {
     Ror,
     /// `a * b`, an R-bit result (default R = 2N).
     Mul,
+    /// `a / b`: quotient, with div_by_zero and overflow flags.
+    Div,
+    /// `a % b` (the remainder of the same division): remainder, div_by_zero, overflow.
+    Rem,
+    /// Quotient and remainder of one division.
+    DivRem,
+    /// Several operations behind one select port; the `[select]` table gives the code of
+    /// each (see `spec::select`).
+    Select,
 }
 
 impl Operation {
@@ -71,13 +84,16 @@ impl Operation {
     ];
 
     /// The shift, rotate and multiply operations (models in `arith::ops`).
-    pub const EXTENDED: [Operation; 6] = [
+    pub const EXTENDED: [Operation; 9] = [
         Operation::Shl,
         Operation::Shr,
         Operation::Sra,
         Operation::Rol,
         Operation::Ror,
         Operation::Mul,
+        Operation::Div,
+        Operation::Rem,
+        Operation::DivRem,
     ];
 
     /// The spec-file spelling.
@@ -96,6 +112,10 @@ impl Operation {
             Operation::Rol => "rol",
             Operation::Ror => "ror",
             Operation::Mul => "mul",
+            Operation::Div => "div",
+            Operation::Rem => "rem",
+            Operation::DivRem => "divrem",
+            Operation::Select => "select",
         }
     }
 
@@ -108,6 +128,9 @@ impl Operation {
                 | Operation::AddSub
                 | Operation::Compare
                 | Operation::Mul
+                | Operation::Div
+                | Operation::Rem
+                | Operation::DivRem
         )
     }
 
@@ -129,6 +152,15 @@ impl Operation {
                 &[A, Amount, Result, CarryOut, Zero, Negative]
             }
             Operation::Mul => &[A, B, Result, Overflow, Zero, Negative],
+            Operation::Div => &[A, B, Overflow, Quotient, DivByZero],
+            Operation::Rem => &[A, B, Overflow, Remainder, DivByZero],
+            Operation::DivRem => &[A, B, Overflow, Quotient, Remainder, DivByZero],
+            // The union of the operations a select unit can carry; `spec::select` refuses a
+            // port no carried operation has.
+            Operation::Select => &[
+                A, B, CarryIn, Select, Result, CarryOut, Overflow, Zero, Negative, Less, Equal,
+                Greater,
+            ],
         }
     }
 }
@@ -227,11 +259,19 @@ pub enum Signal {
     Greater,
     /// Shift amount (width `amount_width`).
     Amount,
+    /// Division: the N-bit quotient.
+    Quotient,
+    /// Division: the N-bit remainder.
+    Remainder,
+    /// Division: the divisor is zero.
+    DivByZero,
+    /// Operation select code of a select unit (width `[select] width`).
+    Select,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 13] = [
+    pub const ALL: [Signal; 17] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -245,6 +285,10 @@ impl Signal {
         Signal::Equal,
         Signal::Greater,
         Signal::Amount,
+        Signal::Quotient,
+        Signal::Remainder,
+        Signal::DivByZero,
+        Signal::Select,
     ];
 
     /// The key used in `[ports]`.
@@ -263,6 +307,10 @@ impl Signal {
             Signal::Equal => "equal",
             Signal::Greater => "greater",
             Signal::Amount => "amount",
+            Signal::Quotient => "quotient",
+            Signal::Remainder => "remainder",
+            Signal::DivByZero => "div_by_zero",
+            Signal::Select => "select",
         }
     }
 
@@ -275,14 +323,19 @@ impl Signal {
     pub fn is_input(self) -> bool {
         matches!(
             self,
-            Signal::A | Signal::B | Signal::CarryIn | Signal::Mode | Signal::Amount
+            Signal::A
+                | Signal::B
+                | Signal::CarryIn
+                | Signal::Mode
+                | Signal::Amount
+                | Signal::Select
         )
     }
 
     /// The signal's width in bits for a unit of operand width `width`.
     pub fn width(self, width: u32) -> u32 {
         match self {
-            Signal::A | Signal::B | Signal::Result => width,
+            Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder => width,
             _ => 1,
         }
     }
@@ -476,6 +529,9 @@ pub struct Spec {
     /// Options of the shift, rotate and multiply operations (None for the others).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub options: Option<OpOptions>,
+    /// The `[select]` table of a select unit (None for the others).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub select: Option<SelectSpec>,
 }
 
 impl Spec {
@@ -509,6 +565,14 @@ impl Spec {
 
     /// True when the operation subtracts in some mode (and so the borrow conventions apply).
     pub fn subtracts(&self) -> bool {
+        if let Some(select) = &self.select {
+            return select.operations().any(|op| {
+                matches!(
+                    op,
+                    Operation::Sub | Operation::Negate | Operation::Decrement
+                )
+            });
+        }
         matches!(
             self.operation,
             Operation::Sub | Operation::AddSub | Operation::Negate | Operation::Decrement
@@ -540,6 +604,7 @@ impl Spec {
                 t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
             }
         }
+        t.push_str(&self.select_toml());
         let c = &self.conventions;
         let mut conv = String::new();
         for key in ConventionKey::ALL {
@@ -572,6 +637,7 @@ impl Spec {
             conv.push_str(&format!("{} = {}\n", key.name(), q(v)));
         }
         conv.push_str(&option_conv);
+        conv.push_str(&self.select_conventions_toml());
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
             t.push_str(&conv);
@@ -623,6 +689,7 @@ impl Spec {
             random: RandomSettings::default(),
             dut: None,
             options: Spec::default_options(operation, encoding, width),
+            select: None,
         }
     }
 }
@@ -643,6 +710,11 @@ fn signal_allowed(
              datapath has no plain carry-in); remove it",
             encoding.name()
         )),
+        (Signal::Overflow, Encoding::Unsigned) if operation.is_division() => Err(
+            "an unsigned division never overflows (only the two's-complement min / -1 does); \
+             remove it"
+                .to_string(),
+        ),
         (Signal::CarryOut, Encoding::SignMagnitude) => Err(
             "a sign-magnitude unit has no carry-out of its own; use the overflow port for \
              magnitude overflow"
@@ -650,6 +722,20 @@ fn signal_allowed(
         ),
         _ => Ok(()),
     }
+}
+
+/// Every key the `[conventions]` table may hold (which ones have an effect depends on the unit).
+fn convention_table_keys() -> Vec<&'static str> {
+    let mut keys = vec![
+        "carry_out",
+        "carry_in",
+        "negative_zero",
+        "zero_flag",
+        "offset_carry",
+    ];
+    keys.extend(ops::CONVENTION_KEYS);
+    keys.push(select::CONVENTION_KEY);
+    keys
 }
 
 /// Walks the parsed TOML document, collecting problems.
@@ -818,6 +904,7 @@ impl<'a> Reader<'a> {
                 "conventions",
                 "random",
                 "dut",
+                "select",
                 ops::ROOT_KEYS[0],
                 ops::ROOT_KEYS[1],
             ],
@@ -843,6 +930,7 @@ impl<'a> Reader<'a> {
             &Operation::ALL
                 .into_iter()
                 .chain(Operation::EXTENDED)
+                .chain([Operation::Select])
                 .map(|o| (o.name(), o))
                 .collect::<Vec<_>>(),
         );
@@ -875,16 +963,34 @@ impl<'a> Reader<'a> {
         let (operation, encoding) = match (operation, encoding) {
             (Some((o, _)), Some((e, _))) => (o, e),
             _ => {
-                // Still check the sub-tables' keys so every problem is reported at once.
+                // Still check every table that does not depend on the operation and encoding,
+                // so that every problem is reported in one pass.
                 if let Some(t) = ports_table {
                     let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
                     self.check_keys(t, "ports.", &keys);
+                    for signal in Signal::ALL {
+                        if Self::get(t, signal.key()).is_some() {
+                            if let Some((name, at)) = self.string(t, "ports.", signal.key()) {
+                                self.check_port_name(&name, at, signal);
+                            }
+                        }
+                    }
+                }
+                if let Some(t) = conv_table {
+                    self.check_keys(t, "conventions.", &convention_table_keys());
+                }
+                if let Some(t) = random_table {
+                    self.read_random(t, &mut RandomSettings::default());
+                }
+                if let Some(t) = dut_table {
+                    self.read_dut(t);
                 }
                 return None;
             }
         };
+        let ports_line = Self::get(root, "ports").map_or(1, |(k, _)| self.line_of(k.span()));
         let ports = match ports_table {
-            Some(t) => self.read_ports(t, operation, encoding),
+            Some(t) => self.read_ports(t, operation, encoding, ports_line),
             None => {
                 self.problems.push(
                     Problem::new(self.file, "the [ports] table is missing")
@@ -906,6 +1012,7 @@ impl<'a> Reader<'a> {
             random: RandomSettings::default(),
             dut: None,
             options: None,
+            select: None,
         };
         spec.options = Spec::default_options(spec.operation, spec.encoding, spec.width);
         if let Some(why) = spec.operation.refuses(spec.encoding) {
@@ -913,7 +1020,9 @@ impl<'a> Reader<'a> {
             self.problem(at, "encoding", why);
         }
         self.read_option_widths(root, &mut spec);
+        self.read_select(root, ports_table, &mut spec);
         if let Some(t) = conv_table {
+            self.read_select_conventions(t, &mut spec);
             self.read_conventions(t, &mut spec);
             self.read_option_conventions(t, &mut spec);
         }
@@ -928,7 +1037,40 @@ impl<'a> Reader<'a> {
         Some(spec)
     }
 
-    fn read_ports(&mut self, t: &Table<'_>, operation: Operation, encoding: Encoding) -> Ports {
+    /// Reports a port name that no testbench or vector file could use; true when it is usable.
+    fn check_port_name(&mut self, name: &str, at: usize, signal: Signal) -> bool {
+        let key = format!("ports.{}", signal.key());
+        if !is_identifier(name) {
+            self.problem(
+                at..at,
+                &key,
+                format!(
+                    "\"{name}\" is not a usable port name (letters, digits and '_', not \
+                     starting with a digit)"
+                ),
+            );
+            return false;
+        }
+        if name == "index" || name == "classes" {
+            self.problem(
+                at..at,
+                &key,
+                format!("\"{name}\" is reserved for the vector files' own columns"),
+            );
+            return false;
+        }
+        true
+    }
+
+    /// Reads `[ports]`; `table_line` is the line of the table's header, where a missing
+    /// port is reported.
+    fn read_ports(
+        &mut self,
+        t: &Table<'_>,
+        operation: Operation,
+        encoding: Encoding,
+        table_line: usize,
+    ) -> Ports {
         let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
         self.check_keys(t, "ports.", &keys);
         let mut ports = Ports::default();
@@ -957,23 +1099,7 @@ impl<'a> Reader<'a> {
                 self.problem(k.span(), &key, msg);
                 continue;
             }
-            if !is_identifier(&name) {
-                self.problem(
-                    at..at,
-                    &key,
-                    format!(
-                        "\"{name}\" is not a usable port name (letters, digits and '_', not \
-                         starting with a digit)"
-                    ),
-                );
-                continue;
-            }
-            if name == "index" || name == "classes" {
-                self.problem(
-                    at..at,
-                    &key,
-                    format!("\"{name}\" is reserved for the vector files' own columns"),
-                );
+            if !self.check_port_name(&name, at, signal) {
                 continue;
             }
             if let Some(other) = seen.get(&name) {
@@ -981,7 +1107,7 @@ impl<'a> Reader<'a> {
                     at..at,
                     &key,
                     format!(
-                        "port name \"{name}\" is already used by ports.{}",
+                        "duplicate port name: \"{name}\" is already used by ports.{}",
                         other.key()
                     ),
                 );
@@ -990,15 +1116,20 @@ impl<'a> Reader<'a> {
             seen.insert(name.clone(), signal);
             ports.set(signal, name);
         }
-        let line = 1;
-        if ports.get(Signal::A).is_none() {
+        // A port that is named but refused above has its own problem at its own line; saying
+        // also that the operation "needs" it would point at the wrong cause.
+        let missing = |ports: &Ports, signal: Signal| {
+            ports.get(signal).is_none() && Self::get(t, signal.key()).is_none()
+        };
+        let line = table_line;
+        if missing(&ports, Signal::A) {
             self.problems.push(
                 Problem::new(self.file, "every operation needs an `a` port")
                     .at_line(line)
                     .field("ports.a"),
             );
         }
-        if operation.is_binary() && ports.get(Signal::B).is_none() {
+        if operation.is_binary() && missing(&ports, Signal::B) {
             self.problems.push(
                 Problem::new(
                     self.file,
@@ -1008,7 +1139,7 @@ impl<'a> Reader<'a> {
                 .field("ports.b"),
             );
         }
-        if operation == Operation::AddSub && ports.get(Signal::Mode).is_none() {
+        if operation == Operation::AddSub && missing(&ports, Signal::Mode) {
             self.problems.push(
                 Problem::new(
                     self.file,
@@ -1032,20 +1163,7 @@ impl<'a> Reader<'a> {
     }
 
     fn read_conventions(&mut self, t: &Table<'_>, spec: &mut Spec) {
-        self.check_keys(
-            t,
-            "conventions.",
-            &[
-                "carry_out",
-                "carry_in",
-                "negative_zero",
-                "zero_flag",
-                "offset_carry",
-                ops::CONVENTION_KEYS[0],
-                ops::CONVENTION_KEYS[1],
-                ops::CONVENTION_KEYS[2],
-            ],
-        );
+        self.check_keys(t, "conventions.", &convention_table_keys());
         let p = "conventions.";
         // Every value is read first: whether one key has an effect can depend on another
         // (negative_zero and zero_flag).

@@ -117,6 +117,18 @@ pub struct GradeSummary {
     pub require: Option<f64>,
     /// The compacted set, when `--compact` ran.
     pub compacted: Option<CompactedSet>,
+    /// Set when the run graded against the netlist's own fault-free responses
+    /// (`--reference netlist`) rather than the golden model.
+    pub netlist_reference: Option<NetlistReference>,
+}
+
+/// What a page graded against the netlist's own responses shows about that choice.
+#[derive(Debug, Clone, PartialEq)]
+pub struct NetlistReference {
+    /// Vectors on which the fault-free netlist disagrees with the golden model.
+    pub disagreeing_vectors: usize,
+    /// The first disagreements: (vector index, port, golden hex, netlist hex).
+    pub listed: Vec<(u64, String, String, String)>,
 }
 
 const CSS: &str = r#"
@@ -1012,6 +1024,12 @@ pub fn render_grade_html(spec: &Spec, g: &GradeSummary) -> String {
         Some(_) => ("PASS", "pass", "\u{2714}"),
         None => ("GRADED", "short", "\u{25CB}"),
     };
+    // Against the netlist's own responses the verdict word says so, so no page reads as a
+    // plain pass of a unit the golden model was not compared with.
+    let word = match &g.netlist_reference {
+        Some(_) => format!("{word} AGAINST THE NETLIST"),
+        None => word.to_string(),
+    };
     let reason = match g.require {
         Some(req) => format!(
             "fault coverage {:.2}% ({} of {} collapsed faults detected) against a requirement of {req}%",
@@ -1049,6 +1067,26 @@ pub fn render_grade_html(spec: &Spec, g: &GradeSummary) -> String {
             div { "arithvec grade of unit " strong { (spec.name) } ", module " strong { (g.module) } }
             p.reason { "verdict: " (word) ": " (reason) }
         }
+        @if let Some(r) = &g.netlist_reference {
+            section.banner.fail role="alert" {
+                div.word { "\u{26A0} GRADED AGAINST THE NETLIST, NOT THE GOLDEN MODEL" }
+                p { "--reference netlist: a fault counts as detected when an output differs from the fault-free netlist's own response. "
+                    @if r.disagreeing_vectors == 0 {
+                        "The fault-free netlist agrees with the golden model on every vector."
+                    } @else {
+                        "The fault-free netlist disagrees with the golden model on " strong { (r.disagreeing_vectors) } " of " (g.vectors) " vectors: it does not implement the spec."
+                    }
+                }
+                @if !r.listed.is_empty() {
+                    table {
+                        thead { tr { th.n { "vector" } th { "port" } th { "golden model" } th { "netlist" } } }
+                        tbody { @for (index, port, want, got) in &r.listed {
+                            tr { td.n { (index) } td.mono { (port) } td.mono { "0x" (want) } td.mono.bad { "0x" (got) } }
+                        } }
+                    }
+                }
+            }
+        }
         h2 { "Unit and run" }
         dl.meta {
             dt { "unit" } dd { (spec.name) }
@@ -1058,6 +1096,10 @@ pub fn render_grade_html(spec: &Spec, g: &GradeSummary) -> String {
             dt { "conventions" } dd {
                 @if conv.is_empty() { "none apply to this unit" }
                 @for (i, (k, v)) in conv.iter().enumerate() { @if i > 0 { ", " } (k) " = " (v) }
+            }
+            dt { "reference" } dd {
+                @if g.netlist_reference.is_some() { "the netlist's own fault-free responses (--reference netlist)" }
+                @else { "the golden model (the fault-free netlist reproduces it on every vector)" }
             }
             dt { "module" } dd { (g.module) }
             dt { "vector set" } dd { (g.vector_set) }

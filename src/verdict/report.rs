@@ -270,7 +270,25 @@ fn output_tally_line(r: &CheckReport) -> String {
             }
         })
         .collect();
-    format!("outputs: {}\n", parts.join("; "))
+    let mut line = format!("outputs: {}\n", parts.join("; "));
+    for o in &r.operation_outputs {
+        line.push_str(&format!(
+            "  {} (code 0x{:x}) compared: {}{}\n",
+            o.operation,
+            o.code,
+            if o.compared.is_empty() {
+                "nothing".to_string()
+            } else {
+                o.compared.join(", ")
+            },
+            if o.not_compared.is_empty() {
+                String::new()
+            } else {
+                format!("; not defined, not compared: {}", o.not_compared.join(", "))
+            }
+        ));
+    }
+    line
 }
 
 /// The one-line verdict.

@@ -132,6 +132,7 @@ fn seed_part(unit: Unit, w: u32) -> Vec<Inputs> {
         b,
         carry_in: c,
         mode: false,
+        select: 0,
     };
     let mut out: Vec<Inputs> = table
         .iter()
@@ -308,6 +309,7 @@ fn the_zero_flags_y0_branch_needs_the_result_one() {
         b: Word::ZERO,
         carry_in: true,
         mode: false,
+        select: 0,
     });
     assert_eq!(grade_lib(&s, &nl, &with_one).undetected, []);
 }
@@ -351,6 +353,7 @@ fn the_duplicated_top_carry_needs_generate_then_propagate() {
         b: value("b"),
         carry_in: !value("cin").is_zero(),
         mode: false,
+        select: 0,
     };
     assert!(pairs(&found), "{found:?}");
 }

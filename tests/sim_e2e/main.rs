@@ -15,6 +15,7 @@ mod behav_ops;
 mod bugs;
 mod flow;
 mod reference;
+mod select;
 mod spec;
 #[path = "../support/mod.rs"]
 mod support;

@@ -107,6 +107,8 @@ pub struct UnitSpec {
     pub module: String,
     /// DUT parameters besides W.
     pub extra_parameters: Vec<(&'static str, i64)>,
+    /// More tables, written as given after `[ports]` (a select unit's `[select]`).
+    pub tables: String,
 }
 
 impl UnitSpec {
@@ -130,7 +132,14 @@ impl UnitSpec {
             seed: 7,
             module: module.to_string(),
             extra_parameters: Vec::new(),
+            tables: String::new(),
         }
+    }
+
+    /// The same spec with more tables (TOML text) after `[ports]`.
+    pub fn tables(mut self, text: &str) -> UnitSpec {
+        self.tables.push_str(text);
+        self
     }
 
     /// The same spec with one more `[conventions]` key.
@@ -162,6 +171,7 @@ impl UnitSpec {
         for (signal, port) in self.ports {
             let _ = writeln!(text, "{signal} = \"{port}\"");
         }
+        text.push_str(&self.tables);
         if !self.conventions.is_empty() {
             text.push_str("\n[conventions]\n");
             for (key, value) in &self.conventions {

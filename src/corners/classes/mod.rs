@@ -18,9 +18,12 @@ use crate::arith::model::{offset_carries, Cell, Inputs, Model, Outputs, Path, Tr
 use crate::arith::word::Word;
 use crate::spec::{Encoding, Operation, Signal, Spec};
 
+mod divide;
 mod ext;
 mod program;
+mod select;
 mod templates;
+pub(crate) use divide::case_labels;
 pub(crate) use ext::{booth_digits, booth_operand, ExtKind};
 use program::*;
 use templates::*;
@@ -135,6 +138,8 @@ pub(crate) enum Kind {
     CompareSignOnly,
     /// A class of the shift, rotate and multiply operations (see `ext`).
     Ext(ExtKind),
+    /// A select unit's code (classified in `classes::select`, never by a predicate).
+    SelectCode,
 }
 
 /// One corner class.
@@ -279,6 +284,8 @@ pub struct Catalogue {
     /// Per group, the classes-only form of the fast path, where every class kind of the
     /// group has one (binary datapaths with at most 128 classes).
     masks: Vec<Option<MaskProgram>>,
+    /// A select unit's parts (see `classes::select`).
+    select: Option<Box<select::SelectCatalogue>>,
 }
 
 impl Catalogue {
@@ -286,6 +293,9 @@ impl Catalogue {
     /// Reachability starts all-true; the directed generator narrows it with
     /// [`Catalogue::set_reachable`].
     pub(crate) fn candidates(spec: &Spec) -> Catalogue {
+        if spec.select.is_some() {
+            return Catalogue::select_candidates(spec);
+        }
         let model = Model::new(spec);
         let mut cat = Catalogue {
             model: model.clone(),
@@ -297,6 +307,7 @@ impl Catalogue {
             dense_families: Vec::new(),
             narrow: Vec::new(),
             masks: Vec::new(),
+            select: None,
         };
         let modes: Vec<Option<bool>> = if spec.operation == Operation::AddSub {
             vec![Some(false), Some(true)]
@@ -484,6 +495,9 @@ impl Catalogue {
         hits: &mut Hits,
         detail: Detail,
     ) -> Outputs {
+        if let Some(outputs) = self.select_evaluate(inputs, hits, detail) {
+            return outputs;
+        }
         if self.model.uses_fast_path() {
             let t = self.model.trace::<u128>(inputs);
             self.classify_narrow(inputs, &t, hits, detail);
@@ -507,7 +521,7 @@ impl Catalogue {
         inputs: &Inputs,
         hits: &mut Hits,
     ) -> (Outputs, Option<u128>) {
-        if self.model.uses_fast_path() {
+        if self.model.uses_fast_path() && self.select.is_none() {
             let group = self
                 .groups
                 .iter()
@@ -528,7 +542,7 @@ impl Catalogue {
     /// hits, for coverage counting: the same bins and classes as [`Catalogue::evaluate`], the
     /// bins possibly in another order.
     pub(crate) fn evaluate_for_coverage(&self, inputs: &Inputs, hits: &mut Hits) -> Outputs {
-        if self.model.uses_fast_path() {
+        if self.model.uses_fast_path() && self.select.is_none() {
             let group = self
                 .groups
                 .iter()
@@ -900,6 +914,8 @@ impl Catalogue {
                 Kind::Ext(kind) => {
                     ext::ext_bins(&self.model, kind, a, b, t, |k| bin(hits, k));
                 }
+                // Classified by the select catalogue itself.
+                Kind::SelectCode => {}
             }
         }
         hit_any || hits.bins.len() > before.0 || hits.dense.len() > before.1

@@ -55,6 +55,7 @@ fn narrow_path_matches_generic_predicates() {
                             b: Word::from_u64(pick(rb, i / 2)),
                             carry_in: rf & 1 == 1,
                             mode: rf & 2 == 2,
+                            select: 0,
                         };
                         let t = cat.model.trace::<u128>(&inputs);
                         cat.classify_narrow(&inputs, &t, &mut narrow, Detail::Bins);
