@@ -76,7 +76,6 @@ impl SelectModel {
                 remainder: B::zero(),
                 path: Path::None,
                 outputs_flags: Flags::default(),
-                remainder: B::zero(),
             },
         }
     }

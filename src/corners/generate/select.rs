@@ -69,7 +69,6 @@ impl Generator {
         Generator {
             appended: Vec::new().into(),
             pool,
-            appended: Vec::new().into(),
             codes: codes.into(),
             catalogue,
             directed,
