@@ -79,9 +79,10 @@ pub use sim::testbench::{
     MAX_TESTBENCH_VECTORS,
 };
 pub use spec::{
-    default_amount_width, is_identifier, CarryInConvention, CarryOutConvention, Conventions, Dut,
-    Encoding, LargeAmount, Mix, NegativeZero, OffsetCarry, OpOptions, Operation, ParamValue, Ports,
-    RandomSettings, ResultPart, SelectSpec, Signal, Signedness, Spec, UndefinedOutputs, ZeroFlag,
+    default_amount_width, is_identifier, ActiveLow, CarryInConvention, CarryOutConvention,
+    Conventions, Dut, Encoding, LargeAmount, Mix, NegativeZero, OffsetCarry, OpOptions, Operation,
+    ParamValue, Ports, RandomSettings, ResultPart, SelectSpec, Signal, Signedness, Spec,
+    UndefinedOutputs, ZeroFlag,
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,

@@ -14,6 +14,7 @@ use crate::arith::encoding::{
 use crate::arith::ops::OpUnit;
 use crate::arith::select::SelectModel;
 use crate::arith::word::Word;
+use crate::spec::ActiveLow;
 use crate::spec::{
     CarryInConvention, CarryOutConvention, Encoding, NegativeZero, OffsetCarry, Operation, Signal,
     Spec, ZeroFlag,
@@ -303,6 +304,8 @@ pub struct Model {
     unit: Option<OpUnit>,
     /// A select unit's per-operation models (see `arith::select`).
     pub(crate) select: Option<std::sync::Arc<SelectModel>>,
+    /// `conventions.active_low`: these flags are inverted on the way out.
+    active_low: ActiveLow,
 }
 
 impl Model {
@@ -334,6 +337,7 @@ impl Model {
                 zero_flag: spec.conventions.zero_flag,
             }),
             select: SelectModel::new(spec).map(std::sync::Arc::new),
+            active_low: spec.conventions.active_low,
         };
         model.views = [model.find_ripple_view(false), model.find_ripple_view(true)];
         model
@@ -484,13 +488,27 @@ impl Model {
         };
         let mut alt = *outputs;
         alt.result = other.to_word();
-        alt.zero = self.zero_flag_of(other);
-        alt.negative = sign_bit(other, w, self.encoding);
+        alt.zero = self.zero_flag_of(other) != self.active_low.contains(Signal::Zero);
+        alt.negative =
+            sign_bit(other, w, self.encoding) != self.active_low.contains(Signal::Negative);
         Some(alt)
     }
 
     pub(crate) fn outputs_of<B: Bits>(&self, t: &Trace<B>) -> Outputs {
         let f = t.outputs_flags;
+        if !self.active_low.is_empty() {
+            let low = |s: Signal| self.active_low.contains(s);
+            return Outputs {
+                result: t.result.to_word(),
+                carry_out: f.carry_out != low(Signal::CarryOut),
+                overflow: f.overflow != low(Signal::Overflow),
+                zero: f.zero != low(Signal::Zero),
+                negative: f.negative != low(Signal::Negative),
+                less: f.less != low(Signal::Less),
+                equal: f.equal != low(Signal::Equal),
+                greater: f.greater != low(Signal::Greater),
+            };
+        }
         Outputs {
             result: t.result.to_word(),
             carry_out: f.carry_out,

@@ -19,8 +19,10 @@ use crate::error::{Error, Problem, Result};
 
 mod conventions;
 use conventions::ConventionKey;
+mod flags;
 mod ops;
 mod select;
+pub use flags::ActiveLow;
 pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
 pub use select::{SelectSpec, UndefinedOutputs};
 
@@ -417,6 +419,10 @@ pub struct Conventions {
     /// identity of every spec written before the key existed is unchanged.
     #[serde(skip_serializing_if = "OffsetCarry::is_inner")]
     pub offset_carry: OffsetCarry,
+    /// Flags that are 1 when false (see [`ActiveLow`]); left out of the normalised JSON
+    /// when empty.
+    #[serde(skip_serializing_if = "ActiveLow::is_empty")]
+    pub active_low: ActiveLow,
 }
 
 impl Default for Conventions {
@@ -427,6 +433,7 @@ impl Default for Conventions {
             negative_zero: NegativeZero::Hardware,
             zero_flag: ZeroFlag::Value,
             offset_carry: OffsetCarry::Inner,
+            active_low: ActiveLow::default(),
         }
     }
 }
@@ -606,6 +613,7 @@ impl Spec {
         }
         conv.push_str(&option_conv);
         conv.push_str(&self.select_conventions_toml());
+        conv.push_str(&self.active_low_toml());
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
             t.push_str(&conv);
@@ -954,6 +962,7 @@ impl<'a> Reader<'a> {
         self.read_select(root, ports_table, &mut spec);
         if let Some(t) = conv_table {
             self.read_select_conventions(t, &mut spec);
+            self.read_active_low(t, &mut spec);
             self.read_conventions(t, &mut spec);
             self.read_option_conventions(t, &mut spec);
         }
@@ -1085,6 +1094,7 @@ impl<'a> Reader<'a> {
                 ops::CONVENTION_KEYS[1],
                 ops::CONVENTION_KEYS[2],
                 select::CONVENTION_KEY,
+                flags::CONVENTION_KEY,
             ],
         );
         let p = "conventions.";
