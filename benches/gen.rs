@@ -15,6 +15,9 @@
 //! a run of 100,000,000 vectors to disk (about 11 GB, removed afterwards) to show the peak
 //! RSS staying flat.
 //!
+//! Last, a 32 x 32 multiplier and a 64-bit divider are generated at the same count and
+//! compared with the 32-bit subtractor (goal: at least 0.5x its vectors per second).
+//!
 //! The peer ("bare formatter") writes files of the same shape from the same ChaCha stream
 //! with plain `write!` formatting and no model, classes or hashes; the goal is arithvec at
 //! no less than 0.6x its rate.
@@ -195,4 +198,42 @@ fn main() {
         );
     }
     println!("goal: >= 10 M vectors/s on a 2-core machine");
+    if let Some((place, dir)) = targets.last() {
+        operations_against_sub32(place, &dir.0, single.unwrap_or(1_000_000), threads);
+    }
+}
+
+/// Generation rate of a 32 x 32 multiplier (twos, full 64-bit product) and a 64-bit divider
+/// (divrem, twos) against the 32-bit subtractor, same count, same place.
+fn operations_against_sub32(place: &str, dir: &Path, count: u64, threads: usize) {
+    let rate = |spec: &Spec| {
+        let g = Generator::new(spec, Some(count), Some(1));
+        let t = Instant::now();
+        let options = WriteOptions {
+            threads,
+            ..WriteOptions::default()
+        };
+        let m = write_vector_set(&g, spec, dir, options).expect("write");
+        m.vectors as f64 / t.elapsed().as_secs_f64()
+    };
+    let mut sub = Spec::with_defaults(Operation::Sub, Encoding::Twos, 32);
+    sub.name = "bench_sub32".into();
+    let mut mul = Spec::with_defaults(Operation::Mul, Encoding::Twos, 32);
+    mul.name = "bench_mul32".into();
+    let mut div = Spec::with_defaults(Operation::DivRem, Encoding::Twos, 64);
+    div.name = "bench_div64".into();
+    let base = rate(&sub);
+    println!(
+        "sub32 {count} vectors to {place}: {:.2} M vectors/s",
+        base / 1e6
+    );
+    for (label, spec) in [("mul 32x32", &mul), ("divrem 64", &div)] {
+        let r = rate(spec);
+        println!(
+            "{label} {count} vectors to {place}: {:.2} M vectors/s, {:.2}x the 32-bit \
+             subtractor   goal: >= 0.5x",
+            r / 1e6,
+            r / base
+        );
+    }
 }

@@ -74,6 +74,7 @@ fn main() {
                 columns.contains(&s).then(|| Observed {
                     bits: o.get(s),
                     unknown: Word::default(),
+                    z: Word::default(),
                 })
             });
         }

@@ -6,6 +6,7 @@
 #   bash scripts/fuzz-readers.sh [READER...]        # default: all five readers
 #   EXECS=1000000 bash scripts/fuzz-readers.sh log  # a shorter run of one reader
 #   bash scripts/fuzz-readers.sh --minimise         # afl-cmin the findings into fuzz/corpus/
+#   bash scripts/fuzz-readers.sh --build            # only build the harness (and `seeds`)
 #
 # Needs Debian's afl++ package (apt-get install afl++): afl-fuzz, afl-cmin and the
 # afl-compiler-rt.o runtime that the `afl` crate's persistent loop links against. The
@@ -23,10 +24,12 @@ RUNTIME=${AFL_RUNTIME:-/usr/lib/afl/afl-compiler-rt.o}
 READERS_ALL=(spec log manifest hex netlist)
 
 minimise=0
+build_only=0
 readers=()
 for arg in "$@"; do
   case "$arg" in
     --minimise) minimise=1 ;;
+    --build) build_only=1 ;;
     spec|log|manifest|hex|netlist) readers+=("$arg") ;;
     *) echo "unknown argument: $arg (readers: ${READERS_ALL[*]}, or --minimise)" >&2; exit 2 ;;
   esac
@@ -52,9 +55,14 @@ build() {
 }
 
 build
+[ "$build_only" = 0 ] || exit 0
 bin="$root/fuzz/target/afl/release"
 mkdir -p fuzz/out
 export AFL_SKIP_CPUFREQ=1 AFL_I_DONT_CARE_ABOUT_MISSING_CRASHES=1 AFL_NO_UI=1
+# The manifest and hex targets write a small vector set per execution: keep it in memory.
+if [ -z "${TMPDIR:-}" ] && [ -d /dev/shm ] && [ -w /dev/shm ]; then export TMPDIR=/dev/shm; fi
+# NICE=19 runs the fuzzer at the lowest priority on a shared machine.
+NICE=${NICE:-0}
 
 if [ "$minimise" = 1 ]; then
   for r in "${readers[@]}"; do
@@ -67,6 +75,12 @@ if [ "$minimise" = 1 ]; then
     afl-cmin -i "$tmp" -o "fuzz/corpus/$r.min" -t "$TIMEOUT_MS" -m "$MEMORY_MB" -- "$bin/$r"
     rm -rf "fuzz/corpus/$r" "$tmp"
     mv "fuzz/corpus/$r.min" "fuzz/corpus/$r"
+    # AFL++'s queue names (id:000123,src:...) hold ':' and ','; name kept findings by content.
+    for f in "fuzz/corpus/$r"/*; do
+      case "$(basename "$f")" in
+        *:*|*,*) mv "$f" "fuzz/corpus/$r/min-$(sha256sum "$f" | cut -c1-12)" ;;
+      esac
+    done
   done
   exit 0
 fi
@@ -76,7 +90,7 @@ for r in "${readers[@]}"; do
   rm -rf "$out"
   # -E stops after EXECS executions; -t and -m turn a slow input (> 1 s) or one that needs
   # more than 256 MB into a finding.
-  afl-fuzz -i "fuzz/corpus/$r" -o "$out" -E "$EXECS" -t "$TIMEOUT_MS" -m "$MEMORY_MB" \
+  nice -n "$NICE" afl-fuzz -i "fuzz/corpus/$r" -o "$out" -E "$EXECS" -t "$TIMEOUT_MS" -m "$MEMORY_MB" \
     -- "$bin/$r" > "$out.log" 2>&1 || true
   stats="$out/default/fuzzer_stats"
   get() { awk -v k="$1" '$1 == k { print $3 }' "$stats"; }

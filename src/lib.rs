@@ -62,16 +62,28 @@ pub use gates::fault::{
     compact, detection_matrix, grade, grade_with, DetectionMatrix, Fault, FaultEntry, FaultList,
     FaultReport, FaultSite, GradeOptions, PatternSet, PortValue, Redundancy, SimulationMode,
 };
-pub use gates::grade::{write_selection, BuiltinModel, GradeOutcome, Grader, NetlistMismatch};
+pub use gates::grade::{
+    write_selection, write_topped_up, BuiltinModel, GradeOutcome, Grader, NetlistMismatch,
+    TopUpFault, TopUpReport, TopUpStatus, EXHAUSTIVE_REDUNDANCY_METHOD, SAT_REDUNDANCY_METHOD,
+    TOP_UP_METHOD,
+};
 pub use gates::netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
+pub use gates::prove::{
+    prove, prove_against, CounterOutput, Counterexample, ProveReport, ProveVerdict, PROOF_CLAIM,
+    PROOF_LIMITS,
+};
+pub use gates::sat::{
+    equivalence_miter, equivalence_miter_bits, fault_miter, Answer, RefBit, Solved,
+};
 pub use sets::hexfile::Packer;
+pub use sets::import::{csv_sha256, parse_import_csv, read_imported};
 pub use sets::layout::{Field, Layout, WordLayout};
 pub use sets::vectorset::{
     csv_header, csv_row, read_manifest, read_manifest_unverified,
     remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
-    write as write_vector_set, FileRecord, Manifest, ManifestField, ManifestLayout, ManifestWord,
-    Selection, Shard, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX,
-    VECTORS_CSV,
+    write as write_vector_set, write_imported, FileRecord, ImportSource, Imported, Manifest,
+    ManifestField, ManifestLayout, ManifestWord, Selection, Shard, TopUpVector, VectorSet,
+    WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{
@@ -80,9 +92,9 @@ pub use sim::testbench::{
 };
 pub use spec::{
     default_amount_width, is_identifier, ActiveLow, CarryInConvention, CarryOutConvention,
-    Conventions, Dut, Encoding, LargeAmount, Mix, NegativeZero, OffsetCarry, OpOptions, Operation,
-    ParamValue, Ports, RandomSettings, ResultPart, SelectSpec, Signal, Signedness, Spec,
-    UndefinedOutputs, ZeroFlag,
+    Conventions, DivByZero, Dut, Encoding, LargeAmount, Mix, NegativeZero, OffsetCarry, OpOptions,
+    Operation, ParamValue, Ports, RandomSettings, ResultPart, Rounding, SelectSpec, Signal,
+    Signedness, Spec, UndefinedOutputs, ZeroFlag,
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,
@@ -94,7 +106,7 @@ pub use verdict::coverage::{
 };
 pub use verdict::html::{
     render_check_html, render_grade_html, CompactedSet, GradeFault, GradeSummary, HtmlContext,
-    HtmlRun, HTML_FAILURES,
+    HtmlRun, NetlistReference, HTML_FAILURES,
 };
 pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict_line, ClassRows};
 pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};

@@ -58,6 +58,24 @@ enum Command {
         /// unsharded files.
         #[arg(long, value_name = "I/N")]
         shard: Option<String>,
+        /// Also read this CSV of operand values (as for `import`) and put its vectors after
+        /// the random ones; the manifest records the file and its SHA-256.
+        #[arg(long, value_name = "FILE", conflicts_with = "shard")]
+        append: Option<PathBuf>,
+        #[command(flatten)]
+        threads: cli::threads::ThreadsArg,
+    },
+    /// Turn a CSV of operand values into a vector set with golden outputs and classes.
+    #[command(after_help = cli::import::IMPORT_HELP)]
+    Import {
+        /// The operation spec (TOML).
+        spec: PathBuf,
+        /// The CSV: a header naming the input ports, then one vector a line.
+        #[arg(long, value_name = "FILE")]
+        csv: PathBuf,
+        /// Output directory (created if missing).
+        #[arg(long, short)]
+        out: PathBuf,
         #[command(flatten)]
         threads: cli::threads::ThreadsArg,
     },
@@ -116,7 +134,7 @@ enum Command {
         /// current directory).
         #[arg(long, short)]
         output: Option<PathBuf>,
-        /// Settle time per vector, in time units (ns for VHDL).
+        /// Settle time per vector, in nanoseconds.
         #[arg(long, default_value_t = 1)]
         settle: u32,
         /// Also load expected.hex and count mismatches in the testbench itself.
@@ -132,6 +150,9 @@ enum Command {
     /// Grade the single stuck-at fault coverage of a vector set on a gate netlist.
     #[command(after_help = cli::grade::GRADE_HELP)]
     Grade(cli::grade::GradeArgs),
+    /// Prove a gate netlist equivalent to the spec on every output it names (SAT).
+    #[command(after_help = cli::prove::PROVE_HELP)]
+    Prove(cli::prove::ProveArgs),
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -184,8 +205,27 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             count,
             seed,
             shard,
+            append: Some(csv),
+            threads,
+        } => {
+            let _ = shard; // clap refuses --shard with --append
+            cli::import::gen_append(&spec, &dir, count, seed, &csv, threads, quiet)
+        }
+        Command::Gen {
+            spec,
+            out: dir,
+            count,
+            seed,
+            shard,
+            append: None,
             threads,
         } => gen(&spec, &dir, count, seed, shard.as_deref(), threads, quiet),
+        Command::Import {
+            spec,
+            csv,
+            out: dir,
+            threads,
+        } => cli::import::import(&spec, &csv, &dir, threads, quiet),
         Command::Classes { spec, format, bins } => classes(&spec, format, bins),
         Command::Repro {
             spec,
@@ -206,6 +246,7 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
         Command::Check(args) => cli::check::check(args, quiet),
         Command::Merge(args) => cli::check::merge(args, quiet),
         Command::Grade(args) => cli::grade::grade(args, quiet),
+        Command::Prove(args) => cli::prove::prove(args, quiet),
     }
 }
 
@@ -341,6 +382,7 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
     let generator = Generator::new(&spec, Some(0), None);
     let cat: &Catalogue = generator.catalogue();
     let class_hits = generator.directed_class_hits();
+    let why_unreachable = cli::reach::why_unreachable(&spec, cat);
     let mut o = out();
     if format == Format::Json {
         let list: Vec<serde_json::Value> = cat
@@ -351,11 +393,15 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
                 let bins: Vec<serde_json::Value> = (0..c.bin_count())
                     .map(|k| {
                         let b = c.first_bin() + k;
-                        serde_json::json!({
+                        let mut bin = serde_json::json!({
                             "label": c.bin_labels()[k],
                             "reachable": cat.is_reachable(b),
                             "directed_hits": generator.directed_hits(b),
-                        })
+                        });
+                        if !cat.is_reachable(b) {
+                            bin["unreachable_because"] = why_unreachable[b].json().into();
+                        }
+                        bin
                     })
                     .collect();
                 serde_json::json!({
@@ -373,23 +419,25 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
         writeln!(o, "{text}").map_err(cli::util::stdout_error)?;
         return Ok(Outcome::Success);
     }
-    let mut rows: Vec<[String; 4]> = Vec::new();
-    for (ci, c) in cat.classes().iter().enumerate() {
-        if bins {
-            for k in 0..c.bin_count() {
-                let b = c.first_bin() + k;
-                rows.push([
-                    cat.bin_id(b),
-                    if cat.is_reachable(b) {
-                        "reachable".into()
-                    } else {
-                        "unreachable at this width".into()
-                    },
-                    String::new(),
-                    generator.directed_hits(b).to_string(),
-                ]);
-            }
-        } else {
+    if bins {
+        let mut rows: Vec<[String; 3]> = Vec::new();
+        for b in 0..cat.bin_count() {
+            rows.push([
+                cat.bin_id(b),
+                if cat.is_reachable(b) {
+                    "reachable".into()
+                } else {
+                    format!("unreachable: {}", why_unreachable[b].words())
+                },
+                generator.directed_hits(b).to_string(),
+            ]);
+        }
+        let table = cli::util::table(&["bin", "status", "directed hits"], &rows);
+        writeln!(o, "{table}").map_err(cli::util::stdout_error)?;
+    }
+    if !bins {
+        let mut rows: Vec<[String; 4]> = Vec::new();
+        for (ci, c) in cat.classes().iter().enumerate() {
             let reachable = cat.reachable_bins(ci).count();
             let bins_text = if reachable == c.bin_count() {
                 reachable.to_string()
@@ -403,14 +451,10 @@ fn classes(spec_path: &Path, format: Format, bins: bool) -> Result<Outcome, Erro
                 class_hits[ci].to_string(),
             ]);
         }
+        let header = ["class", "description", "bins", "directed vectors"];
+        let table = cli::util::table(&header, &rows);
+        writeln!(o, "{table}").map_err(cli::util::stdout_error)?;
     }
-    let header = if bins {
-        ["bin", "status", "", "directed hits"]
-    } else {
-        ["class", "description", "bins", "directed vectors"]
-    };
-    let table = cli::util::table(&header, &rows);
-    writeln!(o, "{table}").map_err(cli::util::stdout_error)?;
     writeln!(
         o,
         "unit {}: {} {} {} bits; {} classes, {} reachable bins; {} directed vectors",
@@ -612,7 +656,10 @@ fn testbench(
 
 fn field_row(role: &str, sig: Signal, name: &str, v: &arithvec::Word, spec: &Spec) -> [String; 5] {
     let w = spec.signal_width(sig);
-    let value = if matches!(sig, Signal::A | Signal::B | Signal::Result) {
+    let value = if matches!(
+        sig,
+        Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
+    ) {
         format!("{} ({})", Value::decode(v, w, spec.encoding), spec.encoding)
     } else if sig == Signal::Select {
         let code = v.low_u64() as u32;

@@ -488,9 +488,13 @@ fn self_check_counts_one_mismatch_and_fails_the_run() {
             bad_run.describe()
         );
         assert!(
+            // Issue 9 item 22: one line per differing port, "vector 3: PORT = got, expected".
             bad_run
                 .describe()
-                .contains("arithvec-tb: vector 3: outputs"),
+                .lines()
+                .any(|l| l.contains("arithvec-tb: vector 3: ")
+                    && l.contains(" = ")
+                    && l.contains(", expected ")),
             "{sim}: {}",
             bad_run.describe()
         );
@@ -873,7 +877,11 @@ fn vhdl_self_check_on_ghdl() {
         bad.describe()
     );
     assert!(
-        bad.describe().contains("arithvec-tb: vector 5: outputs"),
+        bad.describe()
+            .lines()
+            .any(|l| l.contains("arithvec-tb: vector 5: ")
+                && l.contains(" = ")
+                && l.contains(", expected ")),
         "{}",
         bad.describe()
     );
@@ -952,7 +960,9 @@ fn emitted_files_reference_their_own_names() {
     let file = testbench_file_name(&spec, Hdl::Verilog);
     assert_eq!(file, "tb_pump_delta_v2.v");
     assert!(
-        text.contains(&format!("$ iverilog -g2005 -o sim {file} sub_w.v")),
+        text.contains(&format!(
+            "$ iverilog -g2005 -s tb_pump_delta_v2 -o sim {file} sub_w.v"
+        )),
         "{text}"
     );
 }
@@ -1071,4 +1081,78 @@ fn icarus_self_check_counts_z_outputs_as_mismatches() {
         })
         .collect();
     assert_eq!(run.log, want, "{}", run.describe());
+}
+
+// ---------------------------------------------------------------------------------------
+// Issue 15: the header's commands name the testbench as the only top, so a DUT file that
+// carries its own test module (tests/hdl/shapes/sub_with_test.v, whose extra top calls
+// $finish at time 0) does not end the run before any vector is applied.
+
+/// The commands in the testbench's header comment (`//   $ ...` lines), split into words.
+fn header_commands(text: &str) -> Vec<Vec<String>> {
+    text.lines()
+        .take_while(|l| l.starts_with("//"))
+        .filter_map(|l| l.strip_prefix("//   $ "))
+        .map(|l| l.split_whitespace().map(str::to_string).collect())
+        .collect()
+}
+
+#[test]
+fn issue15_header_commands_run_a_dut_file_with_its_own_test_module() {
+    let spec_text = SUB_SPEC
+        .replace("WIDTH", "16")
+        .replace("module = \"sub_w\"", "module = \"sub_with_test\"");
+    let spec = Spec::parse(&spec_text, "sub.toml").unwrap();
+    let layout = Layout::for_spec(&spec);
+    let (ins, outs) = sub_vectors(16);
+    let options = TestbenchOptions::new(Hdl::Verilog, ins.len() as u64);
+    let text = emit_testbench(&spec, &options).unwrap();
+    assert!(text.contains("\n`timescale 1ns / 1ps\n"), "{text}");
+    assert!(text.contains("need -g2012 in place of"), "{text}");
+    let commands = header_commands(&text);
+    assert_eq!(commands.len(), 4, "{commands:?}");
+    assert!(commands[0]
+        .windows(2)
+        .any(|w| w == ["-s", "tb_pump_delta_v2"]));
+    assert!(commands[2]
+        .windows(2)
+        .any(|w| w == ["--top-module", "tb_pump_delta_v2"]));
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join(testbench_file_name(&spec, Hdl::Verilog)),
+        &text,
+    )
+    .unwrap();
+    std::fs::write(
+        dir.path().join("sub_with_test.v"),
+        include_str!("hdl/shapes/sub_with_test.v"),
+    )
+    .unwrap();
+    std::fs::write(
+        dir.path().join("stimulus.hex"),
+        hex_file(&layout.stimulus, &ins),
+    )
+    .unwrap();
+    let want = expected_log(&layout, &ins, &outs, false);
+    let run = |words: &[String]| {
+        let mut c = Command::new(&words[0]);
+        c.args(&words[1..]).current_dir(dir.path());
+        c.output().unwrap()
+    };
+    for (sim, build, exec) in [("iverilog", 0, 1), ("verilator", 2, 3)] {
+        if !have(sim) {
+            continue;
+        }
+        let _ = std::fs::remove_file(dir.path().join("results.csv"));
+        must(Ok(run(&commands[build])), sim);
+        let out = run(&commands[exec]);
+        let log = std::fs::read_to_string(dir.path().join("results.csv")).unwrap_or_default();
+        let run = Run { output: out, log };
+        assert!(
+            !run.stdout().contains("extra top ran"),
+            "{sim}: {}",
+            run.describe()
+        );
+        assert_ok(&run, &want, sim);
+    }
 }

@@ -12,8 +12,8 @@ use std::path::{Path, PathBuf};
 use std::sync::OnceLock;
 
 use arithvec::{
-    FaultList, LogReader, LogRow, Netlist, Radix, Spec, VectorSet, Word, EXPECTED_HEX,
-    MANIFEST_JSON, STIMULUS_HEX,
+    FaultList, LogReader, LogRow, Manifest, Netlist, Radix, Spec, VectorSet, Word, EXPECTED_HEX,
+    MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 
 /// A scratch directory for the readers that take a directory (the vector set).
@@ -162,62 +162,249 @@ pub fn log(data: &[u8], _scratch: &Scratch) {
     }
 }
 
-/// The manifest reader: the input as `manifest.json` beside the example set's hex files,
-/// read as `arithvec check --vectors` reads a set.
-pub fn manifest(data: &[u8], scratch: &Scratch) {
-    let text = String::from_utf8_lossy(data);
-    let set = &SETS[pick_set(&text)];
-    read_set(
-        scratch,
-        set,
-        data,
-        set.stimulus.as_bytes(),
-        set.expected.as_bytes(),
-    );
+/// Data words per hex file of the small sets the manifest and hex targets read. The example
+/// sets hold hundreds of words (tens of kilobytes per file): writing and hashing those on
+/// every execution made these two targets run at a few hundred executions a second.
+const SMALL_WORDS: usize = 6;
+
+/// `vectors.csv` of the small sets. The set reader only checks its size and SHA-256 against
+/// the manifest (the CSV is for people), so a short placeholder stands in for it.
+const SMALL_CSV: &str = "index,kind\n";
+
+/// An example set cut to its first [`SMALL_WORDS`] words, with a manifest that matches the
+/// cut files (count, sizes, SHA-256s), so a seed reaches the hex parser instead of stopping
+/// at the first hash check.
+pub struct SmallSet {
+    /// The example set's name.
+    pub name: &'static str,
+    /// The cut set's `manifest.json`.
+    pub manifest: String,
+    /// The cut `stimulus.hex`.
+    pub stimulus: String,
+    /// The cut `expected.hex`.
+    pub expected: String,
 }
 
-/// The `$readmemh` reader: the input as the example set's `stimulus.hex` (even length) or
-/// `expected.hex` (odd length) beside its real manifest and other file.
-pub fn hex(data: &[u8], scratch: &Scratch) {
-    let text = String::from_utf8_lossy(data);
-    let set = &SETS[pick_set(&text)];
-    if data.len().is_multiple_of(2) {
-        read_set(
-            scratch,
-            set,
-            set.manifest.as_bytes(),
-            data,
-            set.expected.as_bytes(),
-        );
+/// The first `words` data words of an example set's stimulus (`expected` false) or expected
+/// file, with the comments before them; when the file holds fewer, its words repeat (so a
+/// file of any length can be matched). The files are split into lines once: walking a whole
+/// example file on every execution made the hex target slow.
+fn cut_example(k: usize, expected: bool, words: usize) -> String {
+    struct Split {
+        header: String,
+        data: Vec<&'static str>,
+    }
+    static SPLIT: OnceLock<Vec<[Split; 2]>> = OnceLock::new();
+    let split = SPLIT.get_or_init(|| {
+        let one = |text: &'static str| {
+            let mut header = String::new();
+            let mut data = Vec::new();
+            for line in text.lines() {
+                let t = line.trim();
+                if t.is_empty() || t.starts_with("//") {
+                    if data.is_empty() {
+                        header.push_str(line);
+                        header.push('\n');
+                    }
+                } else {
+                    data.push(line);
+                }
+            }
+            Split { header, data }
+        };
+        SETS.iter()
+            .map(|set| [one(set.stimulus), one(set.expected)])
+            .collect()
+    });
+    let s = &split[k][usize::from(expected)];
+    let mut out = s.header.clone();
+    if !s.data.is_empty() {
+        for j in 0..words {
+            out.push_str(s.data[j % s.data.len()]);
+            out.push('\n');
+        }
+    }
+    out
+}
+
+/// Data words of a `$readmemh` text as the set reader counts them (blank lines and `//`
+/// comments skipped).
+fn count_words(text: &str) -> usize {
+    text.lines()
+        .filter(|l| {
+            let t = l.trim();
+            !t.is_empty() && !t.starts_with("//")
+        })
+        .count()
+}
+
+/// The example set's manifest rewritten for `vectors` words and the given file contents.
+fn manifest_for(set: &ExampleSet, vectors: usize, stimulus: &[u8], expected: &[u8]) -> String {
+    manifest_with(set, vectors, stimulus, expected, true)
+}
+
+/// [`manifest_for`]; without `with_spec` the manifest's copy of the normalised spec is left
+/// out (null): the set reader identifies the spec by `spec_sha256`, and the hex target, whose
+/// input is not the manifest, need not write and parse the copy on every execution.
+fn manifest_with(
+    set: &ExampleSet,
+    vectors: usize,
+    stimulus: &[u8],
+    expected: &[u8],
+    with_spec: bool,
+) -> String {
+    static PARSED: OnceLock<Vec<Manifest>> = OnceLock::new();
+    let parsed = PARSED.get_or_init(|| {
+        SETS.iter()
+            .map(|s| Manifest::from_json(s.manifest, "manifest.json").expect("example manifest"))
+            .collect()
+    });
+    let k = SETS.iter().position(|s| s.name == set.name).unwrap_or(0);
+    let mut m = parsed[k].clone();
+    m.vectors = vectors as u64;
+    for rec in &mut m.files {
+        let bytes: &[u8] = match rec.name.as_str() {
+            VECTORS_CSV => SMALL_CSV.as_bytes(),
+            STIMULUS_HEX => stimulus,
+            EXPECTED_HEX => expected,
+            _ => continue,
+        };
+        rec.bytes = bytes.len() as u64;
+        rec.sha256 = arithvec::sha256_hex(bytes);
+    }
+    if with_spec {
+        serde_json::to_string_pretty(&m).expect("manifest serialises")
     } else {
-        read_set(
-            scratch,
-            set,
-            set.manifest.as_bytes(),
-            set.stimulus.as_bytes(),
-            data,
-        );
+        m.spec = serde_json::Value::Null;
+        serde_json::to_string(&m).expect("manifest serialises")
     }
 }
 
+/// The example sets cut to [`SMALL_WORDS`] words, in [`SETS`] order.
+pub fn small_sets() -> &'static [SmallSet] {
+    static SMALL: OnceLock<Vec<SmallSet>> = OnceLock::new();
+    SMALL.get_or_init(|| {
+        SETS.iter()
+            .enumerate()
+            .map(|(k, set)| {
+                let stimulus = cut_example(k, false, SMALL_WORDS);
+                let expected = cut_example(k, true, SMALL_WORDS);
+                SmallSet {
+                    name: set.name,
+                    manifest: manifest_for(
+                        set,
+                        SMALL_WORDS,
+                        stimulus.as_bytes(),
+                        expected.as_bytes(),
+                    ),
+                    stimulus,
+                    expected,
+                }
+            })
+            .collect()
+    })
+}
+
+/// The manifest reader: the input as `manifest.json` beside the small set's files (see
+/// [`small_sets`]), read as `arithvec check --vectors` reads a set.
+pub fn manifest(data: &[u8], scratch: &Scratch) {
+    let _ = manifest_reads(data, scratch);
+}
+
+/// [`manifest`], telling whether the set was read (a seed must be).
+pub fn manifest_reads(data: &[u8], scratch: &Scratch) -> bool {
+    let text = String::from_utf8_lossy(data);
+    let k = pick_set(&text);
+    let small = &small_sets()[k];
+    read_set(
+        scratch,
+        k,
+        data,
+        small.stimulus.as_bytes(),
+        small.expected.as_bytes(),
+    )
+}
+
+/// Which hex file an input stands for: an arithvec header names it, else the length decides
+/// (so mutated inputs are tried as both).
+fn is_stimulus(text: &str, len: usize) -> bool {
+    if text.contains("arithvec expected") {
+        false
+    } else if text.contains("arithvec stimulus") {
+        true
+    } else {
+        len.is_multiple_of(2)
+    }
+}
+
+/// Most words the other hex file is given to match the input's count (a larger input is
+/// still read, and refused on the count).
+const MAX_MATCHED_WORDS: usize = 1 << 16;
+
+/// The `$readmemh` reader: the input as the example set's `stimulus.hex` or `expected.hex`,
+/// beside a manifest written for it (its size, SHA-256 and word count) and the other file cut
+/// or repeated to the same count, so the words themselves are parsed.
+pub fn hex(data: &[u8], scratch: &Scratch) {
+    let _ = hex_reads(data, scratch);
+}
+
+/// [`hex`], telling whether the set was read (a seed must be).
+pub fn hex_reads(data: &[u8], scratch: &Scratch) -> bool {
+    let text = String::from_utf8_lossy(data);
+    let k = pick_set(&text);
+    let set = &SETS[k];
+    let words = count_words(&text).min(MAX_MATCHED_WORDS);
+    if is_stimulus(&text, data.len()) {
+        let expected = cut_example(k, true, words);
+        let manifest = manifest_with(set, words, data, expected.as_bytes(), false);
+        read_set(scratch, k, manifest.as_bytes(), data, expected.as_bytes())
+    } else {
+        let stimulus = cut_example(k, false, words);
+        let manifest = manifest_with(set, words, stimulus.as_bytes(), data, false);
+        read_set(scratch, k, manifest.as_bytes(), stimulus.as_bytes(), data)
+    }
+}
+
+/// Writes the set's files into the scratch directory and reads it as the command line does;
+/// true when the set was read.
 fn read_set(
     scratch: &Scratch,
-    set: &ExampleSet,
+    k: usize,
     manifest: &[u8],
     stimulus: &[u8],
     expected: &[u8],
-) {
+) -> bool {
     let dir = scratch.path();
     for (name, bytes) in [
+        (VECTORS_CSV, SMALL_CSV.as_bytes()),
         (MANIFEST_JSON, manifest),
         (STIMULUS_HEX, stimulus),
         (EXPECTED_HEX, expected),
     ] {
         std::fs::write(dir.join(name), bytes).expect("scratch file");
     }
-    let spec = &units()[SETS.iter().position(|s| s.name == set.name).unwrap_or(0)];
-    let _ = arithvec::read_manifest(dir);
-    let _ = VectorSet::read(dir, spec);
+    // VectorSet::read reads and verifies the manifest first (arithvec::read_manifest).
+    VectorSet::read(dir, &units()[k]).is_ok()
+}
+
+/// Writes the small sets (see [`small_sets`]) as seeds: `DIR/manifest/NAME.json`,
+/// `DIR/hex/NAME.stimulus.hex` and `DIR/hex/NAME.expected.hex`.
+pub fn write_set_seeds(dir: &Path) -> std::io::Result<()> {
+    std::fs::create_dir_all(dir.join("manifest"))?;
+    std::fs::create_dir_all(dir.join("hex"))?;
+    for small in small_sets() {
+        let name = small.name;
+        std::fs::write(dir.join(format!("manifest/{name}.json")), &small.manifest)?;
+        std::fs::write(
+            dir.join(format!("hex/{name}.stimulus.hex")),
+            &small.stimulus,
+        )?;
+        std::fs::write(
+            dir.join(format!("hex/{name}.expected.hex")),
+            &small.expected,
+        )?;
+    }
+    Ok(())
 }
 
 /// The Yosys JSON reader: every module of the file (at most eight), and for a netlist that

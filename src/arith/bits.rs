@@ -37,6 +37,33 @@ pub(crate) trait Bits: Copy + Eq + std::fmt::Debug {
     fn limb(&self, i: usize) -> u64;
     /// The product at full capacity (wrapping).
     fn mul(self, o: Self) -> Self;
+    /// Quotient and remainder of non-negative `self` by positive `o` (restoring division,
+    /// one quotient bit per step from the top; `o` must not be zero).
+    fn udivrem(self, o: Self) -> (Self, Self) {
+        let mut q = Self::zero();
+        let mut r = Self::zero();
+        let leading_zeros = self.not().leading_ones_from_top();
+        for i in (0..Self::CAPACITY - leading_zeros).rev() {
+            r = r.shl(1).or(Self::from_bool(self.bit(i)));
+            if !r.slt(&o) {
+                r = r.sub(o);
+                q = q.or(Self::single_bit(i));
+            }
+        }
+        (q, r)
+    }
+    /// The number of leading one bits (from the top of the capacity).
+    fn leading_ones_from_top(&self) -> u32 {
+        let mut n = 0;
+        for l in (0..Self::CAPACITY.div_ceil(64) as usize).rev() {
+            let limb = self.limb(l);
+            n += limb.leading_ones();
+            if limb != u64::MAX {
+                break;
+            }
+        }
+        n
+    }
 
     fn neg(self) -> Self {
         Self::zero().sub(self)
@@ -152,6 +179,10 @@ impl Bits for u128 {
     #[inline]
     fn mul(self, o: Self) -> Self {
         self.wrapping_mul(o)
+    }
+    #[inline]
+    fn udivrem(self, o: Self) -> (Self, Self) {
+        (self / o, self % o)
     }
     #[inline]
     fn limb(&self, i: usize) -> u64 {

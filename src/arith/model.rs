@@ -54,6 +54,13 @@ pub struct Outputs {
     pub equal: bool,
     /// Compare: a > b.
     pub greater: bool,
+    /// Division: the remainder (the quotient is `result`).
+    pub remainder: Word,
+    /// Division: the divisor is zero.
+    pub div_by_zero: bool,
+    /// Division by zero under `div_by_zero = "dont_care"`: the quotient and remainder are
+    /// not compared for this vector (every other output is).
+    pub dont_care: bool,
 }
 
 impl Inputs {
@@ -85,6 +92,13 @@ impl Inputs {
 }
 
 impl Outputs {
+    /// False for an output this vector leaves unspecified (the quotient and remainder of a
+    /// division by zero under `div_by_zero = "dont_care"`), which no checker compares.
+    #[inline]
+    pub fn is_specified(&self, signal: Signal) -> bool {
+        !(self.dont_care && matches!(signal, Signal::Quotient | Signal::Remainder))
+    }
+
     /// The low 64 bits of an output signal's value, without building a word.
     #[inline]
     pub(crate) fn get_low(&self, signal: Signal) -> u64 {
@@ -97,6 +111,9 @@ impl Outputs {
             Signal::Less => self.less as u64,
             Signal::Equal => self.equal as u64,
             Signal::Greater => self.greater as u64,
+            Signal::Quotient => self.result.low_u64(),
+            Signal::Remainder => self.remainder.low_u64(),
+            Signal::DivByZero => self.div_by_zero as u64,
             _ => 0,
         }
     }
@@ -113,6 +130,9 @@ impl Outputs {
             Signal::Less => flag(self.less),
             Signal::Equal => flag(self.equal),
             Signal::Greater => flag(self.greater),
+            Signal::Quotient => self.result,
+            Signal::Remainder => self.remainder,
+            Signal::DivByZero => flag(self.div_by_zero),
             _ => Word::ZERO,
         }
     }
@@ -129,6 +149,9 @@ impl Outputs {
             Signal::Less => self.less = b,
             Signal::Equal => self.equal = b,
             Signal::Greater => self.greater = b,
+            Signal::Quotient => self.result = value,
+            Signal::Remainder => self.remainder = value,
+            Signal::DivByZero => self.div_by_zero = b,
             _ => {}
         }
     }
@@ -196,6 +219,8 @@ pub(crate) struct Trace<B> {
     pub result: B,
     pub path: Path<B>,
     pub outputs_flags: Flags,
+    /// Division: the remainder pattern (zero for the other operations).
+    pub remainder: B,
 }
 
 /// The one-bit outputs.
@@ -208,6 +233,9 @@ pub(crate) struct Flags {
     pub less: bool,
     pub equal: bool,
     pub greater: bool,
+    pub div_by_zero: bool,
+    /// See [`Outputs::dont_care`].
+    pub dont_care: bool,
 }
 
 /// Where one input of a ripple datapath comes from.
@@ -421,6 +449,9 @@ impl Model {
                 | Operation::Rol
                 | Operation::Ror
                 | Operation::Mul
+                | Operation::Div
+                | Operation::Rem
+                | Operation::DivRem
                 | Operation::Select,
             ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,
@@ -496,20 +527,7 @@ impl Model {
 
     pub(crate) fn outputs_of<B: Bits>(&self, t: &Trace<B>) -> Outputs {
         let f = t.outputs_flags;
-        if !self.active_low.is_empty() {
-            let low = |s: Signal| self.active_low.contains(s);
-            return Outputs {
-                result: t.result.to_word(),
-                carry_out: f.carry_out != low(Signal::CarryOut),
-                overflow: f.overflow != low(Signal::Overflow),
-                zero: f.zero != low(Signal::Zero),
-                negative: f.negative != low(Signal::Negative),
-                less: f.less != low(Signal::Less),
-                equal: f.equal != low(Signal::Equal),
-                greater: f.greater != low(Signal::Greater),
-            };
-        }
-        Outputs {
+        let mut outputs = Outputs {
             result: t.result.to_word(),
             carry_out: f.carry_out,
             overflow: f.overflow,
@@ -518,7 +536,16 @@ impl Model {
             less: f.less,
             equal: f.equal,
             greater: f.greater,
+            remainder: t.remainder.to_word(),
+            div_by_zero: f.div_by_zero,
+            dont_care: f.dont_care,
+        };
+        // `conventions.active_low`: these one-bit flags are inverted on the way out.
+        for s in self.active_low.signals() {
+            let v = outputs.get(s).bit(0);
+            outputs.set(s, Word::from_u64(!v as u64));
         }
+        outputs
     }
 
     fn zero_flag_of<B: Bits>(&self, result: B) -> bool {
@@ -560,8 +587,11 @@ impl Model {
                     overflow: r.overflow,
                     zero: r.zero,
                     negative: r.negative,
+                    div_by_zero: r.div_by_zero,
+                    dont_care: r.dont_care,
                     ..Flags::default()
                 },
+                remainder: r.remainder,
             };
         }
         let w = self.width;
@@ -615,6 +645,7 @@ impl Model {
                 result: B::zero(),
                 path: Path::None,
                 outputs_flags: flags,
+                remainder: B::zero(),
             };
         }
 
@@ -762,6 +793,7 @@ impl Model {
             result,
             path,
             outputs_flags: flags,
+            remainder: B::zero(),
         }
     }
 

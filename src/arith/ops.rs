@@ -8,7 +8,8 @@
 use crate::arith::bits::Bits;
 use crate::arith::encoding::{decode, is_negative_zero, representable, sign_bit};
 use crate::spec::{
-    Encoding, LargeAmount, NegativeZero, OpOptions, Operation, ResultPart, Signedness, ZeroFlag,
+    DivByZero, Encoding, LargeAmount, NegativeZero, OpOptions, Operation, ResultPart, Rounding,
+    Signedness, ZeroFlag,
 };
 
 /// What one evaluation of an extended operation produced.
@@ -18,14 +19,21 @@ pub(crate) struct OpResult<B> {
     pub va: B,
     /// The amount (shifts) or the decoded b (mul).
     pub vb: B,
-    /// Shifts: the effective shift count; mul: the exact product.
+    /// Shifts: the effective shift count; mul: the exact product; division: the exact
+    /// quotient (zero when dividing by zero).
     pub truth: B,
-    /// The result pattern (result width bits).
+    /// The result pattern (result width bits; division: the quotient).
     pub result: B,
     pub carry_out: bool,
     pub overflow: bool,
     pub zero: bool,
     pub negative: bool,
+    /// Division: the remainder pattern (zero for the other operations).
+    pub remainder: B,
+    /// Division: the divisor is zero.
+    pub div_by_zero: bool,
+    /// Division by zero under `div_by_zero = "dont_care"`.
+    pub dont_care: bool,
 }
 
 /// The settings of one extended unit.
@@ -69,6 +77,8 @@ impl OpUnit {
         if self.operation.is_shift() {
             let s = b.mask(self.amount_width().min(64)).limb(0);
             self.shift(a, s)
+        } else if self.operation.is_division() {
+            self.divide(a, b.mask(w))
         } else {
             self.mul(a, b.mask(w))
         }
@@ -132,6 +142,9 @@ impl OpUnit {
             overflow: false,
             zero: self.zero_of(result, w),
             negative: sign_bit(result, w, self.encoding),
+            remainder: B::zero(),
+            div_by_zero: false,
+            dont_care: false,
         }
     }
 
@@ -179,7 +192,47 @@ impl OpUnit {
             overflow,
             zero: self.zero_of(result, r),
             negative: sign_bit(result, r, enc),
+            remainder: B::zero(),
+            div_by_zero: false,
+            dont_care: false,
         }
+    }
+
+    /// div, rem, divrem: the quotient, remainder and flags of dividend `a` by divisor `b`
+    /// (DEVELOPERS.md, "Golden model rules", division). The magnitudes are divided, the
+    /// quotient takes the sign of a xor b and the remainder the sign of a (truncate); floor
+    /// moves a non-zero remainder of the other sign over by one divisor. Only the
+    /// two's-complement min / -1 overflows: its quotient 2^(N-1) wraps to min, remainder 0.
+    fn divide<B: Bits>(&self, a: B, b: B) -> OpResult<B> {
+        let (w, enc) = (self.width, self.encoding);
+        let va = decode(a, w, enc);
+        let vb = decode(b, w, enc);
+        let flags =
+            |truth: B, result: B, remainder: B, div_by_zero, dont_care, overflow| OpResult {
+                va,
+                vb,
+                truth,
+                result,
+                carry_out: false,
+                overflow,
+                zero: false,
+                negative: false,
+                remainder,
+                div_by_zero,
+                dont_care,
+            };
+        if vb.is_zero() {
+            // The files still need a value: the dont_care rows carry the "zero" convention's.
+            let q = match self.options.div_by_zero {
+                Some(DivByZero::Zero) | Some(DivByZero::DontCare) => B::zero(),
+                _ => B::low_mask(w),
+            };
+            let dont_care = self.options.div_by_zero == Some(DivByZero::DontCare);
+            return flags(B::zero(), q, a, true, dont_care, false);
+        }
+        let (q, r) = divide_values(va, vb, self.options.rounding);
+        let overflow = !representable(q, w, enc);
+        flags(q, q.mask(w), r.mask(w), false, false, overflow)
     }
 
     fn fix_zero<B: Bits>(&self, result: B, width: u32) -> B {
@@ -198,6 +251,21 @@ impl OpUnit {
             ZeroFlag::Bits => result.is_zero(),
         }
     }
+}
+
+/// The quotient and remainder of values `va` by non-zero `vb` (sign-extended at the full
+/// capacity), rounded as `rounding` says (None: unsigned, where both roundings agree).
+pub(crate) fn divide_values<B: Bits>(va: B, vb: B, rounding: Option<Rounding>) -> (B, B) {
+    let (na, nb) = (va.is_negative(), vb.is_negative());
+    let abs = |v: B, n: bool| if n { v.neg() } else { v };
+    let (mq, mr) = abs(va, na).udivrem(abs(vb, nb));
+    let mut q = abs(mq, na != nb);
+    let mut r = abs(mr, na);
+    if rounding == Some(Rounding::Floor) && !r.is_zero() && na != nb {
+        q = q.sub(B::one());
+        r = r.add(vb);
+    }
+    (q, r)
 }
 
 /// `v` as a `B`.

@@ -73,6 +73,7 @@ impl SelectModel {
                 subtracting: false,
                 truth: B::zero(),
                 result: B::zero(),
+                remainder: B::zero(),
                 path: Path::None,
                 outputs_flags: Flags::default(),
             },

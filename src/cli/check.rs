@@ -163,6 +163,27 @@ fn open_vectors_unverified(dir: &Path, spec: &Spec) -> Result<(Manifest, Generat
             .field("version"),
         ));
     }
+    if let Some(s) = &manifest.selection {
+        let positions = s.indices.len() as u64 + s.top_up.len() as u64;
+        if positions != manifest.vectors {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    format!(
+                        "the selection lists {} source indices and {} top-up vectors but the \
+                         set holds {} vectors",
+                        s.indices.len(),
+                        s.top_up.len(),
+                        manifest.vectors
+                    ),
+                )
+                .field("selection"),
+            ));
+        }
+        for (k, t) in s.top_up.iter().enumerate() {
+            t.operands(spec, &mpath, k)?;
+        }
+    }
     // A selected (compacted) set regenerates its source set and maps positions to indices.
     let (random, directed) = match &manifest.selection {
         Some(s) => (s.source_random, s.source_directed),
@@ -194,7 +215,39 @@ fn open_vectors_unverified(dir: &Path, spec: &Spec) -> Result<(Manifest, Generat
             ))
         }
     };
-    let generator = Generator::new(&set_spec, Some(random), Some(manifest.seed));
+    let mut generator = Generator::new(&set_spec, Some(random), Some(manifest.seed));
+    if let Some(imported) = &manifest.imported {
+        // Imported vectors are read from the set's own stimulus.hex; a set made only of them
+        // (`arithvec import`) has no directed or random part.
+        if manifest.selection.is_some() || manifest.shard.is_some() {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    "a set with imported vectors is never a shard or a selection; the manifest \
+                     is damaged",
+                )
+                .field("imported"),
+            ));
+        }
+        if imported.first_index == 0 {
+            generator = generator.without_generated();
+        }
+        let rows = arithvec::read_imported(dir, spec, &manifest)?;
+        generator = generator.with_appended(rows);
+        if generator.directed().len() as u64 + generator.random_count() != imported.first_index
+            || generator.total() != manifest.total
+        {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    "the imported vectors' position does not match the set's directed and \
+                     random counts",
+                )
+                .field("imported.first_index"),
+            ));
+        }
+        return Ok((manifest, generator));
+    }
     if generator.directed().len() as u64 != directed {
         return Err(Error::problem(
             Problem::new(

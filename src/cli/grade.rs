@@ -8,17 +8,20 @@ use clap::{Args, ValueEnum};
 use serde::Serialize;
 
 use arithvec::{
-    render_grade_html, write_selection, BuiltinModel, CompactedSet, Error, FaultEntry, FaultReport,
-    GradeFault, GradeOutcome, GradeSummary, Grader, Netlist, Problem, VectorSet,
+    render_grade_html, write_selection, write_topped_up, BuiltinModel, CompactedSet, Error,
+    FaultEntry, FaultReport, GradeFault, GradeOutcome, GradeSummary, Grader, Netlist,
+    NetlistReference, Problem, Redundancy, TopUpReport, TopUpStatus, VectorSet,
 };
 
 use crate::cli::check::open_vectors;
 use crate::cli::util::{out, parse_percent, read_spec, stdout_error, write_output, Outcome};
 
-pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n\n\
+pub const GRADE_HELP: &str = "Examples:\n  yosys -q -p \"read_verilog my_sub.v; synth -flatten -top my_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json my_sub.json\"\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --compact --out vec-min/\n  arithvec grade unit.toml --vectors vec/ --builtin\n  arithvec grade unit.toml --vectors vec/ --netlist my_sub.json --top-up --out vec-topped/\n\n\
 The netlist's module is [dut] module unless --module says otherwise; its ports are matched by \
 name to the spec's [ports]. The fault-free netlist must reproduce the golden model on every \
-vector, or grading stops (exit 1). Exit 3 when fault coverage is below --require.\n\n\
+vector, or grading stops (exit 1); --reference netlist grades against the netlist's own \
+fault-free responses instead (for a unit with a known bug), and every report says so and \
+lists where it disagrees with the model. Exit 3 when fault coverage is below --require.\n\n\
 Fault coverage, like class coverage, is evidence, not proof; sign-off follows your team's own \
 verification plan.";
 
@@ -67,9 +70,17 @@ pub struct GradeArgs {
     #[arg(long, value_name = "PCT", value_parser = parse_percent)]
     require: Option<f64>,
     /// Write the smallest subset found that keeps class and fault coverage to --out.
-    #[arg(long, requires = "out")]
+    #[arg(long, requires = "out", conflicts_with = "top_up")]
     compact: bool,
-    /// Output directory for --compact.
+    /// For every fault the set leaves undetected, ask a SAT solver for a vector that detects
+    /// it or a proof that none exists; with --out, write the set plus the new vectors there.
+    #[arg(long)]
+    top_up: bool,
+    /// Conflicts the SAT solver may spend on one fault before --top-up calls it aborted.
+    #[arg(long, value_name = "N", default_value_t = 20_000, requires = "top_up",
+          value_parser = clap::value_parser!(u64).range(1..))]
+    conflicts: u64,
+    /// Output directory for --compact or --top-up.
     #[arg(long)]
     out: Option<PathBuf>,
     #[command(flatten)]
@@ -77,15 +88,85 @@ pub struct GradeArgs {
     /// Write a self-contained HTML report here.
     #[arg(long, value_name = "FILE")]
     html: Option<PathBuf>,
+    /// What a faulty netlist's outputs are compared with: `golden` (the fault-free netlist
+    /// must reproduce the golden model on every vector, else grading stops with exit 1) or
+    /// `netlist` (its own fault-free responses, to grade a unit with a known functional bug;
+    /// every report says so and lists the vectors where it disagrees with the model).
+    #[arg(long, value_enum, default_value_t = Reference::Golden)]
+    reference: Reference,
 }
+
+/// The reference responses of `grade --reference`.
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+pub enum Reference {
+    /// The golden model (the default).
+    Golden,
+    /// The netlist's own fault-free responses.
+    Netlist,
+}
+
+/// Disagreements of the fault-free netlist with the golden model listed in reports.
+const LISTED_DISAGREEMENTS: usize = 50;
 
 /// The redundancy verdict of a fault in words, as the table and the HTML page show it.
 fn redundancy_words(f: &FaultEntry) -> String {
-    serde_json::to_value(&f.redundancy)
-        .ok()
-        .and_then(|v| v.get("status").and_then(|s| s.as_str()).map(str::to_string))
-        .unwrap_or_default()
-        .replace('_', " ")
+    match &f.redundancy {
+        Redundancy::Proven { support_bits } => {
+            format!("proven redundant ({support_bits} input bits enumerated)")
+        }
+        Redundancy::Testable { .. } => "testable: the set misses it".to_string(),
+        Redundancy::NotProven {
+            support_bits,
+            limit,
+        } => format!(
+            "not proven: {support_bits} input {} in its support, over the limit of {limit}",
+            if *support_bits == 1 { "bit" } else { "bits" }
+        ),
+    }
+}
+
+/// The output bits a fault can be seen at, with runs of one port's bits shortened
+/// (`y[0..3], co`).
+fn observed_words(labels: &[String]) -> String {
+    if labels.is_empty() {
+        return "none".to_string();
+    }
+    let mut parts: Vec<String> = Vec::new();
+    // (port, first bit, last bit) of the run being built.
+    let mut run: Option<(String, u64, u64)> = None;
+    let flush = |run: &mut Option<(String, u64, u64)>, parts: &mut Vec<String>| {
+        if let Some((port, lo, hi)) = run.take() {
+            parts.push(if lo == hi {
+                format!("{port}[{lo}]")
+            } else {
+                format!("{port}[{lo}..{hi}]")
+            });
+        }
+    };
+    for label in labels {
+        let indexed = label
+            .strip_suffix(']')
+            .and_then(|l| l.rsplit_once('['))
+            .and_then(|(port, bit)| bit.parse::<u64>().ok().map(|b| (port.to_string(), b)));
+        match indexed {
+            Some((port, bit)) => {
+                if let Some((p, _, hi)) = &mut run {
+                    if *p == port && *hi + 1 == bit {
+                        *hi = bit;
+                        continue;
+                    }
+                }
+                flush(&mut run, &mut parts);
+                run = Some((port, bit, bit));
+            }
+            None => {
+                flush(&mut run, &mut parts);
+                parts.push(label.clone());
+            }
+        }
+    }
+    flush(&mut run, &mut parts);
+    parts.join(", ")
 }
 
 /// The figures the HTML page shows, from the fault report and the compaction.
@@ -124,6 +205,7 @@ fn grade_summary(
         ungraded_gates: report.ungraded_gates,
         require: args.require,
         compacted,
+        netlist_reference: None,
     }
 }
 
@@ -185,16 +267,35 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
     };
     let mut grader = Grader::new(&spec, &netlist)?;
     grader.set_threads(args.threads.resolve()?);
-    let report = match grader.grade(&set.inputs, &set.expected)? {
+    let index_of = |position: usize| {
+        manifest
+            .selection
+            .as_ref()
+            .and_then(|s| s.indices.get(position).copied())
+            .unwrap_or(manifest.first_index + position as u64)
+    };
+    let mut netlist_reference = None;
+    let outcome = match args.reference {
+        Reference::Golden => grader.grade(&set.inputs, &set.expected)?,
+        Reference::Netlist => {
+            let (count, listed) = grader.fault_free_disagreements(
+                &set.inputs,
+                &set.expected,
+                LISTED_DISAGREEMENTS,
+            )?;
+            netlist_reference = Some(NetlistReference {
+                disagreeing_vectors: count,
+                listed: listed
+                    .into_iter()
+                    .map(|m| (index_of(m.position), m.port, m.expected, m.got))
+                    .collect(),
+            });
+            GradeOutcome::Graded(grader.grade_against_netlist(&set.inputs)?)
+        }
+    };
+    let report = match outcome {
         GradeOutcome::Graded(r) => r,
         GradeOutcome::NotTheSpec(bad) => {
-            let index_of = |position: usize| {
-                manifest
-                    .selection
-                    .as_ref()
-                    .and_then(|s| s.indices.get(position).copied())
-                    .unwrap_or(manifest.first_index + position as u64)
-            };
             let mut o = out();
             if args.format == GradeFormat::Json {
                 // One document on stdout, as for a graded netlist: a consumer parsing it sees
@@ -246,10 +347,79 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             return Ok(Outcome::Mismatch);
         }
     };
+    if args.out.is_some() && !args.compact && !args.top_up {
+        return Err(Error::problem(
+            Problem::new("--out", "--out needs --compact or --top-up").field("out"),
+        ));
+    }
     let short = args.require.is_some_and(|r| report.coverage_percent < r);
+    let top_up = if args.top_up {
+        let t = grader.top_up(&set.inputs, &report, args.conflicts)?;
+        if !t.not_the_spec.is_empty() {
+            let mut o = out();
+            writeln!(
+                o,
+                "the fault-free netlist (module {}) disagrees with the golden model on a top-up \
+                 vector, so it is not the unit the spec describes; nothing was written:",
+                netlist.module()
+            )
+            .map_err(stdout_error)?;
+            for m in &t.not_the_spec {
+                let v = &t.added[m.position];
+                writeln!(
+                    o,
+                    "  top-up vector {} ({}): port {} expected 0x{} got 0x{}",
+                    m.position,
+                    v.inputs
+                        .iter()
+                        .map(|(k, x)| format!("{k}=0x{x}"))
+                        .collect::<Vec<_>>()
+                        .join(" "),
+                    m.port,
+                    m.expected,
+                    m.got
+                )
+                .map_err(stdout_error)?;
+            }
+            o.flush().map_err(stdout_error)?;
+            return Ok(Outcome::Mismatch);
+        }
+        if let Some(dir) = &args.out {
+            let (indices, mut prior) = match &manifest.selection {
+                Some(s) => (s.indices.clone(), s.top_up.clone()),
+                None => (
+                    (0..set.inputs.len() as u64)
+                        .map(|p| manifest.first_index + p)
+                        .collect(),
+                    Vec::new(),
+                ),
+            };
+            prior.extend(t.added.iter().cloned());
+            let _new_dir = crate::cli::signals::guard_new_dir(dir);
+            let _temporaries = crate::cli::signals::guard_vector_set(dir);
+            write_topped_up(&generator, &spec, dir, &indices, &prior)?;
+        }
+        Some(t)
+    } else {
+        None
+    };
     // Compaction runs before anything is printed so the JSON document can hold its figures.
     let compaction = if args.compact {
         let dir = args.out.as_ref().expect("clap requires --out");
+        if manifest
+            .selection
+            .as_ref()
+            .is_some_and(|s| !s.top_up.is_empty())
+        {
+            return Err(Error::problem(
+                Problem::new(
+                    args.vectors.display().to_string(),
+                    "this set holds top-up vectors; compact the set it was topped up from, \
+                     then top up the compacted set",
+                )
+                .field("compact"),
+            ));
+        }
         let chosen = grader.compact(&generator, &set.inputs)?;
         let source: Vec<u64> = chosen
             .iter()
@@ -271,13 +441,74 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         None
     };
     let mut o = out();
+    if let Some(r) = &netlist_reference {
+        // Loud on stderr whatever the format, so a log of the run shows it too.
+        eprintln!(
+            "warning: graded against the netlist's own fault-free responses (--reference \
+             netlist), not the golden model; the fault-free netlist disagrees with the model \
+             on {} of {} vectors",
+            r.disagreeing_vectors,
+            set.inputs.len()
+        );
+    }
     if args.format == GradeFormat::Json {
         let mut doc = serde_json::to_value(&report).expect("report serialises");
+        if let Some(map) = doc.as_object_mut() {
+            map.insert(
+                "reference".into(),
+                match args.reference {
+                    Reference::Golden => "golden",
+                    Reference::Netlist => "netlist",
+                }
+                .into(),
+            );
+            if let Some(r) = &netlist_reference {
+                let listed: Vec<serde_json::Value> = r
+                    .listed
+                    .iter()
+                    .map(|(index, port, expected, got)| {
+                        serde_json::json!({
+                            "index": index,
+                            "port": port,
+                            "expected": expected,
+                            "got": got,
+                        })
+                    })
+                    .collect();
+                map.insert(
+                    "golden_disagreements".into(),
+                    serde_json::json!({
+                        "note": "graded against the netlist's own fault-free responses, not the \
+                                 golden model; these vectors show where the netlist disagrees \
+                                 with the model",
+                        "vectors": r.disagreeing_vectors,
+                        "listed": listed,
+                    }),
+                );
+            }
+        }
         if let (Some(c), Some(map)) = (&compaction, doc.as_object_mut()) {
             map.insert(
                 "compaction".into(),
                 serde_json::to_value(c).expect("compaction serialises"),
             );
+        }
+        if let (Some(t), Some(map)) = (&top_up, doc.as_object_mut()) {
+            let mut v = serde_json::to_value(t).expect("top-up serialises");
+            if let Some(m) = v.as_object_mut() {
+                m.insert("solver".into(), "batsat (CDCL)".into());
+                m.insert(
+                    "out".into(),
+                    args.out
+                        .as_ref()
+                        .map_or(serde_json::Value::Null, |d| d.display().to_string().into()),
+                );
+                m.insert(
+                    "added_vectors".into(),
+                    serde_json::to_value(&t.added).expect("vectors serialise"),
+                );
+            }
+            map.insert("top_up".into(), v);
         }
         let text = serde_json::to_string_pretty(&doc).expect("report serialises");
         writeln!(o, "{text}").map_err(stdout_error)?;
@@ -291,6 +522,38 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             report.redundant.len().to_string(),
             format!("{:.2}%", report.coverage_percent),
         ]];
+        if let Some(r) = &netlist_reference {
+            writeln!(
+                o,
+                "*** REFERENCE: THE NETLIST'S OWN FAULT-FREE RESPONSES, NOT THE GOLDEN MODEL \
+                 (--reference netlist) ***"
+            )
+            .map_err(stdout_error)?;
+            if r.disagreeing_vectors == 0 {
+                writeln!(
+                    o,
+                    "the fault-free netlist agrees with the golden model on all {} vectors",
+                    set.inputs.len()
+                )
+                .map_err(stdout_error)?;
+            } else {
+                writeln!(
+                    o,
+                    "the fault-free netlist disagrees with the golden model on {} of {} vectors \
+                     (it does not implement the spec); first disagreements:",
+                    r.disagreeing_vectors,
+                    set.inputs.len()
+                )
+                .map_err(stdout_error)?;
+                for (index, port, want, got) in &r.listed {
+                    writeln!(
+                        o,
+                        "  vector {index}: port {port} golden 0x{want} netlist 0x{got}"
+                    )
+                    .map_err(stdout_error)?;
+                }
+            }
+        }
         writeln!(
             o,
             "single stuck-at faults of module {} ({} vectors of unit {})",
@@ -342,7 +605,7 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             .map_err(stdout_error)?;
         }
         if !report.undetected.is_empty() {
-            let rows: Vec<[String; 5]> = report
+            let rows: Vec<[String; 6]> = report
                 .undetected
                 .iter()
                 .take(50)
@@ -355,6 +618,7 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                             Some(c) => format!("{c} ({})", f.driver_type),
                             None => f.driver_type.clone(),
                         },
+                        observed_words(&f.observed_at),
                         redundancy_words(f),
                     ]
                 })
@@ -364,7 +628,14 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
                 o,
                 "{}",
                 crate::cli::util::table(
-                    &["net", "fault", "site", "driven by", "redundancy"],
+                    &[
+                        "net",
+                        "fault",
+                        "site",
+                        "driven by",
+                        "observable at",
+                        "redundancy"
+                    ],
                     &rows
                 )
             )
@@ -385,6 +656,9 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         )
         .map_err(stdout_error)?;
     }
+    if let (Some(t), false) = (&top_up, quiet || args.format == GradeFormat::Json) {
+        write_top_up_text(&mut o, t, args.out.as_deref())?;
+    }
     if let Some(c) = &compaction {
         if !quiet && args.format != GradeFormat::Json {
             writeln!(
@@ -401,7 +675,8 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         dir: c.out.clone(),
     });
     if let Some(path) = &args.html {
-        let summary = grade_summary(&report, &args, manifest.seed, compacted);
+        let mut summary = grade_summary(&report, &args, manifest.seed, compacted);
+        summary.netlist_reference = netlist_reference;
         write_output(path, render_grade_html(&spec, &summary).as_bytes())?;
     }
     o.flush().map_err(stdout_error)?;
@@ -410,4 +685,110 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
     } else {
         Outcome::Success
     })
+}
+
+/// The text report of `--top-up`.
+fn write_top_up_text(
+    o: &mut impl Write,
+    t: &TopUpReport,
+    out_dir: Option<&std::path::Path>,
+) -> Result<(), Error> {
+    writeln!(
+        o,
+        "test top-up (SAT fault miter per undetected fault, at most {} conflicts each):",
+        t.conflict_budget
+    )
+    .map_err(stdout_error)?;
+    let rows = vec![[
+        format!("{} + {}", t.vectors_before, t.vectors_added),
+        t.collapsed.to_string(),
+        format!("{} (was {})", t.detected, t.detected_before),
+        format!(
+            "{} ({} exhaustive, {} SAT)",
+            t.proven_redundant, t.proven_redundant_exhaustive, t.proven_redundant_sat
+        ),
+        t.aborted.to_string(),
+        format!("{:.2}%", t.coverage_percent),
+        format!("{:.2}%", t.testable_coverage_percent),
+    ]];
+    let table = crate::cli::util::table(
+        &[
+            "vectors",
+            "collapsed",
+            "detected",
+            "proven redundant",
+            "aborted",
+            "coverage",
+            "testable coverage",
+        ],
+        &rows,
+    );
+    writeln!(o, "{table}").map_err(stdout_error)?;
+    let rows: Vec<[String; 4]> = t
+        .faults
+        .iter()
+        .take(50)
+        .map(|f| {
+            let outcome = match &f.top_up {
+                TopUpStatus::Detected { vector, targeted } => format!(
+                    "detected by top-up vector {vector}{}",
+                    if *targeted {
+                        ""
+                    } else {
+                        " (made for another fault)"
+                    }
+                ),
+                TopUpStatus::ProvenRedundant { method } => {
+                    format!(
+                        "proven redundant ({})",
+                        method.split(':').next().unwrap_or(method)
+                    )
+                }
+                TopUpStatus::Aborted { conflicts, .. } => {
+                    format!("aborted after {conflicts} conflicts: nothing claimed")
+                }
+            };
+            [
+                f.fault.net.clone(),
+                format!("stuck-at-{}", f.fault.stuck_at),
+                f.fault.site.clone(),
+                outcome,
+            ]
+        })
+        .collect();
+    if !rows.is_empty() {
+        writeln!(
+            o,
+            "{}",
+            crate::cli::util::table(&["net", "fault", "site", "top-up"], &rows)
+        )
+        .map_err(stdout_error)?;
+        if t.faults.len() > 50 {
+            writeln!(
+                o,
+                "... and {} more (see --format json)",
+                t.faults.len() - 50
+            )
+            .map_err(stdout_error)?;
+        }
+    }
+    writeln!(
+        o,
+        "testable coverage is detected / (collapsed - proven redundant). A SAT proof of \
+         redundancy covers the outputs the spec observes, for every input; an aborted fault is \
+         undecided."
+    )
+    .map_err(stdout_error)?;
+    match out_dir {
+        Some(d) => writeln!(
+            o,
+            "wrote the set plus {} top-up vector{} to {}",
+            t.vectors_added,
+            if t.vectors_added == 1 { "" } else { "s" },
+            d.display()
+        ),
+        None => writeln!(o, "no --out given: nothing written"),
+    }
+    .map_err(stdout_error)?;
+    Ok(())
 }

@@ -5,6 +5,9 @@
 
 pub(crate) mod check;
 pub(crate) mod grade;
+pub(crate) mod import;
+pub(crate) mod prove;
+pub(crate) mod reach;
 pub(crate) mod signals;
 pub(crate) mod threads;
 pub(crate) mod util;

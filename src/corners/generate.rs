@@ -35,6 +35,8 @@ pub struct Generator {
     random: RandomPlan,
     /// Special operand patterns for the corner-biased mix.
     pool: std::sync::Arc<[Word]>,
+    /// Vectors given from outside (`arithvec import`, `gen --append`), after the random part.
+    appended: std::sync::Arc<[Inputs]>,
     /// A select unit's codes, drawn uniformly for random vectors (empty for other units).
     codes: std::sync::Arc<[u32]>,
 }
@@ -85,6 +87,7 @@ impl Generator {
         let pool = operand_pool(&catalogue).into();
         Generator {
             pool,
+            appended: Vec::new().into(),
             codes: std::sync::Arc::from([]),
             catalogue,
             directed,
@@ -145,12 +148,34 @@ impl Generator {
         self.random.seed
     }
 
-    /// Directed plus random.
+    /// Directed plus random plus appended.
     pub fn total(&self) -> u64 {
-        self.directed.len() as u64 + self.random.count
+        self.directed.len() as u64 + self.random.count + self.appended.len() as u64
     }
 
-    /// The inputs of vector `index` (directed first, then random), or None past the end.
+    /// The same set with `vectors` after its random part (indices `directed + random ..`).
+    /// They are given, not generated: a set holding them records where they came from.
+    pub fn with_appended(mut self, vectors: Vec<Inputs>) -> Generator {
+        self.appended = vectors.into();
+        self
+    }
+
+    /// The same catalogue with no directed and no random vectors, for a set made only of
+    /// appended (imported) vectors.
+    pub fn without_generated(mut self) -> Generator {
+        self.directed.clear();
+        self.directed_hits.iter_mut().for_each(|h| *h = 0);
+        self.random.count = 0;
+        self
+    }
+
+    /// The appended vectors, in file order.
+    pub fn appended(&self) -> &[Inputs] {
+        &self.appended
+    }
+
+    /// The inputs of vector `index` (directed first, then random, then appended), or None
+    /// past the end.
     pub fn vector(&self, index: u64) -> Option<Inputs> {
         let d = self.directed.len() as u64;
         if index < d {
@@ -159,7 +184,8 @@ impl Generator {
             let mut stream = self.random_stream(index - d);
             Some(stream.next_inputs())
         } else {
-            None
+            let k = index - d - self.random.count;
+            self.appended.get(usize::try_from(k).ok()?).copied()
         }
     }
 
@@ -423,6 +449,9 @@ impl Datapath {
 
 /// Candidate inputs for one bin, best first. The caller keeps the first that hits.
 fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word]) -> Vec<Inputs> {
+    if spec.operation.is_division() {
+        return crate::corners::construct_divide::candidates(cat, spec, class, k);
+    }
     if spec.operation.is_extended() {
         return crate::corners::construct::candidates(cat, spec, class, k);
     }

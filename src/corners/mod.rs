@@ -8,4 +8,5 @@
 pub(crate) mod classes;
 pub(crate) mod compare;
 pub(crate) mod construct;
+pub(crate) mod construct_divide;
 pub(crate) mod generate;

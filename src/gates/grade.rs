@@ -25,9 +25,15 @@ use crate::sets::hexfile::{header, Packer};
 use crate::sets::layout::Layout;
 use crate::sets::vectorset::{
     csv_header, csv_row, sha256_hex, spec_identity, FileRecord, Manifest, ManifestLayout,
-    ManifestWord, Selection, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
+    ManifestWord, Selection, TopUpVector, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 use crate::spec::{Encoding, Operation, Signal, Spec};
+
+mod topup;
+pub use topup::{
+    TopUpFault, TopUpReport, TopUpStatus, EXHAUSTIVE_REDUNDANCY_METHOD, SAT_REDUNDANCY_METHOD,
+    TOP_UP_METHOD,
+};
 
 /// The structural models arithvec can grade without a netlist file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -317,6 +323,30 @@ impl<'a> Grader<'a> {
         vectors: &[Inputs],
         expected: &[Outputs],
     ) -> Result<Vec<NetlistMismatch>> {
+        self.mismatches_up_to(vectors, expected, 10)
+            .map(|(_, list)| list)
+    }
+
+    /// Every vector on which the fault-free netlist disagrees with `expected`: how many
+    /// vectors disagree, and the first `limit` disagreements (one per output port).
+    pub fn fault_free_disagreements(
+        &self,
+        vectors: &[Inputs],
+        expected: &[Outputs],
+        limit: usize,
+    ) -> Result<(usize, Vec<NetlistMismatch>)> {
+        let (_, list) = self.mismatches_up_to(vectors, expected, usize::MAX)?;
+        let mut positions: Vec<usize> = list.iter().map(|m| m.position).collect();
+        positions.dedup();
+        Ok((positions.len(), list.into_iter().take(limit).collect()))
+    }
+
+    fn mismatches_up_to(
+        &self,
+        vectors: &[Inputs],
+        expected: &[Outputs],
+        limit: usize,
+    ) -> Result<(usize, Vec<NetlistMismatch>)> {
         let mut out = Vec::new();
         for (p, (v, e)) in vectors.iter().zip(expected).enumerate() {
             let values: Vec<Word> = self.ports.inputs.iter().map(|&s| v.get(s)).collect();
@@ -331,20 +361,20 @@ impl<'a> Grader<'a> {
                 let Some(sig) = sig else { continue };
                 let w = self.spec.signal_width(*sig);
                 let want = e.get(*sig).masked(w);
-                if g.masked(w) != want {
+                if e.is_specified(*sig) && g.masked(w) != want {
                     out.push(NetlistMismatch {
                         position: p,
                         port: port.name().to_string(),
                         expected: want.to_hex(w),
                         got: g.masked(w).to_hex(w),
                     });
-                    if out.len() >= 10 {
-                        return Ok(out);
+                    if out.len() >= limit {
+                        return Ok((out.len(), out));
                     }
                 }
             }
         }
-        Ok(out)
+        Ok((out.len(), out))
     }
 
     /// Grades the vectors (after the fault-free check).
@@ -353,6 +383,16 @@ impl<'a> Grader<'a> {
         if !bad.is_empty() {
             return Ok(GradeOutcome::NotTheSpec(bad));
         }
+        self.grade_against_netlist(vectors)
+            .map(GradeOutcome::Graded)
+    }
+
+    /// Grades the vectors against the netlist's own fault-free responses, without the
+    /// fault-free check against the golden model: a fault counts as detected when some
+    /// observed output differs from the fault-free netlist's, whatever the model expects.
+    /// For a unit with a known functional bug; the caller must say loudly that the golden
+    /// model was not the reference (see [`Grader::fault_free_disagreements`]).
+    pub fn grade_against_netlist(&self, vectors: &[Inputs]) -> Result<Box<FaultReport>> {
         let patterns = self.patterns(vectors)?;
         let mut report = grade_with(
             &self.netlist,
@@ -365,7 +405,7 @@ impl<'a> Grader<'a> {
         )?;
         report.unchecked_outputs = self.unchecked_outputs.clone();
         report.ungraded_gates = self.ungraded_gates;
-        Ok(GradeOutcome::Graded(Box::new(report)))
+        Ok(Box::new(report))
     }
 
     /// Which of `vectors` detect which collapsed faults of [`Grader::faults`] (no fault
@@ -412,12 +452,38 @@ pub fn write_selection(
     dir: &Path,
     source_indices: &[u64],
 ) -> Result<Manifest> {
+    write_topped_up(generator, spec, dir, source_indices, &[])
+}
+
+/// [`write_selection`] followed by the vectors test top-up added (`top_up`, in order): the
+/// manifest's selection lists them with the fault each was made for, so `check` and
+/// `testbench` take the set like any other.
+pub fn write_topped_up(
+    generator: &Generator,
+    spec: &Spec,
+    dir: &Path,
+    source_indices: &[u64],
+    top_up: &[TopUpVector],
+) -> Result<Manifest> {
+    if !generator.appended().is_empty() {
+        // A selection's readers regenerate its source set, which imported vectors are not
+        // part of; refuse rather than write a set whose vectors check could not rebuild.
+        return Err(Error::problem(Problem::new(
+            "--compact",
+            "the vector set holds imported vectors, and a compacted selection of such a set \
+             is not supported yet; grade without --compact",
+        )));
+    }
+    let mut added = Vec::with_capacity(top_up.len());
+    for (k, t) in top_up.iter().enumerate() {
+        added.push(t.operands(spec, "top-up", k)?);
+    }
     // Written into a staging directory that one rename makes the set (`sets::commit`).
     let staging = Staging::begin(dir)?;
     let layout = Layout::for_spec(spec);
     let stim = Packer::new(&layout.stimulus);
     let exp = Packer::new(&layout.expected);
-    let n = source_indices.len() as u64;
+    let n = (source_indices.len() + added.len()) as u64;
     let mut csv = csv_header(spec).into_bytes();
     let mut s = header("stimulus", &spec.name, &layout.stimulus, n).into_bytes();
     let mut e = header("expected outputs", &spec.name, &layout.expected, n).into_bytes();
@@ -435,6 +501,13 @@ pub fn write_selection(
         }
         let outputs = generator.catalogue().evaluate(&inputs, &mut hits);
         csv.extend_from_slice(csv_row(generator, spec, p as u64, &inputs).as_bytes());
+        stim.push_line(|sig| inputs.get(sig), &mut s);
+        exp.push_line(|sig| outputs.get(sig), &mut e);
+    }
+    for (k, inputs) in added.iter().enumerate() {
+        let p = source_indices.len() + k;
+        let outputs = generator.catalogue().evaluate(inputs, &mut hits);
+        csv.extend_from_slice(csv_row(generator, spec, p as u64, inputs).as_bytes());
         stim.push_line(|sig| inputs.get(sig), &mut s);
         exp.push_line(|sig| outputs.get(sig), &mut e);
     }
@@ -469,7 +542,9 @@ pub fn write_selection(
             source_directed: generator.directed().len() as u64,
             source_random: generator.random_count(),
             indices: source_indices.to_vec(),
+            top_up: top_up.to_vec(),
         }),
+        imported: None,
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
     text.push('\n');

@@ -8,3 +8,5 @@
 pub(crate) mod fault;
 pub(crate) mod grade;
 pub(crate) mod netlist;
+pub(crate) mod prove;
+pub(crate) mod sat;

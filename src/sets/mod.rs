@@ -6,5 +6,6 @@
 
 pub(crate) mod commit;
 pub(crate) mod hexfile;
+pub(crate) mod import;
 pub(crate) mod layout;
 pub(crate) mod vectorset;

@@ -151,6 +151,34 @@ pub struct Manifest {
     /// set these are, in file order. Vector p of these files is source vector `indices[p]`.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub selection: Option<Selection>,
+    /// For a set holding vectors given from outside (`arithvec import`, `gen --append`):
+    /// where they came from and where they sit. Readers take those vectors from
+    /// `stimulus.hex` (checked against its SHA-256) instead of regenerating them.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub imported: Option<Imported>,
+}
+
+/// The provenance of imported vectors (see [`Manifest::imported`]).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Imported {
+    /// The CSV file the vectors were read from, as named on the command line.
+    pub file: String,
+    /// SHA-256 of that file's bytes when it was read.
+    pub csv_sha256: String,
+    /// Index of the first imported vector: 0 for `arithvec import`, directed + random for
+    /// `gen --append`.
+    pub first_index: u64,
+    /// How many vectors were imported (they run to the end of the set).
+    pub vectors: u64,
+}
+
+/// Where imported vectors came from, as given to [`write_imported`].
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ImportSource {
+    /// The CSV file, as named on the command line.
+    pub file: String,
+    /// SHA-256 of its bytes.
+    pub sha256: String,
 }
 
 /// The provenance of a selected (compacted) vector set.
@@ -162,6 +190,67 @@ pub struct Selection {
     pub source_random: u64,
     /// Source indices, in file order.
     pub indices: Vec<u64>,
+    /// Vectors `grade --top-up` added after the selected ones: position `indices.len() + k`
+    /// of these files is `top_up[k]`. They are not in the source set, so their operands are
+    /// recorded here (and a failing one has no seed index to reproduce it from).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub top_up: Vec<TopUpVector>,
+}
+
+/// One vector added by test top-up: its operands and why it was added.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct TopUpVector {
+    /// Input values by signal key (`a`, `b`, `carry_in`, `mode`), lowercase hex of the
+    /// signal's width.
+    pub inputs: BTreeMap<String, String>,
+    /// The fault it was made for, as the grade report names it (`net stuck-at-v (site)`).
+    pub fault: String,
+    /// The netlist module the fault is in.
+    pub module: String,
+    /// How it was found.
+    pub method: String,
+}
+
+impl TopUpVector {
+    /// The operands, checked against `spec`: every input signal of the spec present, each a
+    /// hex value that fits its width, and no other key. `file` and `k` name it in errors.
+    pub fn operands(&self, spec: &Spec, file: &str, k: usize) -> Result<Inputs> {
+        let mut inputs = Inputs::default();
+        let mut problems = Vec::new();
+        let field = |key: &str| format!("selection.top_up[{k}].inputs.{key}");
+        for (sig, _) in spec.inputs() {
+            match self.inputs.get(sig.key()) {
+                Some(hex) => match Word::parse_hex(hex) {
+                    Some(w) if w.significant_bits() <= spec.signal_width(sig) => inputs.set(sig, w),
+                    _ => problems.push(
+                        Problem::new(
+                            file,
+                            format!(
+                                "\"{hex}\" is not a hex value of {} bits",
+                                spec.signal_width(sig)
+                            ),
+                        )
+                        .field(field(sig.key())),
+                    ),
+                },
+                None => problems.push(
+                    Problem::new(file, "the top-up vector lacks this input")
+                        .field(field(sig.key())),
+                ),
+            }
+        }
+        for key in self.inputs.keys() {
+            if !spec.inputs().iter().any(|(s, _)| s.key() == key) {
+                problems
+                    .push(Problem::new(file, "not an input signal of the spec").field(field(key)));
+            }
+        }
+        if problems.is_empty() {
+            Ok(inputs)
+        } else {
+            Err(Error::input(problems))
+        }
+    }
 }
 
 /// SHA-256 of `bytes` as lowercase hex.
@@ -223,7 +312,7 @@ struct NarrowRows {
 /// Every signal's value (low 64 bits), indexed by `Signal as usize`, so the row writer
 /// reads fields by number instead of matching on the signal per field.
 #[inline]
-fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 14] {
+fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 17] {
     [
         i.a.low_u64(),
         i.b.low_u64(),
@@ -238,6 +327,9 @@ fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 14] {
         o.equal as u64,
         o.greater as u64,
         i.b.low_u64(),
+        o.result.low_u64(),
+        o.remainder.low_u64(),
+        o.div_by_zero as u64,
         i.select as u64,
     ]
 }
@@ -266,7 +358,7 @@ impl NarrowWord {
 
     /// The packed word, as [`Packer::push_line`] packs it.
     #[inline]
-    fn pack(&self, values: &[u64; 14]) -> u128 {
+    fn pack(&self, values: &[u64; 17]) -> u128 {
         let mut packed = 0u128;
         for &(signal, lsb, mask) in &self.fields {
             packed |= ((values[signal] & mask) as u128) << lsb;
@@ -311,9 +403,12 @@ impl Formatter<'_> {
             chunk.stimulus.reserve(rows * (n.stimulus.digits + 1));
             chunk.expected.reserve(rows * (n.expected.digits + 1));
         }
+        let appended_from = d + self.generator.random_count();
         for index in range {
             let inputs = if index < d {
                 self.generator.directed()[index as usize]
+            } else if index >= appended_from {
+                self.generator.appended()[(index - appended_from) as usize]
             } else {
                 stream
                     .get_or_insert_with(|| self.generator.random_stream(index - d))
@@ -670,7 +765,43 @@ pub fn write(
     generator: &Generator,
     spec: &Spec,
     dir: &Path,
+    options: WriteOptions<'_>,
+) -> Result<Manifest> {
+    let source = ImportSource {
+        file: "(given by a library caller)".into(),
+        sha256: String::new(),
+    };
+    write_set(generator, spec, dir, options, &source)
+}
+
+/// [`write`] for a generator with appended (imported) vectors: the manifest records
+/// `source` as their provenance. A shard of such a set is refused: its readers need every
+/// imported vector in the files.
+pub fn write_imported(
+    generator: &Generator,
+    spec: &Spec,
+    dir: &Path,
+    options: WriteOptions<'_>,
+    source: &ImportSource,
+) -> Result<Manifest> {
+    if options.shard.is_some() {
+        return Err(Error::problem(
+            Problem::new(
+                "--shard",
+                "a set with imported vectors is written whole; leave out --shard",
+            )
+            .field("shard"),
+        ));
+    }
+    write_set(generator, spec, dir, options, source)
+}
+
+fn write_set(
+    generator: &Generator,
+    spec: &Spec,
+    dir: &Path,
     mut options: WriteOptions<'_>,
+    source: &ImportSource,
 ) -> Result<Manifest> {
     // Everything goes into a staging directory beside `dir`, which one rename makes the set
     // (see `sets::commit`); a failure anywhere removes the staging directory (on drop).
@@ -836,6 +967,12 @@ pub fn write(
         },
         files: finished.iter().map(|(r, _, _)| r.clone()).collect(),
         selection: None,
+        imported: (!generator.appended().is_empty()).then(|| Imported {
+            file: source.file.clone(),
+            csv_sha256: source.sha256.clone(),
+            first_index: generator.directed().len() as u64 + generator.random_count(),
+            vectors: generator.appended().len() as u64,
+        }),
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
     text.push('\n');
@@ -956,6 +1093,13 @@ pub fn verify_files(dir: &Path, manifest: &Manifest) -> Result<()> {
             ));
         }
     }
+    // Small sets are hashed on this thread: starting threads costs more than hashing a few
+    // megabytes (and the readers' fuzzers read small sets millions of times).
+    if records.iter().map(|r| r.bytes).sum::<u64>() <= SMALL_SET_BYTES {
+        return records
+            .iter()
+            .try_for_each(|rec| verify_file(&dir.join(&rec.name), rec));
+    }
     let results: Vec<Result<()>> = std::thread::scope(|scope| {
         let handles: Vec<_> = records
             .iter()
@@ -969,12 +1113,16 @@ pub fn verify_files(dir: &Path, manifest: &Manifest) -> Result<()> {
     results.into_iter().collect()
 }
 
+/// Total size up to which [`verify_files`] hashes the files one after another on the calling
+/// thread rather than on a thread each.
+const SMALL_SET_BYTES: u64 = 4 << 20;
+
 /// Hashes one file in a single streaming pass and compares it with its record.
 fn verify_file(path: &Path, rec: &FileRecord) -> Result<()> {
     use std::io::Read;
     let mut file = File::open(path).map_err(|e| Error::io(path, e))?;
     let mut hasher = Sha256::new();
-    let mut buf = vec![0u8; 1 << 20];
+    let mut buf = vec![0u8; (rec.bytes.clamp(4096, 1 << 20) as usize) + 1];
     let mut bytes = 0u64;
     loop {
         let n = match file.read(&mut buf) {

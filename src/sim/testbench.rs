@@ -19,7 +19,7 @@ use std::fmt::Write as _;
 
 use crate::error::{Error, Problem, Result};
 use crate::sets::layout::{Field, Layout, WordLayout};
-use crate::spec::{Dut, NegativeZero, ParamValue, Signal, Spec};
+use crate::spec::{DivByZero, Dut, NegativeZero, ParamValue, Signal, Spec};
 
 /// The hardware description language of an emitted testbench.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -51,8 +51,8 @@ pub struct TestbenchOptions {
     /// The global index of the stimulus file's first vector (the manifest's `first_index`;
     /// non-zero for a shard), so the log names every vector by its index in the whole set.
     pub first_index: u64,
-    /// How long to wait after applying a vector before sampling the outputs, in time units
-    /// (Verilog: the testbench's time unit; VHDL: nanoseconds). At least 1.
+    /// How long to wait after applying a vector before sampling the outputs,
+    /// in nanoseconds (the Verilog testbench opens with `` `timescale 1ns / 1ps ``). At least 1.
     pub settle: u32,
     /// Also load `expected.hex`, compare, count mismatches and fail the run on any.
     pub self_check: bool,
@@ -227,6 +227,19 @@ impl<'a> Plan<'a> {
                 .field("conventions.negative_zero"),
             );
         }
+        let free_quotient = spec.options.and_then(|o| o.div_by_zero) == Some(DivByZero::DontCare)
+            && (spec.has(Signal::Quotient) || spec.has(Signal::Remainder));
+        if options.self_check && free_quotient {
+            problems.push(
+                Problem::new(
+                    source.clone(),
+                    "self-check compares every expected bit, but div_by_zero = \"dont_care\" \
+                     leaves the quotient and remainder of a division by zero unspecified; emit \
+                     the testbench without self-check and judge its log with `arithvec check`",
+                )
+                .field("conventions.div_by_zero"),
+            );
+        }
         if options.self_check
             && spec
                 .select
@@ -312,10 +325,7 @@ impl<'a> Plan<'a> {
                 },
                 self.dut.module,
                 self.options.settle,
-                match self.options.hdl {
-                    Hdl::Verilog => "time unit(s)",
-                    Hdl::Vhdl => "ns",
-                },
+                "ns",
             ),
             "and writes one CSV row per vector to the results file, for `arithvec check`."
                 .to_string(),
@@ -361,7 +371,10 @@ impl<'a> Plan<'a> {
             // No comment line may start with the word "verilator": Verilator reads such
             // comments as directives and rejects unknown ones. Hence the "$ " prompts.
             "With Icarus Verilog 11:".to_string(),
-            format!("  $ iverilog -g2005 -o sim {} {dut_file}", self.file_name),
+            format!(
+                "  $ iverilog -g2005 -s {} -o sim {} {dut_file}",
+                self.name, self.file_name
+            ),
             format!("  $ vvp sim {plusargs}"),
             "With Verilator 5:".to_string(),
             format!(
@@ -376,6 +389,13 @@ impl<'a> Plan<'a> {
             format!(
                 "(the values shown are the defaults); paths may be up to {PLUSARG_BYTES} characters."
             ),
+            format!(
+                "-s / --top-module name {} as the only top, so test modules in the DUT's files",
+                self.name
+            ),
+            "do not run as extra tops. SystemVerilog DUT sources (.sv, or any file using".to_string(),
+            "logic, always_comb, always_ff, interfaces or packages) need -g2012 in place of".to_string(),
+            "-g2005 with Icarus; Verilator reads them as they are.".to_string(),
         ]);
         if check {
             header.push(
@@ -392,6 +412,9 @@ impl<'a> Plan<'a> {
             }
         }
         out.push('\n');
+        // The settle delay is in nanoseconds, as in the VHDL testbench. A DUT file without a
+        // `timescale keeps the simulator's default; both simulators accept the mix.
+        out.push_str("`timescale 1ns / 1ps\n\n");
 
         let stim = &self.layout.stimulus;
         let exp = &self.layout.expected;
@@ -543,11 +566,21 @@ impl<'a> Plan<'a> {
                  \x20     // !== so that x and z outputs count as mismatches.\n\
                  \x20     if (v_got !== v_expected_word[EXPECTED_BITS-1:0]) begin\n\
                  \x20       v_mismatches = v_mismatches + 1;\n\
-                 \x20       if (v_mismatches <= {MISMATCH_REPORT_LIMIT})\n\
-                 \x20         $display(\"arithvec-tb: vector %0d: outputs %h, expected %h\",\n\
-                 \x20                  {logged}, v_got, v_expected_word[EXPECTED_BITS-1:0]);\n\
-                 \x20     end"
+                 \x20       if (v_mismatches <= {MISMATCH_REPORT_LIMIT}) begin\n\
+                 \x20         // One line per output port that differs."
             );
+            for f in &exp.fields {
+                let select = verilog_select(f);
+                let _ = writeln!(
+                    out,
+                    "          if ({sig} !== v_expected_word{select})\n\
+                     \x20           $display(\"arithvec-tb: vector %0d: {port} = %h, expected %h\",\n\
+                     \x20                    {logged}, {sig}, v_expected_word{select});",
+                    sig = signal_name(f),
+                    port = f.name,
+                );
+            }
+            out.push_str("        end\n      end\n");
         }
         out.push_str("    end\n    $fclose(v_fd);\n");
         if check {
@@ -588,6 +621,16 @@ impl<'a> Plan<'a> {
 
     /// Emits the load of one hex file into its array, with the check that every word was read.
     fn verilog_load(out: &mut String, what: &str, bits: &str, word: &str) {
+        // A file that cannot be opened is named with the plusarg that gives it, before
+        // $readmemh (which on Icarus only warns about it).
+        let _ = writeln!(
+            out,
+            "    v_fd = $fopen(v_{what}_path, \"r\");\n\
+             \x20   if (v_fd == 0)\n\
+             \x20     $fatal(1, \"arithvec-tb: cannot read the {what} file %0s; give the vector set's \
+             {what}.hex with +{what}=DIR/{what}.hex\", v_{what}_path);\n\
+             \x20   $fclose(v_fd);"
+        );
         let _ = writeln!(
             out,
             "    for (v_index = 0; v_index < VECTORS; v_index = v_index + 1)\n\
@@ -750,11 +793,18 @@ impl<'a> Plan<'a> {
         }
         files.push(("results", "write_mode"));
         for (f, mode) in files {
+            let how = if mode == "read_mode" {
+                format!(
+                    " & \" (the {f} file); give the vector set's {f}.hex with -g{f}=DIR/{f}.hex\""
+                )
+            } else {
+                String::new()
+            };
             let _ = writeln!(
                 out,
                 "    file_open(v_status, v_{f}_file, {f}, {mode});\n\
                  \x20   assert v_status = open_ok\n\
-                 \x20     report \"arithvec-tb: cannot open \" & {f} severity failure;"
+                 \x20     report \"arithvec-tb: cannot open \" & {f}{how} severity failure;"
             );
         }
         let _ = writeln!(
@@ -801,13 +851,22 @@ impl<'a> Plan<'a> {
                  \x20     if to_x01(v_got) /= v_expected_word(c_expected_bits - 1 downto 0) then\n\
                  \x20       v_mismatches := v_mismatches + 1;\n\
                  \x20       if v_mismatches <= {MISMATCH_REPORT_LIMIT} then\n\
-                 \x20         report \"arithvec-tb: vector \" & integer'image({logged}) & \": outputs \"\n\
-                 \x20           & to_hstring(f_digits(v_got)) & \", expected \"\n\
-                 \x20           & to_hstring(f_digits(v_expected_word(c_expected_bits - 1 downto 0)))\n\
-                 \x20           severity warning;\n\
-                 \x20       end if;\n\
-                 \x20     end if;"
+                 \x20         -- One report per output port that differs."
             );
+            for f in &exp.fields {
+                let select = vhdl_select(f);
+                let sig = signal_name(f);
+                let _ = writeln!(
+                    out,
+                    "          if to_x01({sig}) /= v_expected_word{select} then\n\
+                     \x20           report \"arithvec-tb: vector \" & integer'image({logged}) & \": {port} = \"\n\
+                     \x20             & to_hstring(f_digits({sig})) & \", expected \"\n\
+                     \x20             & to_hstring(f_digits(v_expected_word{select})) severity warning;\n\
+                     \x20         end if;",
+                    port = f.name,
+                );
+            }
+            out.push_str("        end if;\n      end if;\n");
         }
         out.push_str("    end loop;\n");
         let mut trailing = vec![("stimulus", "v_word")];
@@ -1019,7 +1078,12 @@ fn vhdl_value(value: &ParamValue) -> String {
 fn is_vector(field: &Field) -> bool {
     matches!(
         field.signal,
-        Signal::A | Signal::B | Signal::Result | Signal::Select
+        Signal::A
+            | Signal::B
+            | Signal::Result
+            | Signal::Quotient
+            | Signal::Remainder
+            | Signal::Select
     )
 }
 
@@ -1262,7 +1326,7 @@ parameters = { W = 16, STYLE = "say \"fast\"" }
         );
         let joined = header.join("\n");
         for command in [
-            "//   $ iverilog -g2005 -o sim tb_pump_delta_v2.v sub_w.v",
+            "//   $ iverilog -g2005 -s tb_pump_delta_v2 -o sim tb_pump_delta_v2.v sub_w.v",
             "//   $ vvp sim +stimulus=stimulus.hex +results=results.csv +expected=expected.hex",
             "//   $ verilator --binary --timing -Wno-fatal --top-module tb_pump_delta_v2 \
              tb_pump_delta_v2.v sub_w.v -o sim",
@@ -1320,7 +1384,7 @@ parameters = { W = 16, STYLE = "say \"fast\"" }
         assert!(text.contains("    .STYLE(\"say \\\"fast\\\"\")"));
         assert!(text.contains("    .bin(s_carry_in),"));
         assert!(text.contains("      #1;\n"));
-        assert!(!text.contains("`timescale"));
+        assert!(text.contains("\n`timescale 1ns / 1ps\n"));
         assert!(!text.contains("$fatal(1, \"arithvec-tb: %0d of"));
     }
 

@@ -46,7 +46,7 @@ impl Serialize for ActiveLow {
 
 /// True for the one-bit flag outputs.
 fn is_flag(signal: Signal) -> bool {
-    !signal.is_input() && signal != Signal::Result
+    !signal.is_input() && signal.width(2) == 1
 }
 
 impl Spec {

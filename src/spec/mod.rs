@@ -23,7 +23,9 @@ mod flags;
 mod ops;
 mod select;
 pub use flags::ActiveLow;
-pub use ops::{default_amount_width, LargeAmount, OpOptions, ResultPart, Signedness};
+pub use ops::{
+    default_amount_width, DivByZero, LargeAmount, OpOptions, ResultPart, Rounding, Signedness,
+};
 pub use select::{SelectSpec, UndefinedOutputs};
 
 /// The widest operand arithvec handles, in bits.
@@ -60,6 +62,12 @@ pub enum Operation {
     Ror,
     /// `a * b`, an R-bit result (default R = 2N).
     Mul,
+    /// `a / b`: quotient, with div_by_zero and overflow flags.
+    Div,
+    /// `a % b` (the remainder of the same division): remainder, div_by_zero, overflow.
+    Rem,
+    /// Quotient and remainder of one division.
+    DivRem,
     /// Several operations behind one select port; the `[select]` table gives the code of
     /// each (see `spec::select`).
     Select,
@@ -78,13 +86,16 @@ impl Operation {
     ];
 
     /// The shift, rotate and multiply operations (models in `arith::ops`).
-    pub const EXTENDED: [Operation; 6] = [
+    pub const EXTENDED: [Operation; 9] = [
         Operation::Shl,
         Operation::Shr,
         Operation::Sra,
         Operation::Rol,
         Operation::Ror,
         Operation::Mul,
+        Operation::Div,
+        Operation::Rem,
+        Operation::DivRem,
     ];
 
     /// The spec-file spelling.
@@ -103,6 +114,9 @@ impl Operation {
             Operation::Rol => "rol",
             Operation::Ror => "ror",
             Operation::Mul => "mul",
+            Operation::Div => "div",
+            Operation::Rem => "rem",
+            Operation::DivRem => "divrem",
             Operation::Select => "select",
         }
     }
@@ -116,6 +130,9 @@ impl Operation {
                 | Operation::AddSub
                 | Operation::Compare
                 | Operation::Mul
+                | Operation::Div
+                | Operation::Rem
+                | Operation::DivRem
         )
     }
 
@@ -137,6 +154,9 @@ impl Operation {
                 &[A, Amount, Result, CarryOut, Zero, Negative]
             }
             Operation::Mul => &[A, B, Result, Overflow, Zero, Negative],
+            Operation::Div => &[A, B, Overflow, Quotient, DivByZero],
+            Operation::Rem => &[A, B, Overflow, Remainder, DivByZero],
+            Operation::DivRem => &[A, B, Overflow, Quotient, Remainder, DivByZero],
             // The union of the operations a select unit can carry; `spec::select` refuses a
             // port no carried operation has.
             Operation::Select => &[
@@ -241,13 +261,19 @@ pub enum Signal {
     Greater,
     /// Shift amount (width `amount_width`).
     Amount,
+    /// Division: the N-bit quotient.
+    Quotient,
+    /// Division: the N-bit remainder.
+    Remainder,
+    /// Division: the divisor is zero.
+    DivByZero,
     /// Operation select code of a select unit (width `[select] width`).
     Select,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 14] = [
+    pub const ALL: [Signal; 17] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -261,6 +287,9 @@ impl Signal {
         Signal::Equal,
         Signal::Greater,
         Signal::Amount,
+        Signal::Quotient,
+        Signal::Remainder,
+        Signal::DivByZero,
         Signal::Select,
     ];
 
@@ -280,6 +309,9 @@ impl Signal {
             Signal::Equal => "equal",
             Signal::Greater => "greater",
             Signal::Amount => "amount",
+            Signal::Quotient => "quotient",
+            Signal::Remainder => "remainder",
+            Signal::DivByZero => "div_by_zero",
             Signal::Select => "select",
         }
     }
@@ -305,7 +337,7 @@ impl Signal {
     /// The signal's width in bits for a unit of operand width `width`.
     pub fn width(self, width: u32) -> u32 {
         match self {
-            Signal::A | Signal::B | Signal::Result => width,
+            Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder => width,
             _ => 1,
         }
     }
@@ -686,6 +718,11 @@ fn signal_allowed(
              datapath has no plain carry-in); remove it",
             encoding.name()
         )),
+        (Signal::Overflow, Encoding::Unsigned) if operation.is_division() => Err(
+            "an unsigned division never overflows (only the two's-complement min / -1 does); \
+             remove it"
+                .to_string(),
+        ),
         (Signal::CarryOut, Encoding::SignMagnitude) => Err(
             "a sign-magnitude unit has no carry-out of its own; use the overflow port for \
              magnitude overflow"
@@ -693,6 +730,21 @@ fn signal_allowed(
         ),
         _ => Ok(()),
     }
+}
+
+/// Every key the `[conventions]` table may hold (which ones have an effect depends on the unit).
+fn convention_table_keys() -> Vec<&'static str> {
+    let mut keys = vec![
+        "carry_out",
+        "carry_in",
+        "negative_zero",
+        "zero_flag",
+        "offset_carry",
+    ];
+    keys.extend(ops::CONVENTION_KEYS);
+    keys.push(select::CONVENTION_KEY);
+    keys.push(flags::CONVENTION_KEY);
+    keys
 }
 
 /// Walks the parsed TOML document, collecting problems.
@@ -920,16 +972,34 @@ impl<'a> Reader<'a> {
         let (operation, encoding) = match (operation, encoding) {
             (Some((o, _)), Some((e, _))) => (o, e),
             _ => {
-                // Still check the sub-tables' keys so every problem is reported at once.
+                // Still check every table that does not depend on the operation and encoding,
+                // so that every problem is reported in one pass.
                 if let Some(t) = ports_table {
                     let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
                     self.check_keys(t, "ports.", &keys);
+                    for signal in Signal::ALL {
+                        if Self::get(t, signal.key()).is_some() {
+                            if let Some((name, at)) = self.string(t, "ports.", signal.key()) {
+                                self.check_port_name(&name, at, signal);
+                            }
+                        }
+                    }
+                }
+                if let Some(t) = conv_table {
+                    self.check_keys(t, "conventions.", &convention_table_keys());
+                }
+                if let Some(t) = random_table {
+                    self.read_random(t, &mut RandomSettings::default());
+                }
+                if let Some(t) = dut_table {
+                    self.read_dut(t);
                 }
                 return None;
             }
         };
+        let ports_line = Self::get(root, "ports").map_or(1, |(k, _)| self.line_of(k.span()));
         let ports = match ports_table {
-            Some(t) => self.read_ports(t, operation, encoding),
+            Some(t) => self.read_ports(t, operation, encoding, ports_line),
             None => {
                 self.problems.push(
                     Problem::new(self.file, "the [ports] table is missing")
@@ -977,7 +1047,40 @@ impl<'a> Reader<'a> {
         Some(spec)
     }
 
-    fn read_ports(&mut self, t: &Table<'_>, operation: Operation, encoding: Encoding) -> Ports {
+    /// Reports a port name that no testbench or vector file could use; true when it is usable.
+    fn check_port_name(&mut self, name: &str, at: usize, signal: Signal) -> bool {
+        let key = format!("ports.{}", signal.key());
+        if !is_identifier(name) {
+            self.problem(
+                at..at,
+                &key,
+                format!(
+                    "\"{name}\" is not a usable port name (letters, digits and '_', not \
+                     starting with a digit)"
+                ),
+            );
+            return false;
+        }
+        if name == "index" || name == "classes" {
+            self.problem(
+                at..at,
+                &key,
+                format!("\"{name}\" is reserved for the vector files' own columns"),
+            );
+            return false;
+        }
+        true
+    }
+
+    /// Reads `[ports]`; `table_line` is the line of the table's header, where a missing
+    /// port is reported.
+    fn read_ports(
+        &mut self,
+        t: &Table<'_>,
+        operation: Operation,
+        encoding: Encoding,
+        table_line: usize,
+    ) -> Ports {
         let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
         self.check_keys(t, "ports.", &keys);
         let mut ports = Ports::default();
@@ -1006,23 +1109,7 @@ impl<'a> Reader<'a> {
                 self.problem(k.span(), &key, msg);
                 continue;
             }
-            if !is_identifier(&name) {
-                self.problem(
-                    at..at,
-                    &key,
-                    format!(
-                        "\"{name}\" is not a usable port name (letters, digits and '_', not \
-                         starting with a digit)"
-                    ),
-                );
-                continue;
-            }
-            if name == "index" || name == "classes" {
-                self.problem(
-                    at..at,
-                    &key,
-                    format!("\"{name}\" is reserved for the vector files' own columns"),
-                );
+            if !self.check_port_name(&name, at, signal) {
                 continue;
             }
             if let Some(other) = seen.get(&name) {
@@ -1030,7 +1117,7 @@ impl<'a> Reader<'a> {
                     at..at,
                     &key,
                     format!(
-                        "port name \"{name}\" is already used by ports.{}",
+                        "duplicate port name: \"{name}\" is already used by ports.{}",
                         other.key()
                     ),
                 );
@@ -1039,15 +1126,20 @@ impl<'a> Reader<'a> {
             seen.insert(name.clone(), signal);
             ports.set(signal, name);
         }
-        let line = 1;
-        if ports.get(Signal::A).is_none() {
+        // A port that is named but refused above has its own problem at its own line; saying
+        // also that the operation "needs" it would point at the wrong cause.
+        let missing = |ports: &Ports, signal: Signal| {
+            ports.get(signal).is_none() && Self::get(t, signal.key()).is_none()
+        };
+        let line = table_line;
+        if missing(&ports, Signal::A) {
             self.problems.push(
                 Problem::new(self.file, "every operation needs an `a` port")
                     .at_line(line)
                     .field("ports.a"),
             );
         }
-        if operation.is_binary() && ports.get(Signal::B).is_none() {
+        if operation.is_binary() && missing(&ports, Signal::B) {
             self.problems.push(
                 Problem::new(
                     self.file,
@@ -1057,7 +1149,7 @@ impl<'a> Reader<'a> {
                 .field("ports.b"),
             );
         }
-        if operation == Operation::AddSub && ports.get(Signal::Mode).is_none() {
+        if operation == Operation::AddSub && missing(&ports, Signal::Mode) {
             self.problems.push(
                 Problem::new(
                     self.file,
@@ -1081,22 +1173,7 @@ impl<'a> Reader<'a> {
     }
 
     fn read_conventions(&mut self, t: &Table<'_>, spec: &mut Spec) {
-        self.check_keys(
-            t,
-            "conventions.",
-            &[
-                "carry_out",
-                "carry_in",
-                "negative_zero",
-                "zero_flag",
-                "offset_carry",
-                ops::CONVENTION_KEYS[0],
-                ops::CONVENTION_KEYS[1],
-                ops::CONVENTION_KEYS[2],
-                select::CONVENTION_KEY,
-                flags::CONVENTION_KEY,
-            ],
-        );
+        self.check_keys(t, "conventions.", &convention_table_keys());
         let p = "conventions.";
         // Every value is read first: whether one key has an effect can depend on another
         // (negative_zero and zero_flag).

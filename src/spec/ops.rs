@@ -42,6 +42,33 @@ pub enum ResultPart {
     High,
 }
 
+/// How a two's-complement divider rounds a quotient that is not whole (div, rem, divrem).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Rounding {
+    /// Toward zero; the remainder takes the dividend's sign (the default; C99, Rust's `/`
+    /// and `%`, RISC-V DIV/REM, x86 IDIV, Verilog `/` `%`; from memory).
+    Truncate,
+    /// Toward minus infinity; the remainder takes the divisor's sign (Python's `//` and
+    /// `%`; from memory).
+    Floor,
+}
+
+/// What a divider's quotient and remainder are when the divisor is zero.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum DivByZero {
+    /// The quotient is all ones (unsigned 2^N - 1, twos -1) and the remainder is the
+    /// dividend (the default; RISC-V M's DIV/DIVU/REM/REMU, from memory).
+    AllOnes,
+    /// The quotient is 0 and the remainder is the dividend (AArch64 SDIV/UDIV return 0,
+    /// and its MSUB-computed remainder a - 0 * b is the dividend; from memory).
+    Zero,
+    /// The quotient and remainder are not checked, only `div_by_zero` is (x86 DIV/IDIV
+    /// trap instead of returning a value; from memory).
+    DontCare,
+}
+
 /// The options of the operations that have them, every default filled in.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
 pub struct OpOptions {
@@ -60,6 +87,12 @@ pub struct OpOptions {
     /// mul with result_width < 2N: see [`ResultPart`].
     #[serde(skip_serializing_if = "Option::is_none")]
     pub result_part: Option<ResultPart>,
+    /// div, rem, divrem in twos: see [`Rounding`].
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub rounding: Option<Rounding>,
+    /// div, rem, divrem: see [`DivByZero`].
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub div_by_zero: Option<DivByZero>,
 }
 
 /// ceil(log2 n) + 1: enough bits for every amount 0..=N and one more.
@@ -80,9 +113,15 @@ impl Operation {
         )
     }
 
-    /// True for the operations whose model lives in `arith::ops` (shifts, rotates, mul).
+    /// True for div, rem and divrem.
+    pub fn is_division(self) -> bool {
+        matches!(self, Operation::Div | Operation::Rem | Operation::DivRem)
+    }
+
+    /// True for the operations whose model lives in `arith::ops` (shifts, rotates, mul,
+    /// division).
     pub fn is_extended(self) -> bool {
-        self.is_shift() || self == Operation::Mul
+        self.is_shift() || self == Operation::Mul || self.is_division()
     }
 
     /// Why `encoding` makes no sense for this operation, if it does not.
@@ -101,6 +140,13 @@ impl Operation {
             {
                 Some(format!(
                     "mul is defined for encodings unsigned, twos and signmag (got \"{}\")",
+                    encoding.name()
+                ))
+            }
+            op if op.is_division() && !matches!(encoding, Encoding::Unsigned | Encoding::Twos) => {
+                Some(format!(
+                    "{} is defined for encodings unsigned and twos (got \"{}\")",
+                    op.name(),
                     encoding.name()
                 ))
             }
@@ -156,6 +202,21 @@ impl Spec {
             };
             conv.push_str(&format!("result_part = \"{v}\"\n"));
         }
+        if let Some(r) = o.rounding {
+            let v = match r {
+                Rounding::Truncate => "truncate",
+                Rounding::Floor => "floor",
+            };
+            conv.push_str(&format!("rounding = \"{v}\"\n"));
+        }
+        if let Some(d) = o.div_by_zero {
+            let v = match d {
+                DivByZero::AllOnes => "all_ones",
+                DivByZero::Zero => "zero",
+                DivByZero::DontCare => "dont_care",
+            };
+            conv.push_str(&format!("div_by_zero = \"{v}\"\n"));
+        }
         (root, conv)
     }
 
@@ -177,12 +238,21 @@ impl Spec {
                 .then_some(Signedness::Signed),
             result_part: (operation == Operation::Mul && 2 * width > MAX_WIDTH)
                 .then_some(ResultPart::Low),
+            rounding: (operation.is_division() && encoding == Encoding::Twos)
+                .then_some(Rounding::Truncate),
+            div_by_zero: operation.is_division().then_some(DivByZero::AllOnes),
         })
     }
 }
 
 /// The `[conventions]` keys this file reads.
-pub(super) const CONVENTION_KEYS: [&str; 3] = ["large_amount", "signedness", "result_part"];
+pub(super) const CONVENTION_KEYS: [&str; 5] = [
+    "large_amount",
+    "signedness",
+    "result_part",
+    "rounding",
+    "div_by_zero",
+];
 
 /// The root keys this file reads.
 pub(super) const ROOT_KEYS: [&str; 2] = ["amount_width", "result_width"];
@@ -337,6 +407,56 @@ impl Reader<'_> {
                 );
             } else if let Some(o) = spec.options.as_mut() {
                 o.result_part = Some(v);
+            }
+        }
+        if let Some((v, at)) = self.choice(
+            t,
+            p,
+            "rounding",
+            &[("truncate", Rounding::Truncate), ("floor", Rounding::Floor)],
+        ) {
+            if !op.is_division() {
+                self.problem(
+                    at..at,
+                    "conventions.rounding",
+                    "has no effect: it applies to div, rem and divrem; remove it",
+                );
+            } else if spec.encoding != Encoding::Twos {
+                self.problem(
+                    at..at,
+                    "conventions.rounding",
+                    "has no effect: an unsigned quotient rounds the same both ways; remove it",
+                );
+            } else if let Some(o) = spec.options.as_mut() {
+                o.rounding = Some(v);
+            }
+        }
+        if let Some((v, at)) = self.choice(
+            t,
+            p,
+            "div_by_zero",
+            &[
+                ("all_ones", DivByZero::AllOnes),
+                ("zero", DivByZero::Zero),
+                ("dont_care", DivByZero::DontCare),
+            ],
+        ) {
+            if !op.is_division() {
+                self.problem(
+                    at..at,
+                    "conventions.div_by_zero",
+                    "has no effect: it applies to div, rem and divrem; remove it",
+                );
+            } else if op == Operation::Rem && v != DivByZero::DontCare {
+                self.problem(
+                    at..at,
+                    "conventions.div_by_zero",
+                    "has no effect on a rem: \"all_ones\" and \"zero\" choose the quotient, \
+                     and the remainder is the dividend under both; remove it (or use \
+                     \"dont_care\")",
+                );
+            } else if let Some(o) = spec.options.as_mut() {
+                o.div_by_zero = Some(v);
             }
         }
     }

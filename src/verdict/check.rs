@@ -93,12 +93,14 @@ pub struct OutputReport {
     pub status: String,
     /// Expected, hex.
     pub expected: String,
-    /// Got, hex (x where a digit had unknown bits).
+    /// Got, hex; a digit with unknown bits is x, z, X or Z (see `unknown_digit` in
+    /// src/verdict/check.rs: lowercase when all of the digit's bits are unknown, z only for
+    /// high impedance).
     pub got: String,
     /// Expected, binary MSB first (fields up to 64 bits).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub expected_bin: Option<String>,
-    /// Got, binary MSB first, x for unknown bits (fields up to 64 bits).
+    /// Got, binary MSB first, x or z for unknown bits (fields up to 64 bits).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub got_bin: Option<String>,
     /// Bit positions that differ (known bits only).
@@ -334,6 +336,11 @@ impl VectorLookup {
             return generator.directed().get(index as usize).copied();
         }
         let j = index - d;
+        if j >= generator.random_count() && !generator.appended().is_empty() {
+            // An imported vector (`arithvec import`, `gen --append`).
+            let k = usize::try_from(j - generator.random_count()).ok()?;
+            return generator.appended().get(k).copied();
+        }
         match &mut self.stream {
             Some((next, s)) if *next == j => {
                 *next += 1;
@@ -397,6 +404,26 @@ impl Seen {
     }
 }
 
+/// How a hex digit of a logged value is shown when some of its bits are unknown (`unk`, the
+/// digit's unknown bits; `z`, those that were high impedance; `in_field`, the digit's bits
+/// inside the field): `z` when every bit is z, `x` when every bit is unknown and none is z;
+/// when only some bits are unknown, `Z` if those are all z and `X` otherwise (as Verilog `%h`
+/// prints a partly unknown digit; IEEE 1364-2005 17.1.1.3, from memory); a digit holding
+/// both x and z bits shows `X`, since x is the stronger claim (the value is not known). The
+/// binary form (`got_bin`) shows every bit as 0, 1, x or z. None when the digit is known.
+pub(crate) fn unknown_digit(unk: u64, z: u64, in_field: u64) -> Option<char> {
+    if unk == 0 {
+        return None;
+    }
+    let all_z = z == unk;
+    Some(match (unk == in_field, all_z) {
+        (true, true) => 'z',
+        (true, false) => 'x',
+        (false, true) => 'Z',
+        (false, false) => 'X',
+    })
+}
+
 /// One log field as read: value bits and the mask of x/z bits.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct Observed {
@@ -404,6 +431,8 @@ pub struct Observed {
     pub bits: Word,
     /// Bits that were x or z.
     pub unknown: Word,
+    /// The unknown bits that were z (high impedance); the other unknown bits were x.
+    pub z: Word,
 }
 
 /// What every worker reads and nobody changes during a check.
@@ -414,6 +443,8 @@ struct Shared {
     set: Option<(u64, u64)>,
     /// For a selected (compacted) set: position -> source index.
     selection: Option<Vec<u64>>,
+    /// For a topped-up set: the operands of the positions after the selected ones.
+    top_up: Vec<Inputs>,
     /// The spec's inputs, then its outputs, with their widths, in layout order. A staged row
     /// holds one value per entry.
     fields: Vec<(Signal, u32)>,
@@ -439,7 +470,16 @@ impl Shared {
         }
     }
 
-    /// u64 entries one staged row takes: bits and unknown mask per field.
+    /// For a topped-up set, the number of the top-up vector at position `index`.
+    fn top_up_number(&self, index: u64) -> Option<usize> {
+        let selected = self.selection.as_ref()?.len() as u64;
+        let k = index.checked_sub(selected)? as usize;
+        (k < self.top_up.len()).then_some(k)
+    }
+
+    /// u64 entries one staged row takes: bits and unknown mask per field. Where the unknown
+    /// mask is set the bits slot holds 1 for a z bit and 0 for an x bit (every comparison
+    /// masks unknown bits out), so x and z stay apart at no extra space.
     fn row_stride(&self) -> usize {
         self.fields.len() * 2 * self.limbs
     }
@@ -451,9 +491,11 @@ impl Shared {
         let mut unknown = [0u64; LIMBS];
         bits[..l].copy_from_slice(&values[k * 2 * l..k * 2 * l + l]);
         unknown[..l].copy_from_slice(&values[k * 2 * l + l..(k + 1) * 2 * l]);
+        let (raw, unknown) = (Word::from_limbs(bits), Word::from_limbs(unknown));
         Observed {
-            bits: Word::from_limbs(bits),
-            unknown: Word::from_limbs(unknown),
+            bits: raw.and(&unknown.not(MAX_WIDTH)),
+            unknown,
+            z: raw.and(&unknown),
         }
     }
 }
@@ -533,9 +575,12 @@ impl Worker {
         let present = |k: usize| row.present >> k & 1 == 1;
         let narrow = shared.limbs == 1;
         let from_set = match shared.set {
-            Some(_) => shared
-                .source_index(index)
-                .and_then(|i| self.lookup.get(&shared.generator, i)),
+            Some(_) => match shared.top_up_number(index) {
+                Some(k) => Some(shared.top_up[k]),
+                None => shared
+                    .source_index(index)
+                    .and_then(|i| self.lookup.get(&shared.generator, i)),
+            },
             None => None,
         };
         // Operands: the log's own where present, else the set's.
@@ -577,7 +622,7 @@ impl Worker {
             for (k, &(sig, w)) in shared.fields.iter().enumerate().skip(shared.inputs) {
                 // A select unit's outputs the selected operation does not define are not
                 // compared (unless the spec says the unit drives them 0).
-                if !present(k) || !model.compares(&inputs, sig) {
+                if !present(k) || !exp.is_specified(sig) || !model.compares(&inputs, sig) {
                     continue;
                 }
                 if w <= 64 {
@@ -661,7 +706,7 @@ fn tally_ports(
     }
     for (j, &(sig, w)) in outputs.iter().enumerate() {
         let k = shared.inputs + j;
-        if present >> k & 1 == 0 || !model.compares(inputs, sig) {
+        if present >> k & 1 == 0 || !expected.is_specified(sig) || !model.compares(inputs, sig) {
             continue;
         }
         let o = shared.observed(values, k);
@@ -815,10 +860,11 @@ fn stage_fields(shared: &Shared, row: &LogRow, values: &mut Vec<u64>) -> u16 {
             present |= 1 << k;
             let at = k * 2 * l;
             if l == 1 {
-                staged[at] = f.bits.low_u64();
+                staged[at] = f.bits.low_u64() | f.z.low_u64();
                 staged[at + 1] = f.unknown.low_u64();
             } else {
-                staged[at..at + l].copy_from_slice(&f.bits.limbs()[..l]);
+                let raw = f.bits.or(&f.z);
+                staged[at..at + l].copy_from_slice(&raw.limbs()[..l]);
                 staged[at + l..at + 2 * l].copy_from_slice(&f.unknown.limbs()[..l]);
             }
         }
@@ -1076,12 +1122,22 @@ impl<'g> Checker<'g> {
             0 => std::thread::available_parallelism().map_or(1, |n| n.get().min(8)),
             n => n,
         };
+        let mut top_up = Vec::new();
+        if let Some(sel) = set.and_then(|m| m.selection.as_ref()) {
+            for (k, t) in sel.top_up.iter().enumerate() {
+                let operands = t
+                    .operands(spec, "manifest.json", k)
+                    .map_err(|e| Problem::new("manifest.json", e.to_string()))?;
+                top_up.push(operands);
+            }
+        }
         let inputs = spec.inputs();
         let shared = Arc::new(Shared {
             spec: spec.clone(),
             generator: generator.clone(),
             set: set.map(|m| (m.first_index, m.vectors)),
             selection: set.and_then(|m| m.selection.as_ref().map(|s| s.indices.clone())),
+            top_up,
             fields: inputs
                 .iter()
                 .map(|&(s, _)| s)
@@ -1160,7 +1216,8 @@ impl<'g> Checker<'g> {
             match field(sig) {
                 Some(o) => {
                     present |= 1 << k;
-                    self.batch.values.extend_from_slice(&o.bits.limbs()[..l]);
+                    let raw = o.bits.or(&o.z.and(&o.unknown));
+                    self.batch.values.extend_from_slice(&raw.limbs()[..l]);
                     self.batch.values.extend_from_slice(&o.unknown.limbs()[..l]);
                 }
                 None => self.batch.values.extend(std::iter::repeat_n(0, 2 * l)),
@@ -1519,13 +1576,19 @@ impl<'g> Checker<'g> {
 fn set_identity(m: &Manifest) -> SetIdentity {
     match &m.selection {
         Some(s) => {
-            let list: Vec<String> = s.indices.iter().map(u64::to_string).collect();
+            let mut list: Vec<String> = s.indices.iter().map(u64::to_string).collect();
+            // Top-up vectors are part of the set's identity: their operands, in order.
+            list.extend(s.top_up.iter().map(|t| {
+                let ops: Vec<String> = t.inputs.iter().map(|(k, v)| format!("{k}={v}")).collect();
+                format!("top_up:{}", ops.join(";"))
+            }));
             SetIdentity {
                 seed: m.seed,
                 directed: s.source_directed,
                 random: s.source_random,
                 total: m.vectors,
                 selection_sha256: Some(sha256_hex(list.join(",").as_bytes())),
+                imported_sha256: None,
             }
         }
         None => SetIdentity {
@@ -1534,6 +1597,13 @@ fn set_identity(m: &Manifest) -> SetIdentity {
             random: m.random,
             total: m.total,
             selection_sha256: None,
+            // Two sets with imported vectors are the same set only with the same stimulus.
+            imported_sha256: m.imported.as_ref().and_then(|_| {
+                m.files
+                    .iter()
+                    .find(|f| f.name == crate::sets::vectorset::STIMULUS_HEX)
+                    .map(|f| f.sha256.clone())
+            }),
         },
     }
 }
@@ -1575,30 +1645,33 @@ fn describe(
         let e = expected.get(sig).masked(w);
         let unknown = o.unknown.masked(w);
         let diff = o.bits.xor(&e).and(&unknown.not(w)).masked(w);
-        let status = if !diff.is_zero() {
+        let status = if !expected.is_specified(sig) {
+            "ok"
+        } else if !diff.is_zero() {
             "wrong"
         } else if !unknown.is_zero() {
             "unknown"
         } else {
             "ok"
         };
+        let z = o.z.and(&unknown);
         let got_hex: String = (0..w.div_ceil(4))
             .rev()
             .map(|d| {
                 let nib = o.bits.extract(d * 4, 4).low_u64();
                 let unk = unknown.extract(d * 4, 4).low_u64();
-                if unk != 0 {
-                    'x'
-                } else {
-                    char::from_digit(nib as u32, 16).unwrap_or('?')
-                }
+                let in_field = Word::ones(w).extract(d * 4, 4).low_u64();
+                unknown_digit(unk, z.extract(d * 4, 4).low_u64(), in_field)
+                    .unwrap_or_else(|| char::from_digit(nib as u32, 16).unwrap_or('?'))
             })
             .collect();
         let got_bin = (w <= 64).then(|| {
             (0..w)
                 .rev()
                 .map(|i| {
-                    if unknown.bit(i) {
+                    if z.bit(i) {
+                        'z'
+                    } else if unknown.bit(i) {
                         'x'
                     } else if o.bits.bit(i) {
                         '1'
@@ -1647,6 +1720,24 @@ fn describe(
     }
     // In a selected (compacted) set, position `index` is vector `source` of the source set.
     let source = shared.source_index(index).unwrap_or(index);
+    let generated = shared.generator.directed().len() as u64 + shared.generator.random_count();
+    let repro = match shared.top_up_number(index) {
+        // A top-up vector is in no seeded set: its operands (above, and in the manifest)
+        // are the reproduction.
+        Some(k) => format!(
+            "top-up vector {k}: not from the seed; apply the operands above (manifest.json \
+             selection.top_up[{k}])"
+        ),
+        None if source >= generated && !shared.generator.appended().is_empty() => format!(
+            "(imported vector {} of the set; repro cannot rebuild it: see row {index} of the \
+             set's vectors.csv)",
+            source - generated
+        ),
+        None => format!(
+            "{} --index {source}{seed_part}",
+            shared.options.repro_command
+        ),
+    };
     Failure {
         index,
         line,
@@ -1654,10 +1745,7 @@ fn describe(
         inputs: inputs_report,
         outputs,
         classes,
-        repro: format!(
-            "{} --index {source}{seed_part}",
-            shared.options.repro_command
-        ),
+        repro,
     }
 }
 
@@ -1668,7 +1756,10 @@ fn same_inputs(fields: &[(Signal, u32)], x: &Inputs, y: &Inputs) -> bool {
 }
 
 fn decoded(sig: Signal, v: &Word, width: u32, enc: Encoding) -> String {
-    if matches!(sig, Signal::A | Signal::B | Signal::Result) {
+    if matches!(
+        sig,
+        Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
+    ) {
         Value::decode(v, width, enc).to_string()
     } else {
         (v.bit(0) as u8).to_string()
@@ -2276,6 +2367,7 @@ mod tests {
                             row.get(s).map(|f| Observed {
                                 bits: f.bits,
                                 unknown: f.unknown,
+                                z: f.z,
                             })
                         }),
                         Ok(true) => c.log_row(&row),

@@ -1,5 +1,6 @@
 //! The HTML report of `check`, `merge` and `grade`: one self-contained page (inline CSS and
-//! SVG, no script, no fetch) that a person reads in a browser or as a CI artifact.
+//! SVG, no script, no fetch) that a person reads in a browser or as a CI artifact. The class
+//! table sorts on a click without script (see [`SortKey`]).
 //!
 //! Built with maud's `html!` templates, which escape every interpolated value, so text from a
 //! log or a spec (port names, log names, bad lines) can never become markup. Pure functions
@@ -116,6 +117,18 @@ pub struct GradeSummary {
     pub require: Option<f64>,
     /// The compacted set, when `--compact` ran.
     pub compacted: Option<CompactedSet>,
+    /// Set when the run graded against the netlist's own fault-free responses
+    /// (`--reference netlist`) rather than the golden model.
+    pub netlist_reference: Option<NetlistReference>,
+}
+
+/// What a page graded against the netlist's own responses shows about that choice.
+#[derive(Debug, Clone, PartialEq)]
+pub struct NetlistReference {
+    /// Vectors on which the fault-free netlist disagrees with the golden model.
+    pub disagreeing_vectors: usize,
+    /// The first disagreements: (vector index, port, golden hex, netlist hex).
+    pub listed: Vec<(u64, String, String, String)>,
 }
 
 const CSS: &str = r#"
@@ -156,6 +169,9 @@ td.bad{font-weight:700}
 .note{font-style:italic;color:var(--muted)}
 .chart{overflow-x:auto}
 footer{margin-top:32px;color:var(--muted);font-size:13px}
+.sorted{display:none}.sorted.default,.sorted:target{display:block}.sorted:target~.sorted.default{display:none}
+th a.sort{color:inherit;text-decoration:none;display:block}th a.sort:hover,th a.sort:focus{text-decoration:underline}
+th[aria-sort]{background:#dde4ee}
 @media print{.banner{break-inside:avoid}.failure{break-inside:avoid}}
 "#;
 
@@ -361,47 +377,180 @@ fn status_rank(s: ClassStatus) -> u8 {
     }
 }
 
-fn class_section(r: &CheckReport) -> Markup {
+/// A column the class table sorts by. Sorting needs no script: the page holds the table once
+/// per (column, direction), each in a `div` with its own id; CSS shows the one the URL's
+/// fragment names (`:target`), else the default (worst first). A column heading is a link to
+/// the table sorted by that column, so a click sorts, the URL keeps the choice, and a page
+/// read without CSS still shows every row.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum SortKey {
+    /// Catalogue order (#).
+    Catalogue,
+    /// Worst first: failing (most failures first), missed, covered, unreachable.
+    Status,
+    /// The class id, alphabetical.
+    Class,
+    /// Hits.
+    Hits,
+    /// Failures.
+    Failures,
+    /// Share of bins covered.
+    Bins,
+}
+
+impl SortKey {
+    const ALL: [SortKey; 6] = [
+        SortKey::Catalogue,
+        SortKey::Status,
+        SortKey::Class,
+        SortKey::Hits,
+        SortKey::Failures,
+        SortKey::Bins,
+    ];
+
+    fn name(self) -> &'static str {
+        match self {
+            SortKey::Catalogue => "catalogue",
+            SortKey::Status => "status",
+            SortKey::Class => "class",
+            SortKey::Hits => "hits",
+            SortKey::Failures => "failures",
+            SortKey::Bins => "bins",
+        }
+    }
+
+    /// The direction a first click on the heading sorts in: most first for counts, A to Z
+    /// for names, least covered first for bins, worst first for status.
+    fn first_descending(self) -> bool {
+        matches!(self, SortKey::Hits | SortKey::Failures)
+    }
+}
+
+/// The id of the class table sorted by `key`, descending or not.
+fn sort_id(key: SortKey, descending: bool) -> String {
+    format!(
+        "classes-by-{}-{}",
+        key.name(),
+        if descending { "desc" } else { "asc" }
+    )
+}
+
+fn bins_share(k: &ClassSummary) -> f64 {
+    if k.bins_total == 0 {
+        0.0
+    } else {
+        k.bins_covered as f64 / k.bins_total as f64
+    }
+}
+
+/// The class rows (catalogue position, class) in the order of `key`; ties keep catalogue order.
+fn sorted_classes(r: &CheckReport, key: SortKey, descending: bool) -> Vec<(usize, &ClassSummary)> {
     let mut order: Vec<(usize, &ClassSummary)> = r.classes.iter().enumerate().collect();
-    // Worst first: failing (most failures first), missed, covered, unreachable; then the
-    // catalogue order, which the # column keeps visible.
     order.sort_by(|(i, x), (j, y)| {
-        status_rank(x.status)
-            .cmp(&status_rank(y.status))
-            .then(y.failures.cmp(&x.failures))
-            .then(i.cmp(j))
+        let primary = match key {
+            SortKey::Catalogue => std::cmp::Ordering::Equal,
+            SortKey::Status => status_rank(x.status)
+                .cmp(&status_rank(y.status))
+                .then(y.failures.cmp(&x.failures)),
+            SortKey::Class => x.id.cmp(&y.id),
+            SortKey::Hits => x.hits.cmp(&y.hits),
+            SortKey::Failures => x.failures.cmp(&y.failures),
+            SortKey::Bins => bins_share(x).total_cmp(&bins_share(y)),
+        };
+        let primary = if descending {
+            primary.reverse()
+        } else {
+            primary
+        };
+        let tie = if key == SortKey::Catalogue && descending {
+            j.cmp(i)
+        } else {
+            i.cmp(j)
+        };
+        primary.then(tie)
     });
+    order
+}
+
+fn class_section(r: &CheckReport) -> Markup {
+    let default = (SortKey::Status, false);
     html! {
         h2 { "Corner classes" }
         p { "Worst first: " strong { "\u{2716} FAILING" } ", " strong { "\u{25D0} missed" } ", "
             strong { "\u{2714} covered" } ", " strong { "\u{2013} unreachable" }
-            " (no bin reachable at this width); # is the catalogue order." }
-        table #classes {
-            thead { tr {
-                th.n { "#" } th { "status" } th { "class" } th.n { "hits" } th.n { "failures" }
-                th { "bins covered" } th { "description" }
-            } }
-            tbody {
-                @for (i, k) in &order {
-                    @let (w, cls, sym) = status_word(k.status);
-                    @let pct = if k.bins_total == 0 { 0.0 } else { 100.0 * k.bins_covered as f64 / k.bins_total as f64 };
-                    tr.(cls) {
-                        td.n { (i + 1) }
-                        td.st { (sym) " " (w) }
-                        td.mono { (k.id) }
-                        td.n { (k.hits) }
-                        td.n.bad[k.failures > 0] { (k.failures) }
-                        td { (percent_bar(pct)) " " (k.bins_covered) " / " (k.bins_total) }
-                        td {
-                            (k.description)
-                            @if !k.missed_bins.is_empty() {
-                                br; span.mono { "missed: " (k.missed_bins.join(" "))
-                                    @if k.bins_total - k.bins_covered > k.missed_bins.len() { " \u{2026}" } }
-                            }
-                            @if !k.failing_bins.is_empty() {
-                                br; span.mono { "failing (failures/hits): "
-                                    @for (n, b) in k.failing_bins.iter().take(8).enumerate() {
-                                        @if n > 0 { ", " } (b.bin) " (" (b.failures) "/" (b.hits) ")"
+            " (no bin reachable at this width); # is the catalogue order. "
+            "Click a column heading to sort by it (again to reverse); \u{25B2} / \u{25BC} marks the sorted column. "
+            "Sorting needs no script: the page holds the table in each order." }
+        div.sorts {
+            @for key in SortKey::ALL {
+                @for descending in [false, true] {
+                    @if (key, descending) != default {
+                        (class_table(r, key, descending, false))
+                    }
+                }
+            }
+            // The default last, so `.sorted:target ~ .default` can hide it.
+            (class_table(r, default.0, default.1, true))
+        }
+    }
+}
+
+fn class_table(r: &CheckReport, key: SortKey, descending: bool, default: bool) -> Markup {
+    let order = sorted_classes(r, key, descending);
+    let heading = |column: SortKey, label: &'static str, numeric: bool| {
+        let active = column == key;
+        // A click on the active column reverses it; on another, sorts in its first direction.
+        let next = if active {
+            !descending
+        } else {
+            column.first_descending()
+        };
+        let aria = match (active, descending) {
+            (false, _) => None,
+            (true, false) => Some("ascending"),
+            (true, true) => Some("descending"),
+        };
+        html! {
+            th.n[numeric] aria-sort=[aria] {
+                a.sort href=(format!("#{}", sort_id(column, next))) { (label)
+                    @if active { @if descending { " \u{25BC}" } @else { " \u{25B2}" } } }
+            }
+        }
+    };
+    html! {
+        div.sorted.default[default] id=(sort_id(key, descending)) {
+            table id=[default.then_some("classes")] {
+                thead { tr {
+                    (heading(SortKey::Catalogue, "#", true))
+                    (heading(SortKey::Status, "status", false))
+                    (heading(SortKey::Class, "class", false))
+                    (heading(SortKey::Hits, "hits", true))
+                    (heading(SortKey::Failures, "failures", true))
+                    (heading(SortKey::Bins, "bins covered", false))
+                    th { "description" }
+                } }
+                tbody {
+                    @for (i, k) in &order {
+                        @let (w, cls, sym) = status_word(k.status);
+                        @let pct = 100.0 * bins_share(k);
+                        tr.(cls) {
+                            td.n { (i + 1) }
+                            td.st { (sym) " " (w) }
+                            td.mono { (k.id) }
+                            td.n { (k.hits) }
+                            td.n.bad[k.failures > 0] { (k.failures) }
+                            td { (percent_bar(pct)) " " (k.bins_covered) " / " (k.bins_total) }
+                            td {
+                                (k.description)
+                                @if !k.missed_bins.is_empty() {
+                                    br; span.mono { "missed: " (k.missed_bins.join(" "))
+                                        @if k.bins_total - k.bins_covered > k.missed_bins.len() { " \u{2026}" } }
+                                }
+                                @if !k.failing_bins.is_empty() {
+                                    br; span.mono { "failing (failures/hits): "
+                                        @for (n, b) in k.failing_bins.iter().take(8).enumerate() {
+                                            @if n > 0 { ", " } (b.bin) " (" (b.failures) "/" (b.hits) ")"
+                                        }
                                     }
                                 }
                             }
@@ -875,6 +1024,12 @@ pub fn render_grade_html(spec: &Spec, g: &GradeSummary) -> String {
         Some(_) => ("PASS", "pass", "\u{2714}"),
         None => ("GRADED", "short", "\u{25CB}"),
     };
+    // Against the netlist's own responses the verdict word says so, so no page reads as a
+    // plain pass of a unit the golden model was not compared with.
+    let word = match &g.netlist_reference {
+        Some(_) => format!("{word} AGAINST THE NETLIST"),
+        None => word.to_string(),
+    };
     let reason = match g.require {
         Some(req) => format!(
             "fault coverage {:.2}% ({} of {} collapsed faults detected) against a requirement of {req}%",
@@ -912,6 +1067,26 @@ pub fn render_grade_html(spec: &Spec, g: &GradeSummary) -> String {
             div { "arithvec grade of unit " strong { (spec.name) } ", module " strong { (g.module) } }
             p.reason { "verdict: " (word) ": " (reason) }
         }
+        @if let Some(r) = &g.netlist_reference {
+            section.banner.fail role="alert" {
+                div.word { "\u{26A0} GRADED AGAINST THE NETLIST, NOT THE GOLDEN MODEL" }
+                p { "--reference netlist: a fault counts as detected when an output differs from the fault-free netlist's own response. "
+                    @if r.disagreeing_vectors == 0 {
+                        "The fault-free netlist agrees with the golden model on every vector."
+                    } @else {
+                        "The fault-free netlist disagrees with the golden model on " strong { (r.disagreeing_vectors) } " of " (g.vectors) " vectors: it does not implement the spec."
+                    }
+                }
+                @if !r.listed.is_empty() {
+                    table {
+                        thead { tr { th.n { "vector" } th { "port" } th { "golden model" } th { "netlist" } } }
+                        tbody { @for (index, port, want, got) in &r.listed {
+                            tr { td.n { (index) } td.mono { (port) } td.mono { "0x" (want) } td.mono.bad { "0x" (got) } }
+                        } }
+                    }
+                }
+            }
+        }
         h2 { "Unit and run" }
         dl.meta {
             dt { "unit" } dd { (spec.name) }
@@ -921,6 +1096,10 @@ pub fn render_grade_html(spec: &Spec, g: &GradeSummary) -> String {
             dt { "conventions" } dd {
                 @if conv.is_empty() { "none apply to this unit" }
                 @for (i, (k, v)) in conv.iter().enumerate() { @if i > 0 { ", " } (k) " = " (v) }
+            }
+            dt { "reference" } dd {
+                @if g.netlist_reference.is_some() { "the netlist's own fault-free responses (--reference netlist)" }
+                @else { "the golden model (the fault-free netlist reproduces it on every vector)" }
             }
             dt { "module" } dd { (g.module) }
             dt { "vector set" } dd { (g.vector_set) }

@@ -21,6 +21,10 @@ pub struct SetIdentity {
     /// selections of one source set are not taken for the same set.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub selection_sha256: Option<String>,
+    /// For a set with imported vectors: SHA-256 of its `stimulus.hex`, so two sets with
+    /// different imported vectors are not taken for the same set.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub imported_sha256: Option<String>,
 }
 
 /// The indices a report's rows had, for one vector set.

@@ -16,17 +16,25 @@ const MACHINE_FORMATS: [&str; 2] = ["json", "csv"];
 fn format_values(sb: &Sandbox, command: &str) -> Vec<String> {
     let help = sb.run(&[command, "--help"]);
     help.expect_code(0);
-    let Some(line) = help
-        .stdout
-        .lines()
-        .find(|l| l.trim_start().starts_with("--format"))
+    // Short help puts the values on the option's line; long help (when some option of the
+    // command has a multi-line description) on a line of their own below it.
+    let lines: Vec<&str> = help.stdout.lines().collect();
+    let Some(start) = lines
+        .iter()
+        .position(|l| l.trim_start().starts_with("--format"))
     else {
         return Vec::new();
     };
-    let values = line
-        .split("[possible values: ")
-        .nth(1)
-        .unwrap_or_else(|| panic!("no possible values on {command}'s --format line: {line}"));
+    let values = lines[start..]
+        .iter()
+        .take_while(|l| *l == &lines[start] || !l.trim_start().starts_with('-'))
+        .find_map(|l| l.split("[possible values: ").nth(1))
+        .unwrap_or_else(|| {
+            panic!(
+                "no possible values under {command}'s --format line: {}",
+                lines[start]
+            )
+        });
     values
         .trim_end_matches(']')
         .split(',')
@@ -132,6 +140,21 @@ const WRONG_NETLIST: &str = r#"{"modules": {"tiny_adder": {
   "netnames": {}
 }}}"#;
 
+/// The same 1-bit adder done right (y = a XOR b, co = a AND b), so `prove` proves it.
+const RIGHT_NETLIST: &str = r#"{"modules": {"tiny_adder": {
+  "ports": {
+    "a": {"direction": "input", "bits": [2]},
+    "b": {"direction": "input", "bits": [3]},
+    "y": {"direction": "output", "bits": [4]},
+    "co": {"direction": "output", "bits": [5]}
+  },
+  "cells": {
+    "g1": {"type": "$_XOR_", "connections": {"A": [2], "B": [3], "Y": [4]}},
+    "g2": {"type": "$_AND_", "connections": {"A": [2], "B": [3], "Y": [5]}}
+  },
+  "netnames": {}
+}}}"#;
+
 /// The runs of `command` in `format`: each is (arguments, expected exit code).
 fn runs_of(command: &str, format: &str) -> Vec<(Vec<String>, i32)> {
     let s = |v: &[&str]| v.iter().map(|x| x.to_string()).collect::<Vec<_>>();
@@ -160,6 +183,17 @@ fn runs_of(command: &str, format: &str) -> Vec<(Vec<String>, i32)> {
                 ]),
                 1,
             ),
+            (
+                s(&[
+                    "grade", "graded.toml", "--vectors", "graded", "--builtin", "--top-up",
+                    "--format", format,
+                ]),
+                0,
+            ),
+        ],
+        "prove" => vec![
+            (s(&["prove", "tiny.toml", "--netlist", "right.json", "--format", format]), 0),
+            (s(&["prove", "tiny.toml", "--netlist", "wrong.json", "--format", format]), 1),
         ],
         other => panic!(
             "subcommand {other} offers --format {format}: add its runs to tests/cli/machine_output.rs"
@@ -177,6 +211,7 @@ fn issue14_every_machine_format_of_every_command_is_one_document() {
     sb.write("tiny.toml", ONE_BIT_ADDER);
     sb.gen("tiny.toml", "tiny", &[]);
     sb.write("wrong.json", WRONG_NETLIST);
+    sb.write("right.json", RIGHT_NETLIST);
     let mut ran = 0;
     let mut commands = subcommands(&sb);
     commands.sort();

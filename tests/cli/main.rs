@@ -4,14 +4,19 @@
 
 mod check;
 mod classes;
+mod classes_bins;
+mod divide;
 mod errors;
 mod gen;
+mod import;
 mod machine_output;
 mod merge;
 mod repro;
 mod select;
+mod spec_errors;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
 mod util;
 mod verdict;
+mod xz_digits;

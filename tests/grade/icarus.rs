@@ -400,7 +400,7 @@ fn icarus_agrees_with_the_json_report_on_a_sample_of_faults() {
         .expect("undetected")
         .iter()
         .chain(report["redundant"].as_array().expect("redundant"))
-        .map(|e| e["class"].as_u64().expect("class"))
+        .map(|e| e["fault_class"].as_u64().expect("fault_class"))
         .collect();
     assert!(!undetected.is_empty());
 

@@ -9,7 +9,11 @@ mod compare;
 mod ctest;
 mod errors;
 mod icarus;
+mod prove;
+mod reference;
+mod report_words;
 #[path = "../support/mod.rs"]
 mod support;
 mod threads;
+mod topup;
 mod util;

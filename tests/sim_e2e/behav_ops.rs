@@ -105,3 +105,45 @@ fn behav_mul_agrees() {
     }
     timing.finish(loops);
 }
+
+const DIV_TWOS: &[(&str, &str)] = &[
+    ("a", "a"),
+    ("b", "b"),
+    ("quotient", "q"),
+    ("remainder", "r"),
+    ("div_by_zero", "dz"),
+    ("overflow", "ovf"),
+];
+
+const DIV_UNSIGNED: &[(&str, &str)] = &[
+    ("a", "a"),
+    ("b", "b"),
+    ("quotient", "q"),
+    ("remainder", "r"),
+    ("div_by_zero", "dz"),
+];
+
+/// divrem (twos, truncate; unsigned) against `/` and `%` (behav_div.v names the two cases it
+/// writes out: division by zero and min / -1).
+#[test]
+fn behav_div_agrees() {
+    if !Simulator::Icarus.available() {
+        return;
+    }
+    let timing = Timing::start("behav_div_agrees");
+    let mut loops = 0;
+    for (encoding, signed, ports) in [("twos", 1, DIV_TWOS), ("unsigned", 0, DIV_UNSIGNED)] {
+        for width in WIDTHS {
+            let spec = UnitSpec::new("gantry_div", "divrem", encoding, width, ports, "behav_div")
+                .parameter("SIGNED", signed)
+                .count(COUNT);
+            let spec = UnitSpec {
+                name: format!("{}_{encoding}", spec.name),
+                ..spec
+            };
+            run(spec, "behav/behav_div.v");
+            loops += 1;
+        }
+    }
+    timing.finish(loops);
+}

@@ -29,6 +29,15 @@ pub(crate) enum ExtKind {
     BoothDigits,
     /// Sign bits of (a, b): 00, 01, 10, 11.
     MulSigns,
+    /// Division: the named cases of [`super::divide::case_labels`].
+    DivCases,
+    /// Division: the quotient pattern is 2^i, bin i.
+    DivQuotientBit,
+    /// Division (twos): signs of (a, b) with a non-zero remainder, bin 2 * sa + sb.
+    DivSigns,
+    /// Division: restoring step at quotient bit i: bin 3i subtract, 3i + 1 restore,
+    /// 3i + 2 exact.
+    DivStep,
 }
 
 /// Labels of the overflow-boundary bins.
@@ -222,6 +231,10 @@ pub(super) fn ext_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>)
         }
         return;
     }
+    if op.is_division() {
+        super::divide::div_templates(unit, out);
+        return;
+    }
     // mul
     let mut codes: Vec<(Word, &str)> = Vec::new();
     for s in [
@@ -351,6 +364,9 @@ pub(super) fn ext_bins<B: Bits>(
         }
         ExtKind::MulSigns => {
             bin(2 * a.bit(w - 1) as u32 + b.bit(w - 1) as u32);
+        }
+        ExtKind::DivCases | ExtKind::DivQuotientBit | ExtKind::DivSigns | ExtKind::DivStep => {
+            super::divide::div_bins(unit, kind, a, t, bin);
         }
     }
 }

@@ -18,10 +18,12 @@ use crate::arith::model::{offset_carries, Cell, Inputs, Model, Outputs, Path, Tr
 use crate::arith::word::Word;
 use crate::spec::{Encoding, Operation, Signal, Spec};
 
+mod divide;
 mod ext;
 mod program;
 mod select;
 mod templates;
+pub(crate) use divide::case_labels;
 pub(crate) use ext::{booth_digits, booth_operand, ExtKind};
 use program::*;
 use templates::*;

@@ -69,6 +69,7 @@ impl Generator {
         Generator {
             pool,
             codes: codes.into(),
+            appended: Vec::new().into(),
             catalogue,
             directed,
             directed_hits,

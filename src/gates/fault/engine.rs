@@ -353,7 +353,7 @@ pub(super) fn grade_inner(
     let mut undetected = Vec::new();
     let mut redundant = Vec::new();
     for (&c, verdict) in remaining.iter().zip(verdicts) {
-        let entry = describe(nl, faults, c, verdict);
+        let entry = describe(nl, topo, faults, c, verdict);
         if matches!(entry.redundancy, Redundancy::Proven { .. }) {
             redundant.push(entry);
         } else {
@@ -476,6 +476,7 @@ fn first_detections(
 
 pub(super) fn describe(
     nl: &Netlist,
+    topo: &Topology,
     faults: &FaultList,
     class: usize,
     redundancy: Redundancy,
@@ -510,8 +511,16 @@ pub(super) fn describe(
         Driver::Input { .. } => (None, "input".to_string()),
         Driver::Constant(_) => (None, "constant".to_string()),
     };
+    let observed_at = reached_outputs(nl, topo, fault.site)
+        .into_iter()
+        .map(|flat| {
+            let (port, bit) = topo.output_pos[flat];
+            nl.outputs()[port].bit_label(bit)
+        })
+        .collect();
     FaultEntry {
         class,
+        observed_at,
         net: nl.net_name(net),
         stuck_at: fault.stuck_at as u8,
         site,

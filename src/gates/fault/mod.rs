@@ -704,8 +704,13 @@ pub enum Redundancy {
 /// One collapsed fault in a report, named the way the netlist names things.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize)]
 pub struct FaultEntry {
-    /// The class index (see [`FaultList::members`]).
+    /// The equivalence-class index (see [`FaultList::members`]). In JSON it is
+    /// `fault_class`: "class" means a corner class everywhere else in arithvec.
+    #[serde(rename = "fault_class")]
     pub class: usize,
+    /// The output bits the fault's effect can reach (such as `y[3]`, `co`), in port order: only
+    /// there can a vector observe it.
+    pub observed_at: Vec<String>,
     /// The net of the representative fault, such as `carry[5]`.
     pub net: String,
     /// 0 or 1.

@@ -138,6 +138,9 @@ pub struct FieldValue {
     pub unknown: Word,
     /// True when any digit was high impedance (`z`, `Z`, `?`), so reports can say "undriven".
     pub high_z: bool,
+    /// The unknown bits that were printed as high impedance (a subset of `unknown`); the
+    /// others were x. Per digit: every bit of a `z`/`Z`/`?` digit is here.
+    pub z: Word,
 }
 
 impl FieldValue {
@@ -147,6 +150,7 @@ impl FieldValue {
             bits,
             unknown: Word::ZERO,
             high_z: false,
+            z: Word::ZERO,
         }
     }
 
@@ -716,8 +720,11 @@ fn parse_header(
             Target::Value {
                 slot: slot(signal),
                 width: spec.signal_width(signal),
-                encoding: matches!(signal, Signal::A | Signal::B | Signal::Result)
-                    .then_some(spec.encoding),
+                encoding: matches!(
+                    signal,
+                    Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
+                )
+                .then_some(spec.encoding),
             }
         } else if i == 0 && name.bytes().all(|b| b.is_ascii_digit()) {
             // A data line where the header should be: one problem says it all.

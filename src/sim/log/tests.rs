@@ -779,6 +779,7 @@ mod round_trip {
         };
         let digits_needed = width.div_ceil(per_digit);
         let mut expect_unknown = Word::ZERO;
+        let mut expect_z = Word::ZERO;
         let mut digits: Vec<u8> = Vec::new();
         if style.radix == Radix::Dec {
             digits.extend(bits.to_decimal().bytes());
@@ -794,12 +795,16 @@ mod round_trip {
                 let unknown = d < 128 && unknown_digits >> d & 1 == 1;
                 let value = bits.extract(d * per_digit, per_digit).low_u64() as u32;
                 if unknown {
+                    let digit = b"xXzZ"[(value % 4) as usize];
                     for i in 0..per_digit {
                         if d * per_digit + i < width {
                             expect_unknown.set_bit(d * per_digit + i, true);
+                            if digit | 0x20 == b'z' {
+                                expect_z.set_bit(d * per_digit + i, true);
+                            }
                         }
                     }
-                    digits.push(b"xXzZ"[(value % 4) as usize]);
+                    digits.push(digit);
                 } else {
                     let c = char::from_digit(value, 16).unwrap();
                     let c = if style.upper {
@@ -820,6 +825,9 @@ mod round_trip {
         // An all-unknown single digit means "every bit unknown" in a plain value.
         if digits.len() == 1 && matches!(digits[0], b'x' | b'X' | b'z' | b'Z') {
             expect_unknown = Word::ones(width);
+            if digits[0] | 0x20 == b'z' {
+                expect_z = Word::ones(width);
+            }
         }
         // A leading "0x" digit pair is read as digits only at the exact printed length, so
         // separators there would turn it into a prefix (documented); keep such tokens bare.
@@ -860,6 +868,7 @@ mod round_trip {
                 bits,
                 unknown: expect_unknown,
                 high_z,
+                z: expect_z,
             },
         )
     }

@@ -385,9 +385,13 @@ pub(super) fn parse_digits(
 ) -> std::result::Result<(), ValueError> {
     let mut bits = [0u64; LIMBS];
     let mut unknown = [0u64; LIMBS];
+    // The bits of the high-impedance digits among the unknown ones, kept apart so that a
+    // report shows each digit as it was printed (x or z).
+    let mut impedance = [0u64; LIMBS];
     let mut high_z = false;
     let mut count = 0usize;
     let mut leftmost_unknown = false;
+    let mut leftmost_z = false;
     let mut pos: u32 = 0;
     if base == Base::Dec {
         for &c in digits {
@@ -405,6 +409,7 @@ pub(super) fn parse_digits(
                     }
                     high_z = z;
                     leftmost_unknown = true;
+                    leftmost_z = z;
                 }
                 Digit::Bad => return Err(ValueError::BadDigit(c, base)),
             }
@@ -424,8 +429,12 @@ pub(super) fn parse_digits(
                 }
                 Digit::Unknown { high_z: z } => {
                     or_at(&mut unknown, pos, digit_mask);
+                    if z {
+                        or_at(&mut impedance, pos, digit_mask);
+                    }
                     high_z |= z;
                     leftmost_unknown = true;
+                    leftmost_z = z;
                 }
                 Digit::Bad => {
                     // Name the first bad character, not the last.
@@ -450,9 +459,14 @@ pub(super) fn parse_digits(
         None => (count == 1 && leftmost_unknown).then_some(width),
     };
     let mut unknown = Word::from_limbs(unknown);
+    let mut impedance = Word::from_limbs(impedance);
     if let Some(top) = extend_to {
         let top = top.min(MAX_WIDTH);
-        unknown = unknown.or(&Word::ones(top).and(&Word::ones(pos.min(top)).not(top)));
+        let above = Word::ones(top).and(&Word::ones(pos.min(top)).not(top));
+        unknown = unknown.or(&above);
+        if leftmost_z {
+            impedance = impedance.or(&above);
+        }
     }
     let bits = Word::from_limbs(bits);
     if let Some(Some(size)) = literal {
@@ -469,6 +483,7 @@ pub(super) fn parse_digits(
         bits: bits.and(&unknown.not(MAX_WIDTH)),
         unknown,
         high_z: high_z && !unknown.is_zero(),
+        z: impedance.and(&unknown),
     };
     Ok(())
 }
