@@ -91,10 +91,10 @@ pub use sim::testbench::{
     MAX_TESTBENCH_VECTORS,
 };
 pub use spec::{
-    check_ranges, default_amount_width, is_identifier, parse_port_text, Bundle, CarryInConvention,
-    CarryOutConvention, Conventions, DivByZero, Dut, Encoding, LargeAmount, Mix, NegativeZero,
-    OffsetCarry, OpOptions, Operation, ParamValue, PortRange, Ports, RandomSettings, ResultPart,
-    Rounding, SelectSpec, Signal, Signedness, Spec, UndefinedOutputs, ZeroFlag,
+    check_ranges, default_amount_width, is_identifier, parse_port_text, ActiveLow, Bundle,
+    CarryInConvention, CarryOutConvention, Conventions, DivByZero, Dut, Encoding, LargeAmount, Mix,
+    NegativeZero, OffsetCarry, OpOptions, Operation, ParamValue, PortRange, Ports, RandomSettings,
+    ResultPart, Rounding, SelectSpec, Signal, Signedness, Spec, UndefinedOutputs, ZeroFlag,
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,

@@ -14,6 +14,7 @@ use crate::arith::encoding::{
 use crate::arith::ops::OpUnit;
 use crate::arith::select::SelectModel;
 use crate::arith::word::Word;
+use crate::spec::ActiveLow;
 use crate::spec::{
     CarryInConvention, CarryOutConvention, Encoding, NegativeZero, OffsetCarry, Operation, Signal,
     Spec, ZeroFlag,
@@ -331,6 +332,8 @@ pub struct Model {
     unit: Option<OpUnit>,
     /// A select unit's per-operation models (see `arith::select`).
     pub(crate) select: Option<std::sync::Arc<SelectModel>>,
+    /// `conventions.active_low`: these flags are inverted on the way out.
+    active_low: ActiveLow,
 }
 
 impl Model {
@@ -362,6 +365,7 @@ impl Model {
                 zero_flag: spec.conventions.zero_flag,
             }),
             select: SelectModel::new(spec).map(std::sync::Arc::new),
+            active_low: spec.conventions.active_low,
         };
         model.views = [model.find_ripple_view(false), model.find_ripple_view(true)];
         model
@@ -523,14 +527,15 @@ impl Model {
         };
         let mut alt = *outputs;
         alt.result = other.to_word();
-        alt.zero = self.zero_flag_of(other);
-        alt.negative = sign_bit(other, w, self.encoding);
+        alt.zero = self.zero_flag_of(other) != self.active_low.contains(Signal::Zero);
+        alt.negative =
+            sign_bit(other, w, self.encoding) != self.active_low.contains(Signal::Negative);
         Some(alt)
     }
 
     pub(crate) fn outputs_of<B: Bits>(&self, t: &Trace<B>) -> Outputs {
         let f = t.outputs_flags;
-        Outputs {
+        let mut outputs = Outputs {
             result: t.result.to_word(),
             carry_out: f.carry_out,
             overflow: f.overflow,
@@ -542,7 +547,13 @@ impl Model {
             remainder: t.remainder.to_word(),
             div_by_zero: f.div_by_zero,
             dont_care: f.dont_care,
+        };
+        // `conventions.active_low`: these one-bit flags are inverted on the way out.
+        for s in self.active_low.signals() {
+            let v = outputs.get(s).bit(0);
+            outputs.set(s, Word::from_u64(!v as u64));
         }
+        outputs
     }
 
     fn zero_flag_of<B: Bits>(&self, result: B) -> bool {

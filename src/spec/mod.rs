@@ -19,8 +19,10 @@ use crate::error::{Error, Problem, Result};
 
 mod conventions;
 use conventions::ConventionKey;
+mod flags;
 mod ops;
 mod select;
+pub use flags::ActiveLow;
 pub use ops::{
     default_amount_width, DivByZero, LargeAmount, OpOptions, ResultPart, Rounding, Signedness,
 };
@@ -492,6 +494,10 @@ pub struct Conventions {
     /// identity of every spec written before the key existed is unchanged.
     #[serde(skip_serializing_if = "OffsetCarry::is_inner")]
     pub offset_carry: OffsetCarry,
+    /// Flags that are 1 when false (see [`ActiveLow`]); left out of the normalised JSON
+    /// when empty.
+    #[serde(skip_serializing_if = "ActiveLow::is_empty")]
+    pub active_low: ActiveLow,
 }
 
 impl Default for Conventions {
@@ -502,6 +508,7 @@ impl Default for Conventions {
             negative_zero: NegativeZero::Hardware,
             zero_flag: ZeroFlag::Value,
             offset_carry: OffsetCarry::Inner,
+            active_low: ActiveLow::default(),
         }
     }
 }
@@ -681,6 +688,7 @@ impl Spec {
         }
         conv.push_str(&option_conv);
         conv.push_str(&self.select_conventions_toml());
+        conv.push_str(&self.active_low_toml());
         if !conv.is_empty() {
             t.push_str("\n[conventions]\n");
             t.push_str(&conv);
@@ -786,6 +794,7 @@ fn convention_table_keys() -> Vec<&'static str> {
     ];
     keys.extend(ops::CONVENTION_KEYS);
     keys.push(select::CONVENTION_KEY);
+    keys.push(flags::CONVENTION_KEY);
     keys
 }
 
@@ -1081,6 +1090,7 @@ impl<'a> Reader<'a> {
         }
         if let Some(t) = conv_table {
             self.read_select_conventions(t, &mut spec);
+            self.read_active_low(t, &mut spec);
             self.read_conventions(t, &mut spec);
             self.read_option_conventions(t, &mut spec);
         }

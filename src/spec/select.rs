@@ -360,3 +360,26 @@ impl Reader<'_> {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn select_spec_with_active_low_reads_back_equal() {
+        let text = "name = \"x\"\noperation = \"select\"\nwidth = 8\nencoding = \"twos\"\n\
+                    [select]\nwidth = 3\nsub = 0x1\nadd = 0x4\ncompare = 2\n\
+                    [ports]\na = \"a\"\nb = \"b\"\nselect = \"op\"\nresult = \"y\"\n\
+                    carry_out = \"co\"\nzero = \"z\"\nless = \"lt\"\n\
+                    [conventions]\ncarry_out = \"carry\"\nundefined_outputs = \"zero\"\n\
+                    active_low = [\"zero\", \"less\"]\n";
+        let spec = Spec::parse(text, "x.toml").unwrap();
+        let select = spec.select.as_ref().unwrap();
+        assert_eq!(select.operation_of(4), Some(Operation::Add));
+        assert_eq!(select.undefined_outputs, UndefinedOutputs::Zero);
+        assert!(spec.conventions.active_low.contains(Signal::Less));
+        assert_eq!(spec.signal_width(Signal::Select), 3);
+        let again = Spec::parse(&spec.to_toml(), "again.toml").unwrap();
+        assert_eq!(again, spec, "{}", spec.to_toml());
+    }
+}

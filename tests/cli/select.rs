@@ -226,3 +226,64 @@ fn issue10_select_spec_reads_back_and_self_check_needs_zero() {
         .expect_code(0)
         .expect_stdout("add");
 }
+
+#[test]
+fn issue10_active_low_flags_are_inverted_and_bad_entries_refused() {
+    let sb = Sandbox::new();
+    sb.write(
+        "low.toml",
+        &alu(GOOD, "\n[conventions]\nactive_low = [\"zero\", \"less\"]\n"),
+    );
+    sb.write("high.toml", &alu(GOOD, ""));
+    sb.gen("low.toml", "low", &[]).expect_code(0);
+    sb.gen("high.toml", "high", &[]).expect_code(0);
+    let (low, high) = (VectorCsv::read(&sb, "low"), VectorCsv::read(&sb, "high"));
+    assert_eq!(low.rows.len(), high.rows.len());
+    let flip = |v: &str| if v == "1" { "0" } else { "1" };
+    for i in 0..low.rows.len() {
+        let defined = |port: &str| match low.get(i, "op") {
+            "5" => ["lt", "eq", "gt"].contains(&port),
+            _ => !["lt", "eq", "gt"].contains(&port),
+        };
+        for port in ["z", "lt"] {
+            if defined(port) {
+                assert_eq!(low.get(i, port), flip(high.get(i, port)), "row {i} {port}");
+            }
+        }
+        assert_eq!(low.get(i, "n"), high.get(i, "n"), "row {i} n");
+        assert_eq!(low.get(i, "eq"), high.get(i, "eq"), "row {i} eq");
+    }
+    // The active-high log fails the active-low spec on exactly the z and lt columns.
+    sb.write("highlog.csv", &high.perfect_log().csv());
+    let (_, report) = sb.check("low.toml", "highlog.csv", &["--vectors", "low"], 1);
+    let ports: Vec<(String, u64)> = report["output_ports"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|p| p["wrong"].as_u64() > Some(0))
+        .map(|p| (p["port"].as_str().unwrap().to_string(), 0))
+        .collect();
+    let names: Vec<&str> = ports.iter().map(|(p, _)| p.as_str()).collect();
+    assert_eq!(names, ["z", "lt"]);
+    // Bad entries: not a flag, a flag the unit lacks, listed twice.
+    for (list, words) in [
+        ("[\"result\"]", "\"result\" is not a flag"),
+        ("[\"zero\", \"zero\"]", "\"zero\" is listed twice"),
+        ("\"zero\"", "expected a list of flag names"),
+    ] {
+        sb.write(
+            "bad.toml",
+            &alu(GOOD, &format!("\n[conventions]\nactive_low = {list}\n")),
+        );
+        sb.run(&["classes", "bad.toml"])
+            .expect_code(2)
+            .expect_stderr("bad.toml:27: conventions.active_low: ")
+            .expect_stderr(words);
+    }
+    let text = alu(GOOD, "\n[conventions]\nactive_low = [\"overflow\"]\n")
+        .replace("overflow = \"v\"\n", "");
+    sb.write("nov.toml", &text);
+    sb.run(&["classes", "nov.toml"])
+        .expect_code(2)
+        .expect_stderr("the unit has no overflow port");
+}

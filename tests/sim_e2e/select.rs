@@ -131,3 +131,53 @@ fn issue10_select_alu_zero_polarity_bug_names_the_zero_classes() {
     }
     timing.finish(3);
 }
+
+/// The ALU with an active-low zero flag (`ZERO_ACTIVE_LOW = 1`) passes on every simulator
+/// when the spec says `active_low = ["zero"]`; with the polarity bug on top it fails on z,
+/// naming the zero classes.
+#[test]
+fn issue10_active_low_zero_passes_and_its_polarity_bug_is_caught() {
+    let timing = Timing::start("issue10_active_low_zero_passes_and_its_polarity_bug_is_caught");
+    let mut loops = 0;
+    let low = |width: u32| {
+        alu(width)
+            .tables("\n[conventions]\nactive_low = [\"zero\"]\n")
+            .parameter("ZERO_ACTIVE_LOW", 1)
+    };
+    for simulator in [Simulator::Icarus, Simulator::Verilator, Simulator::Ghdl] {
+        if !simulator.available() {
+            continue;
+        }
+        let source = match simulator {
+            Simulator::Ghdl => hdl("select/select_alu.vhd"),
+            _ => hdl("select/select_alu.v"),
+        };
+        for width in [8, 72] {
+            let outcome = run_loop(
+                &low(width),
+                simulator,
+                std::slice::from_ref(&source),
+                Options::default(),
+            );
+            outcome.assert_clean_pass();
+            loops += 1;
+        }
+    }
+    if Simulator::Icarus.available() {
+        let outcome = run_loop(
+            &low(32).parameter("BUG", 1),
+            Simulator::Icarus,
+            &[hdl("select/select_alu.v")],
+            Options::default(),
+        );
+        let why = outcome.summary();
+        assert_eq!(outcome.check_code, 1, "{why}");
+        let failing = failing_classes(&outcome.report);
+        assert!(failing.contains("add.result.zero_from_nonzero"), "{why}");
+        for f in failures(&outcome.report).values() {
+            assert_eq!(wrong_ports(f), ["z".to_string()].into(), "{why}");
+        }
+        loops += 1;
+    }
+    timing.finish(loops);
+}

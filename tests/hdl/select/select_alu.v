@@ -4,10 +4,12 @@
 // Flags of add, sub and negate: co (carry out of add; borrow of sub and negate, 0 - a),
 // v (signed overflow), z (result zero), n (result sign). During compare rd and the
 // arithmetic flags are 0; during add, sub and negate lt, eq and gt are 0.
-// BUG selects an injected bug for the tests (0 = none):
-//   1: the zero flag's polarity inverted (z = 1 when the result is not zero)
+// ZERO_ACTIVE_LOW = 1 makes z active low (0 when the result is zero, during add, sub and
+// negate). BUG selects an injected bug for the tests (0 = none):
+//   1: the zero flag's polarity inverted against ZERO_ACTIVE_LOW
 module select_alu #(
     parameter W = 8,
+    parameter ZERO_ACTIVE_LOW = 0,
     parameter BUG = 0
 ) (
     input  wire [W-1:0] a,
@@ -54,7 +56,7 @@ module select_alu #(
             default: ;
         endcase
         if (op == 4'h0 || op == 4'h1 || op == 4'h6) begin
-            z = (BUG == 1) ? (rd != 0) : (rd == 0);
+            z = (rd == 0) ^ (BUG == 1) ^ (ZERO_ACTIVE_LOW == 1);
             n = rd[W-1];
         end
     end

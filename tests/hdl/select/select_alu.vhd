@@ -4,15 +4,17 @@
 --   op x"5": compare a, b (lt, eq, gt; signed)      op x"6": rd = -a
 -- co is the carry out of add and the borrow of sub and negate (0 - a); v is signed overflow;
 -- z is result zero; n is the result sign. During compare rd and the arithmetic flags are 0;
--- during add, sub and negate lt, eq and gt are 0. BUG = 1 inverts the zero flag's polarity.
+-- during add, sub and negate lt, eq and gt are 0. ZERO_ACTIVE_LOW = 1 makes z active low;
+-- BUG = 1 inverts the zero flag's polarity against it.
 library ieee;
 use ieee.std_logic_1164.all;
 use ieee.numeric_std.all;
 
 entity select_alu is
     generic (
-        W   : natural := 8;
-        BUG : natural := 0);
+        W               : natural := 8;
+        ZERO_ACTIVE_LOW : natural := 0;
+        BUG             : natural := 0);
     port (
         a  : in  std_logic_vector(W - 1 downto 0);
         b  : in  std_logic_vector(W - 1 downto 0);
@@ -67,7 +69,9 @@ begin
         end case;
         rd <= r;
         if arith then
-            if (unsigned(r) = 0) xor (BUG = 1) then z <= '1'; end if;
+            if ((unsigned(r) = 0) xor (BUG = 1)) xor (ZERO_ACTIVE_LOW = 1) then
+                z <= '1';
+            end if;
             n <= r(W - 1);
         end if;
     end process;
