@@ -37,20 +37,6 @@ const NOT_RUN: &[(&str, &str)] = &[
         "ARITHVEC=$PWD/target/release/arithvec OUT=$PWD/farm REQUIRE=100 \\",
         "submits to a Slurm cluster",
     ),
-    // Added on main by other branches; their comments are prose rather than this test's
-    // output lines, so they are not run yet (to do: rewrite them as runnable examples).
-    (
-        "S=tests/hdl/specs/behav_offset_sub.toml",
-        "not yet in runnable form",
-    ),
-    (
-        "yosys -q -p \"read_verilog tests/hdl/behav/behav_sub.v; chparam -set W 16 behav_sub; synth -flatten -top behav_sub; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json behav_sub.json\"",
-        "not yet in runnable form",
-    ),
-    (
-        "yosys -q -p \"read_verilog tests/hdl/bugs/ripple_add_bug_overflow.v tests/hdl/full_adder.v; chparam -set W 16 ripple_add_bug_overflow; synth -flatten -top ripple_add_bug_overflow; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json bug.json\"",
-        "not yet in runnable form",
-    ),
 ];
 
 /// One fenced block of README.md.
