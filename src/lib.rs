@@ -110,3 +110,6 @@ pub use verdict::html::{
 };
 pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict_line, ClassRows};
 pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};
+pub use verdict::table::{
+    render_table, render_table_with, set_table_layout, table_layout, TableLayout,
+};

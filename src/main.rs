@@ -32,6 +32,10 @@ struct Cli {
     /// Print nothing but errors (and, for check, the verdict line).
     #[arg(long, short, global = true)]
     quiet: bool,
+    /// Draw tables with + - | only (automatic when the locale is not UTF-8). Tables wrap to
+    /// COLUMNS, or to the terminal's width when stdout is one; files and pipes get full rows.
+    #[arg(long, global = true)]
+    ascii: bool,
     #[command(subcommand)]
     command: Command,
 }
@@ -201,6 +205,7 @@ fn main() -> ExitCode {
 
 fn run(cli: Cli) -> Result<Outcome, Error> {
     let quiet = cli.quiet;
+    arithvec::set_table_layout(cli::util::table_layout(cli.ascii));
     match cli.command {
         Command::Gen {
             spec,

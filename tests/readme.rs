@@ -233,7 +233,10 @@ fn readme_examples_run_as_printed() {
         .arg("-c")
         .arg(&script)
         .current_dir(sandbox.root())
-        .env("COLUMNS", "100")
+        // README shows full-width, box-drawn tables: no width limit, a UTF-8 locale.
+        .env_remove("COLUMNS")
+        .env_remove("LC_ALL")
+        .env("LC_CTYPE", "C.UTF-8")
         .status()
         .expect("start bash");
     assert!(status.success(), "the README script itself failed");

@@ -6,8 +6,6 @@ use std::path::Path;
 use std::process::ExitCode;
 
 use arithvec::{Error, Spec};
-use tabled::builder::Builder;
-use tabled::settings::Style;
 
 /// How a subcommand ended, mapped to the documented exit codes.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -77,16 +75,44 @@ pub fn progress_bar(total: u64, quiet: bool, unit: &str) -> Option<indicatif::Pr
     Some(bar)
 }
 
-/// A plain table with a header row.
+/// A plain table with a header row, in the process's table layout (see [`table_layout`]).
 pub fn table<const N: usize>(header: &[&str; N], rows: &[[String; N]]) -> String {
-    let mut b = Builder::default();
-    b.push_record(header.iter().map(|h| h.to_string()));
-    for r in rows {
-        b.push_record(r.iter().cloned());
+    arithvec::render_table(header, rows.iter().map(|r| r.iter().cloned()))
+}
+
+/// The table layout for this run: ASCII with `--ascii` or when the locale (the first set of
+/// `LC_ALL`, `LC_CTYPE`, `LANG`) names a character set other than UTF-8; a width limit from
+/// `COLUMNS`, else the terminal's width when stdout is a terminal, else none (files and pipes
+/// get full-width rows).
+pub fn table_layout(ascii_flag: bool) -> arithvec::TableLayout {
+    let locale = ["LC_ALL", "LC_CTYPE", "LANG"]
+        .iter()
+        .filter_map(|k| std::env::var(k).ok())
+        .find(|v| !v.is_empty());
+    let utf8 = match locale {
+        None => true,
+        Some(v) => {
+            let v = v.to_ascii_lowercase();
+            v.contains("utf-8") || v.contains("utf8")
+        }
+    };
+    let columns = std::env::var("COLUMNS")
+        .ok()
+        .and_then(|c| c.trim().parse::<usize>().ok())
+        .filter(|&c| c > 0);
+    let max_width = columns.or_else(|| {
+        if std::io::stdout().is_terminal() {
+            console::Term::stdout()
+                .size_checked()
+                .map(|(_, cols)| cols as usize)
+        } else {
+            None
+        }
+    });
+    arithvec::TableLayout {
+        ascii: ascii_flag || !utf8,
+        max_width,
     }
-    let mut t = b.build();
-    t.with(Style::sharp());
-    t.to_string()
 }
 
 /// Writes `text` to `path` atomically (temporary file, then rename).

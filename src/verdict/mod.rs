@@ -11,3 +11,4 @@ pub(crate) mod coverage;
 pub(crate) mod html;
 pub(crate) mod report;
 pub(crate) mod seen;
+pub(crate) mod table;

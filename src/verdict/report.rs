@@ -6,21 +6,12 @@
 //! file has a failure exactly when the exit code is not 0.
 
 use quick_junit::{NonSuccessKind, Report, TestCase, TestCaseStatus, TestSuite};
-use tabled::builder::Builder;
-use tabled::settings::Style;
 
 use crate::verdict::check::{CheckReport, Verdict};
 use crate::verdict::coverage::ClassStatus;
 
 fn table(header: &[&str], rows: Vec<Vec<String>>) -> String {
-    let mut b = Builder::default();
-    b.push_record(header.iter().map(|h| h.to_string()));
-    for r in rows {
-        b.push_record(r);
-    }
-    let mut t = b.build();
-    t.with(Style::sharp());
-    t.to_string()
+    crate::verdict::table::render_table(header, rows)
 }
 
 /// Which classes the text report lists.

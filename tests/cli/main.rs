@@ -18,6 +18,7 @@ mod select;
 mod spec_errors;
 #[path = "../support/mod.rs"]
 mod support;
+mod tables;
 mod threads;
 mod util;
 mod verdict;

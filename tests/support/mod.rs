@@ -167,8 +167,13 @@ impl Sandbox {
 
     /// [`Sandbox::run`] with extra environment variables set for the child.
     pub fn run_with_env(&self, args: &[&str], env: &[(&str, &str)]) -> Run {
+        // Tables are drawn as on a UTF-8 log without a width limit unless a test sets
+        // COLUMNS or the locale itself.
         let output = Command::new(BIN)
             .args(args)
+            .env_remove("COLUMNS")
+            .env_remove("LC_ALL")
+            .env("LC_CTYPE", "C.UTF-8")
             .envs(env.iter().copied())
             .current_dir(self.root())
             .output()
