@@ -118,7 +118,8 @@ enum Command {
         /// this shows the vector a longer set would hold there.
         #[arg(long)]
         beyond: bool,
-        /// Output format: text, or csv (the header and the vector's row of vectors.csv).
+        /// Output format: text, csv (the header and the vector's row of vectors.csv), or json
+        /// (one document: origin, every input and expected output, classes and bins hit).
         #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
         format: ReproFormat,
     },
@@ -178,6 +179,7 @@ enum HdlArg {
 enum ReproFormat {
     Text,
     Csv,
+    Json,
 }
 
 fn main() -> ExitCode {
@@ -534,6 +536,55 @@ fn repro(
     let mut hits = arithvec::Hits::new();
     let outputs = cat.evaluate(&inputs, &mut hits);
     let d = generator.directed().len() as u64;
+    if format == ReproFormat::Json {
+        let port = |role: &str, sig: Signal, name: &str, v: &arithvec::Word| {
+            let [_, _, hex, binary, value] = field_row(role, sig, name, v, &spec);
+            serde_json::json!({
+                "port": name, "role": sig.key(), "hex": hex, "binary": binary, "value": value,
+            })
+        };
+        let inputs_json: Vec<_> = spec
+            .inputs()
+            .into_iter()
+            .map(|(sig, name)| port("input", sig, name, &inputs.get(sig)))
+            .collect();
+        let outputs_json: Vec<_> = spec
+            .outputs()
+            .into_iter()
+            .map(|(sig, name)| port("expected", sig, name, &outputs.get(sig)))
+            .collect();
+        let mut bins = Vec::new();
+        hits.for_each_bin(|b| bins.push(b));
+        bins.sort_unstable();
+        let mut classes: Vec<String> = Vec::new();
+        for &b in &bins {
+            let id = cat.classes()[cat.class_of_bin(b)].id().to_string();
+            if !classes.contains(&id) {
+                classes.push(id);
+            }
+        }
+        let doc = serde_json::json!({
+            "unit": spec.name,
+            "operation": spec.operation.to_string(),
+            "encoding": spec.encoding.to_string(),
+            "width": spec.width,
+            "index": index,
+            "origin": if index < d { "directed" } else { "random" },
+            "directed_vectors": d,
+            "random_index": index.checked_sub(d),
+            "seed": generator.seed(),
+            "set_vectors": set_total,
+            "past_end_of_set": index >= set_total,
+            "inputs": inputs_json,
+            "expected": outputs_json,
+            "classes": classes,
+            "bins": bins.iter().map(|&b| cat.bin_id(b)).collect::<Vec<_>>(),
+        });
+        let text = serde_json::to_string_pretty(&doc)
+            .map_err(|e| Error::io(Path::new("<stdout>"), std::io::Error::other(e.to_string())))?;
+        writeln!(o, "{text}").map_err(cli::util::stdout_error)?;
+        return Ok(Outcome::Success);
+    }
     let origin = if index < d {
         format!("directed vector {index} of {d}")
     } else {

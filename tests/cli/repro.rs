@@ -111,3 +111,28 @@ fn issue9_an_index_past_the_set_is_refused_unless_beyond() {
     sb.run(&["repro", &spec, "--index", "5000", "--count", "10000"])
         .expect_code(0);
 }
+
+/// Issue 9, item 19: `repro --format json` is one document naming the vector's origin, each
+/// input and expected output, and the classes it hits.
+#[test]
+fn issue9_repro_json_is_one_document() {
+    let sb = crate::util::Sandbox::new();
+    let spec = sb.write("adder.toml", crate::util::FLOW_ADDER);
+    let run = sb.run(&["repro", &spec, "--index", "3", "--format", "json"]);
+    run.expect_code(0);
+    let doc: serde_json::Value = serde_json::from_str(&run.stdout).expect("one JSON document");
+    assert_eq!(doc["index"], 3);
+    assert_eq!(doc["origin"], "directed");
+    assert_eq!(doc["unit"], "flow_adder");
+    let inputs = doc["inputs"].as_array().expect("inputs");
+    assert!(inputs.iter().any(|p| p["port"] == "a"), "{}", run.stdout);
+    let expected = doc["expected"].as_array().expect("expected");
+    assert!(expected.iter().any(|p| p["port"] == "y"), "{}", run.stdout);
+    assert!(!doc["classes"].as_array().expect("classes").is_empty());
+    let random = sb.run(&["repro", &spec, "--index", "40", "--format", "json"]);
+    random.expect_code(0);
+    let doc: serde_json::Value = serde_json::from_str(&random.stdout).expect("one document");
+    assert_eq!(doc["origin"], "random");
+    assert_eq!(doc["random_index"], 4);
+    assert_eq!(doc["seed"], 5);
+}
