@@ -94,7 +94,8 @@ pub use spec::{
     check_ranges, default_amount_width, is_identifier, parse_port_text, ActiveLow, Bundle,
     CarryInConvention, CarryOutConvention, Conventions, DivByZero, Dut, Encoding, LargeAmount, Mix,
     NegativeZero, OffsetCarry, OpOptions, Operation, ParamValue, PortRange, Ports, RandomSettings,
-    ResultPart, Rounding, SelectSpec, Signal, Signedness, Spec, UndefinedOutputs, ZeroFlag,
+    ResultPart, Rounding, SelectSpec, Signal, Signedness, Spec, UndefinedOutputs, VhdlType,
+    VhdlTypes, ZeroFlag,
 };
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,

@@ -13,11 +13,13 @@ fn hdl_dir() -> PathBuf {
         .join("hdl")
 }
 
-/// The Verilog source that defines `module`, if any (one module per file, named after it).
+/// The source that defines `module`, if any (one module per file, named after it): Verilog,
+/// or VHDL under `vhdl/` for a unit that exists only in VHDL.
 fn module_source(module: &str) -> Option<PathBuf> {
     ["", "bugs", "behav"]
         .iter()
         .map(|sub| hdl_dir().join(sub).join(format!("{module}.v")))
+        .chain([hdl_dir().join("vhdl").join(format!("{module}.vhd"))])
         .find(|p| p.is_file())
 }
 
@@ -46,8 +48,13 @@ fn every_hdl_spec_parses_and_names_an_existing_module() {
         let source = module_source(&dut.module)
             .unwrap_or_else(|| panic!("{file}: no source for module {}", dut.module));
         let verilog = fs::read_to_string(&source).expect("module source is readable");
+        let declares = if source.extension().is_some_and(|x| x == "vhd") {
+            format!("entity {} is", dut.module)
+        } else {
+            format!("module {} ", dut.module)
+        };
         assert!(
-            verilog.contains(&format!("module {} ", dut.module)),
+            verilog.contains(&declares),
             "{}: does not define module {}",
             source.display(),
             dut.module
@@ -60,10 +67,11 @@ fn every_hdl_spec_parses_and_names_an_existing_module() {
         seen += 1;
     }
     // Six reference units, seven bug variants, seven behavioural models in two encodings, and
-    // the offset-binary subtractor of the top-up tests.
+    // the offset-binary subtractor of the top-up tests, and the VHDL adder with numeric_std
+    // ports.
     assert_eq!(
         seen,
-        6 + 7 + 14 + 1,
+        6 + 7 + 14 + 1 + 1,
         "number of spec files under tests/hdl/specs"
     );
 }

@@ -19,6 +19,10 @@ pub(crate) struct SelectModel {
     pub(crate) parts: Vec<(u32, Operation, Model)>,
     encoding: Encoding,
     undefined_zero: bool,
+    /// The unit's output ports. Only these are cleared: some outputs share storage in
+    /// [`Outputs`] (a quotient is kept in the result), so clearing a signal the unit does not
+    /// have could clear one it does.
+    outputs: Vec<Signal>,
 }
 
 impl SelectModel {
@@ -33,6 +37,10 @@ impl SelectModel {
                 .collect(),
             encoding: spec.encoding,
             undefined_zero: select.undefined_outputs == UndefinedOutputs::Zero,
+            outputs: Signal::ALL
+                .into_iter()
+                .filter(|&s| !s.is_input() && spec.has(s))
+                .collect(),
         })
     }
 
@@ -55,8 +63,8 @@ impl SelectModel {
     /// Outputs `op` does not define are 0 in the expected values (what a unit under
     /// `undefined_outputs = "zero"` must drive; unchecked otherwise).
     fn clear_undefined(&self, op: Operation, mut outputs: Outputs) -> Outputs {
-        for s in Signal::ALL {
-            if !s.is_input() && !Spec::defines(op, s, self.encoding) {
+        for &s in &self.outputs {
+            if !Spec::defines(op, s, self.encoding) {
                 outputs.set(s, crate::arith::word::Word::ZERO);
             }
         }

@@ -482,9 +482,14 @@ pub fn write_topped_up(
         // A selection's readers regenerate its source set, which imported vectors are not
         // part of; refuse rather than write a set whose vectors check could not rebuild.
         return Err(Error::problem(Problem::new(
-            "--compact",
-            "the vector set holds imported vectors, and a compacted selection of such a set \
-             is not supported yet; grade without --compact",
+            if top_up.is_empty() {
+                "--compact"
+            } else {
+                "--top-up"
+            },
+            "the vector set holds imported vectors, and writing a selection or a topped-up \
+             copy of such a set is not supported yet; grade it without --compact and \
+             --top-up --out",
         )));
     }
     let mut added = Vec::with_capacity(top_up.len());

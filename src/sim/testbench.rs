@@ -19,7 +19,7 @@ use std::fmt::Write as _;
 
 use crate::error::{Error, Problem, Result};
 use crate::sets::layout::{Field, Layout, WordLayout};
-use crate::spec::{DivByZero, Dut, NegativeZero, ParamValue, Signal, Spec};
+use crate::spec::{DivByZero, Dut, NegativeZero, ParamValue, Signal, Spec, VhdlType};
 
 /// The hardware description language of an emitted testbench.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -373,6 +373,72 @@ impl<'a> Plan<'a> {
             }
         }
         list
+    }
+
+    /// The VHDL port map's connections: `connections` with each port's direction and, for a
+    /// vector port, its VHDL type from `[dut] vhdl_types`.
+    fn vhdl_connections(&self) -> Vec<VhdlConnection> {
+        let inputs: Vec<String> = self
+            .layout
+            .stimulus
+            .fields
+            .iter()
+            .map(|f| match self.spec.ports.range(f.signal) {
+                Some(r) => r.port,
+                None => f.name.clone(),
+            })
+            .collect();
+        let bundles: Vec<String> = self
+            .spec
+            .ports
+            .bundles()
+            .into_iter()
+            .map(|b| b.port)
+            .collect();
+        let vectors: Vec<String> = self
+            .all_fields()
+            .filter(|f| is_vector(f) && self.spec.ports.range(f.signal).is_none())
+            .map(|f| f.name.clone())
+            .chain(bundles)
+            .collect();
+        self.connections()
+            .into_iter()
+            .map(|(port, signal)| {
+                let ty = if vectors.contains(&port) {
+                    self.dut.vhdl_types.of(&port)
+                } else {
+                    VhdlType::StdLogicVector
+                };
+                VhdlConnection {
+                    input: inputs.contains(&port),
+                    ty,
+                    port,
+                    signal,
+                }
+            })
+            .collect()
+    }
+
+    /// The header's lines on the DUT's port types.
+    fn vhdl_port_types_note(&self) -> Vec<String> {
+        let typed: Vec<String> = self
+            .vhdl_connections()
+            .into_iter()
+            .filter(|c| c.ty != VhdlType::StdLogicVector)
+            .map(|c| format!("{} {}", c.port, c.ty.name()))
+            .collect();
+        let mut lines = vec![
+            "DUT ports: std_logic_vector for operands and result (even at width 1), std_logic"
+                .to_string(),
+            "for the one-bit signals.".to_string(),
+        ];
+        if !typed.is_empty() {
+            lines[1] =
+                "for the one-bit signals, except these numeric_std ports ([dut] vhdl_types),"
+                    .to_string();
+            lines.push(format!("converted at the port map: {}.", typed.join(", ")));
+        }
+        lines
     }
 
     /// Verilog declarations of the bundle signals and the assignments between them and the
@@ -762,10 +828,8 @@ impl<'a> Plan<'a> {
                 self.dut.module
             ),
             "(the values shown are the defaults).".to_string(),
-            "DUT ports: std_logic_vector for operands and result (even at width 1), std_logic"
-                .to_string(),
-            "for the one-bit signals.".to_string(),
         ]);
+        header.extend(self.vhdl_port_types_note());
         if check {
             header.push(
                 "On a mismatch the run ends with a severity failure report (GHDL exit status 1)."
@@ -784,7 +848,16 @@ impl<'a> Plan<'a> {
         let stim = &self.layout.stimulus;
         let exp = &self.layout.expected;
         let name = &self.name;
-        out.push_str("library ieee;\nuse ieee.std_logic_1164.all;\nuse std.textio.all;\n\n");
+        out.push_str("library ieee;\nuse ieee.std_logic_1164.all;\n");
+        if self
+            .vhdl_connections()
+            .iter()
+            .any(|c| c.ty != VhdlType::StdLogicVector)
+        {
+            // For the DUT's unsigned / signed ports ([dut] vhdl_types).
+            out.push_str("use ieee.numeric_std.all;\n");
+        }
+        out.push_str("use std.textio.all;\n\n");
         let _ = writeln!(out, "entity {name} is\n  generic (");
         let mut generic_lines = vec![
             "    stimulus : string := \"stimulus.hex\"".to_string(),
@@ -868,9 +941,9 @@ impl<'a> Plan<'a> {
             let _ = writeln!(out, "    generic map (\n{}\n    )", params.join(",\n"));
         }
         let ports: Vec<String> = self
-            .connections()
+            .vhdl_connections()
             .into_iter()
-            .map(|(port, signal)| format!("      {port} => {signal}"))
+            .map(|c| c.port_map_line())
             .collect();
         let _ = writeln!(out, "    port map (\n{}\n    );\n", ports.join(",\n"));
         self.vhdl_bundle_assignments(&mut out);
@@ -1102,6 +1175,28 @@ const VHDL_HELPERS: &str = r#"
   end procedure p_next_word;
 
 "#;
+
+/// One port of the VHDL port map.
+struct VhdlConnection {
+    port: String,
+    signal: String,
+    input: bool,
+    ty: VhdlType,
+}
+
+impl VhdlConnection {
+    /// `port => signal`, converted when the DUT's port is unsigned or signed: the actual is
+    /// converted for an input, the formal for an output (the testbench's signals stay
+    /// std_logic_vector).
+    fn port_map_line(&self) -> String {
+        let (port, signal) = (&self.port, &self.signal);
+        match (self.ty, self.input) {
+            (VhdlType::StdLogicVector, _) => format!("      {port} => {signal}"),
+            (ty, true) => format!("      {port} => {}({signal})", ty.name()),
+            (_, false) => format!("      std_logic_vector({port}) => {signal}"),
+        }
+    }
+}
 
 /// The testbench's own name for the signal carried by `field`.
 fn signal_name(field: &Field) -> String {
@@ -1568,6 +1663,7 @@ parameters = { W = 16, STYLE = "say \"fast\"" }
         spec.dut = Some(Dut {
             module: "inc1".to_string(),
             parameters: BTreeMap::new(),
+            vhdl_types: Default::default(),
         });
         let text = emit(&spec, Hdl::Vhdl, true);
         assert!(text.contains("signal s_a : std_logic_vector(0 downto 0) := (others => '0');"));
@@ -1650,6 +1746,35 @@ parameters = { W = 16, STYLE = "say \"fast\"" }
         assert_eq!(
             fields,
             ["dut.module", "dut.parameters.NOTE", "dut.parameters.W"]
+        );
+    }
+
+    #[test]
+    fn vhdl_converts_numeric_std_ports_at_the_port_map() {
+        let text = format!("{SUB16}vhdl_types = {{ a = \"signed\", d = \"unsigned\" }}\n");
+        let spec = Spec::parse(&text, "t.toml").unwrap();
+        let vhdl = emit(&spec, Hdl::Vhdl, true);
+        for line in [
+            "use ieee.numeric_std.all;",
+            "      a => signed(s_a),",
+            "      b => s_b,",
+            "      std_logic_vector(d) => s_result,",
+            "      bout => s_carry_out,",
+            "converted at the port map: a signed, d unsigned.",
+        ] {
+            assert!(vhdl.contains(line), "missing {line:?} in\n{vhdl}");
+        }
+        // The testbench's own signals stay std_logic_vector.
+        assert!(vhdl.contains("signal s_a : std_logic_vector(15 downto 0) := (others => '0');"));
+        // Without the key nothing is converted and numeric_std is not used.
+        let plain = emit(&sub16(), Hdl::Vhdl, true);
+        assert!(!plain.contains("numeric_std"));
+        assert!(plain.contains("      a => s_a,"));
+        assert!(plain.contains("      d => s_result,"));
+        // Verilog ignores the key.
+        assert_eq!(
+            emit(&spec, Hdl::Verilog, true),
+            emit(&sub16(), Hdl::Verilog, true)
         );
     }
 }

@@ -29,6 +29,8 @@ pub use ops::{
 pub use select::{SelectSpec, UndefinedOutputs};
 mod ports;
 pub use ports::{check_ranges, parse_port_text, Bundle, PortRange};
+mod vhdl_types;
+pub use vhdl_types::{VhdlType, VhdlTypes};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -554,6 +556,9 @@ pub struct Dut {
     pub module: String,
     /// Parameters / generics, by name.
     pub parameters: BTreeMap<String, ParamValue>,
+    /// The VHDL types of its vector ports (`vhdl_types`; default std_logic_vector).
+    #[serde(skip_serializing_if = "VhdlTypes::is_default")]
+    pub vhdl_types: VhdlTypes,
 }
 
 /// A validated operation spec.
@@ -717,6 +722,7 @@ impl Spec {
                     .collect();
                 t.push_str(&format!("parameters = {{ {} }}\n", list.join(", ")));
             }
+            t.push_str(&d.vhdl_types.to_toml());
         }
         t
     }
@@ -1101,6 +1107,10 @@ impl<'a> Reader<'a> {
         }
         if let Some(t) = dut_table {
             spec.dut = self.read_dut(t);
+            let types = self.read_vhdl_types(t, &spec);
+            if let Some(d) = spec.dut.as_mut() {
+                d.vhdl_types = types;
+            }
         }
         Some(spec)
     }
@@ -1389,7 +1399,7 @@ impl<'a> Reader<'a> {
     }
 
     fn read_dut(&mut self, t: &Table<'_>) -> Option<Dut> {
-        self.check_keys(t, "dut.", &["module", "parameters"]);
+        self.check_keys(t, "dut.", &["module", "parameters", "vhdl_types"]);
         let module = self.string(t, "dut.", "module");
         if let Some((m, at)) = &module {
             if !is_identifier(m) {
@@ -1441,7 +1451,11 @@ impl<'a> Reader<'a> {
                 _ => self.problem(v.span(), "dut.parameters", "expected a table"),
             }
         }
-        module.map(|(module, _)| Dut { module, parameters })
+        module.map(|(module, _)| Dut {
+            module,
+            parameters,
+            vhdl_types: VhdlTypes::default(),
+        })
     }
 }
 
@@ -1552,6 +1566,7 @@ carry_out = "carry"
                     parameters: [("W".to_string(), ParamValue::Int(8))]
                         .into_iter()
                         .collect(),
+                    vhdl_types: VhdlTypes::default(),
                 });
                 assert_eq!(
                     Spec::parse(&s.to_toml(), "x.toml").unwrap(),
@@ -1587,5 +1602,51 @@ result = "index"
             .collect();
         assert!(fields.contains(&"ports.b".to_string()));
         assert!(fields.contains(&"ports.result".to_string()));
+    }
+
+    #[test]
+    fn reads_vhdl_types_and_refuses_bad_values_at_their_line() {
+        let base = "name = \"x\"\noperation = \"add\"\nwidth = 8\nencoding = \"unsigned\"\n\
+                    [ports]\na = \"a\"\nb = \"b\"\nresult = \"y\"\ncarry_out = \"co\"\n\
+                    [dut]\nmodule = \"m\"\n";
+        let spec = Spec::parse(&format!("{base}vhdl_types = \"unsigned\"\n"), "v.toml").unwrap();
+        let types = &spec.dut.as_ref().unwrap().vhdl_types;
+        assert_eq!(types.of("a"), VhdlType::Unsigned);
+        assert_eq!(Spec::parse(&spec.to_toml(), "again.toml").unwrap(), spec);
+        let text = format!("{base}vhdl_types = {{ y = \"signed\" }}\n");
+        let spec = Spec::parse(&text, "v.toml").unwrap();
+        let types = &spec.dut.as_ref().unwrap().vhdl_types;
+        assert_eq!(
+            (types.of("y"), types.of("a")),
+            (VhdlType::Signed, VhdlType::StdLogicVector)
+        );
+        assert_eq!(Spec::parse(&spec.to_toml(), "again.toml").unwrap(), spec);
+        let default = Spec::parse(base, "v.toml").unwrap();
+        assert!(default.dut.unwrap().vhdl_types.is_default());
+        for (value, field, says) in [
+            (
+                "\"numeric\"",
+                "dut.vhdl_types",
+                "unknown VHDL port type \"numeric\"",
+            ),
+            ("3", "dut.vhdl_types", "expected one of"),
+            (
+                "{ co = \"unsigned\" }",
+                "dut.vhdl_types.co",
+                "not a vector port",
+            ),
+            (
+                "{ y = \"bits\" }",
+                "dut.vhdl_types.y",
+                "unknown VHDL port type \"bits\"",
+            ),
+        ] {
+            let text = format!("{base}vhdl_types = {value}\n");
+            let err = Spec::parse(&text, "v.toml").unwrap_err();
+            let p = &err.problems()[0];
+            assert_eq!(p.line, Some(12), "{value}");
+            assert_eq!(p.field.as_deref(), Some(field), "{value}");
+            assert!(p.message.contains(says), "{value}: {}", p.message);
+        }
     }
 }

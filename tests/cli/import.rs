@@ -121,6 +121,24 @@ fn issue15_import_round_trips_through_check_testbench_merge_and_grade() {
     run.expect_code(0);
     assert_eq!(u64_of(&run.json()["vectors"]), 2);
     assert!(u64_of(&run.json()["detected"]) > 0);
+    // Compacting or topping up an imported set is refused (its readers could not rebuild
+    // the imported vectors from a selection), and nothing is written.
+    for (flag, field) in [("--compact", "--compact"), ("--top-up", "--top-up")] {
+        let run = sb.run(&[
+            "grade",
+            ripple,
+            "--vectors",
+            "rl",
+            "--builtin",
+            flag,
+            "--out",
+            "rl-out",
+        ]);
+        run.expect_code(2)
+            .expect_stderr(field)
+            .expect_stderr("imported vectors");
+        assert!(!sb.path("rl-out").exists(), "{flag} wrote rl-out");
+    }
 
     // An edited imported set is refused, as a generated one is.
     let stim = format!("{}// edited by hand\n", sb.read("lab/stimulus.hex"));

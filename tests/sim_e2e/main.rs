@@ -21,3 +21,4 @@ mod spec;
 #[path = "../support/mod.rs"]
 mod support;
 mod tools;
+mod vhdl_types;

@@ -109,6 +109,8 @@ pub struct UnitSpec {
     pub extra_parameters: Vec<(&'static str, i64)>,
     /// More tables, written as given after `[ports]` (a select unit's `[select]`).
     pub tables: String,
+    /// More `[dut]` keys (TOML lines), written after `parameters`.
+    pub dut_keys: String,
 }
 
 impl UnitSpec {
@@ -133,6 +135,7 @@ impl UnitSpec {
             module: module.to_string(),
             extra_parameters: Vec::new(),
             tables: String::new(),
+            dut_keys: String::new(),
         }
     }
 
@@ -151,6 +154,12 @@ impl UnitSpec {
     /// The same spec with another random count.
     pub fn count(mut self, count: u64) -> UnitSpec {
         self.count = count;
+        self
+    }
+
+    /// The same spec with one more `[dut]` key; `value` is TOML text.
+    pub fn dut_key(mut self, key: &str, value: &str) -> UnitSpec {
+        let _ = writeln!(self.dut_keys, "{key} = {value}");
         self
     }
 
@@ -192,6 +201,7 @@ impl UnitSpec {
                 .map(|(name, value)| format!("{name} = {value}")),
         );
         let _ = writeln!(text, "parameters = {{ {} }}", parameters.join(", "));
+        text.push_str(&self.dut_keys);
         text
     }
 }
