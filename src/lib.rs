@@ -97,6 +97,7 @@ pub use spec::{
     ResultPart, Rounding, SelectSpec, Signal, Signedness, Spec, UndefinedOutputs, VhdlType,
     VhdlTypes, ZeroFlag,
 };
+pub use spec::{Edge, ResetActive, Timing};
 pub use verdict::check::{
     merge as merge_reports, CheckOptions, CheckReport, Checker, CoverageGate, Failure,
     FieldValueReport, LogProblems, Observed, OperationOutputs, OutOfStep, OutputReport,
@@ -113,4 +114,7 @@ pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict
 pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};
 pub use verdict::table::{
     render_table, render_table_with, set_table_layout, table_layout, TableLayout,
+};
+pub use verdict::timing::{
+    apply_timing, scan_markers, Displaced, Markers, TimingPass, TimingReport,
 };

@@ -146,6 +146,10 @@ enum Command {
         /// Also load expected.hex and count mismatches in the testbench itself.
         #[arg(long)]
         self_check: bool,
+        /// Clocked units with [timing] valid_in: drop valid_in on about one cycle in K
+        /// (pseudo-random cycles seeded by the set's seed).
+        #[arg(long, value_name = "K", value_parser = clap::value_parser!(u32).range(1..))]
+        stall_every: Option<u32>,
     },
     /// Check a simulator's result log against the golden model and score coverage.
     #[command(after_help = cli::check::CHECK_HELP)]
@@ -252,7 +256,16 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             output,
             settle,
             self_check,
-        } => testbench(&spec, &vectors, hdl, output, settle, self_check, quiet),
+            stall_every,
+        } => testbench(
+            &spec,
+            &vectors,
+            hdl,
+            output,
+            (settle, stall_every),
+            self_check,
+            quiet,
+        ),
         Command::Check(args) => cli::check::check(args, quiet),
         Command::Merge(args) => cli::check::merge(args, quiet),
         Command::Grade(args) => cli::grade::grade(args, quiet),
@@ -647,7 +660,7 @@ fn testbench(
     vectors: &Path,
     hdl: HdlArg,
     output: Option<PathBuf>,
-    settle: u32,
+    (settle, stall_every): (u32, Option<u32>),
     self_check: bool,
     quiet: bool,
 ) -> Result<Outcome, Error> {
@@ -676,6 +689,8 @@ fn testbench(
     options.first_index = manifest.first_index;
     options.settle = settle;
     options.self_check = self_check;
+    options.stall_every = stall_every;
+    options.stall_seed = manifest.seed;
     let text = emit_testbench(&spec, &options).map_err(|e| {
         // Name the spec file in problems the emitter could only attribute to the unit.
         let problems = e

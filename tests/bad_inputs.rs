@@ -140,6 +140,13 @@ const CASES: &[Case] = &[
     case("grade compact over its input", &[], &["grade", "spec.toml", "--vectors", "vec", "--builtin", "--compact", "--out", "vec"], "vec"),
     case("unknown subcommand", &[], &["frobnicate"], "frobnicate"),
     case("seed not a number", &[], &["gen", "spec.toml", "--out", "o", "--seed", "abc"], "--seed"),
+    edited("timing latency 0 with a clock", ("spec.toml", |_| format!("{SPEC}\n[timing]\nclock = \"clk\"\nlatency = 0\n")), &["classes", "spec.toml"], "timing.latency"),
+    edited("timing valid_out without a clock", ("spec.toml", |_| format!("{SPEC}\n[timing]\nlatency = 2\nvalid_out = \"done\"\n")), &["classes", "spec.toml"], "timing.valid_out"),
+    edited("timing unknown key", ("spec.toml", |_| format!("{SPEC}\n[timing]\nclock = \"clk\"\nlatency = 2\nclock_period = 10\n")), &["classes", "spec.toml"], "timing.clock_period"),
+    edited("timing port colliding with a port", ("spec.toml", |_| format!("{SPEC}\n[timing]\nclock = \"clk\"\nlatency = 2\nvalid_in = \"cin\"\n")), &["classes", "spec.toml"], "timing.valid_in"),
+    edited("timing interval 0", ("spec.toml", |_| format!("{SPEC}\n[timing]\nclock = \"clk\"\nlatency = 2\ninterval = 0\n")), &["classes", "spec.toml"], "timing.interval"),
+    case("stall without a clocked unit", &[], &["testbench", "spec.toml", "--vectors", "vec", "-o", "tb.v", "--stall-every", "4"], "--stall-every"),
+    case("reset-known without a clocked unit", &[], &["check", "spec.toml", "--log", "log.csv", "--reset-known"], "--reset-known"),
 ];
 
 /// Every file under `dir` with its contents.

@@ -78,6 +78,10 @@ pub struct CheckArgs {
     /// every output of the spec must be in the log; the reports state the narrowing.
     #[arg(long, value_name = "PORTS", value_delimiter = ',')]
     outputs: Option<Vec<String>>,
+    /// Clocked units with a reset port: require every output known (no x/z) in the
+    /// testbench's reset sample, taken after reset and before the first vector.
+    #[arg(long)]
+    reset_known: bool,
     #[command(flatten)]
     threads: crate::cli::threads::ThreadsArg,
 }
@@ -374,6 +378,25 @@ fn check_log(
     manifest: Option<&Manifest>,
 ) -> Result<CheckReport, Error> {
     let log_name = args.log.display().to_string();
+    if spec.timing.is_some() && args.log.as_os_str() == "-" {
+        return Err(Error::problem(
+            Problem::new(
+                "--log",
+                "a clocked unit's log is read twice (results, then their count and order): \
+                 give a file, not standard input",
+            )
+            .field("log"),
+        ));
+    }
+    if args.reset_known && spec.timing.as_ref().is_none_or(|t| t.reset.is_none()) {
+        return Err(Error::problem(
+            Problem::new(
+                "--reset-known",
+                "needs a clocked unit with a reset port ([timing] reset = \"<port>\")",
+            )
+            .field("reset_known"),
+        ));
+    }
     let input: Box<dyn BufRead> = if args.log.as_os_str() == "-" {
         Box::new(BufReader::with_capacity(1 << 20, std::io::stdin()))
     } else {
@@ -425,7 +448,43 @@ fn check_log(
         ));
         return Err(Error::input(problems));
     }
-    Ok(checker.finish())
+    let mut report = checker.finish();
+    if spec.timing.is_some() {
+        timing_pass(args, spec, generator, manifest, &mut report)?;
+    }
+    Ok(report)
+}
+
+/// A clocked unit's second pass over its log: the results' count and order and the reset
+/// sample (`arithvec::TimingPass`).
+fn timing_pass(
+    args: &CheckArgs,
+    spec: &Spec,
+    generator: &Generator,
+    manifest: Option<&Manifest>,
+    report: &mut CheckReport,
+) -> Result<(), Error> {
+    let open = || -> Result<BufReader<std::fs::File>, Error> {
+        let f = std::fs::File::open(&args.log).map_err(|e| Error::io(&args.log, e))?;
+        Ok(BufReader::with_capacity(1 << 20, f))
+    };
+    let log_name = args.log.display().to_string();
+    let markers = arithvec::scan_markers(open()?).map_err(|e| Error::io(&args.log, e))?;
+    let (first, vectors) = manifest.map_or((0, generator.total()), |m| (m.first_index, m.vectors));
+    let mut pass = arithvec::TimingPass::new(spec, generator, first, vectors);
+    let mut reader = LogReader::new(open()?, &log_name, spec, args.radix)?;
+    let mut row = arithvec::LogRow::new();
+    loop {
+        match reader.read_row(&mut row) {
+            Ok(true) => pass.row(&row),
+            Ok(false) => break,
+            // Bad lines were judged by the first pass (refused, or counted with --lenient).
+            Err(arithvec::RowError::Line(_)) => continue,
+            Err(arithvec::RowError::Io(e)) => return Err(e),
+        }
+    }
+    arithvec::apply_timing(report, pass.finish(markers, args.reset_known));
+    Ok(())
 }
 
 fn spinner(quiet: bool) -> Option<indicatif::ProgressBar> {

@@ -267,12 +267,15 @@ fn hex_of(bytes: &[u8]) -> String {
 /// The identity is what determines the vectors and their files: name (it heads the files),
 /// operation, width, encoding, ports and conventions. `[random]`'s count and seed are
 /// recorded in the manifest on their own (reports of several seeds merge); `[dut]` only
-/// names the module a testbench or netlist instantiates, so changing it leaves the set valid.
+/// names the module a testbench or netlist instantiates, so changing it leaves the set valid;
+/// `[timing]` (clock, latency, handshakes) likewise only shapes the testbench.
 pub fn spec_identity(spec: &Spec) -> String {
     let mut v: serde_json::Value = serde_json::from_str(&spec.normalised_json()).expect("json");
     if let Some(o) = v.as_object_mut() {
         o.remove("random");
         o.remove("dut");
+        // `[timing]` says how a testbench drives the unit in time, not what the vectors are.
+        o.remove("timing");
     }
     sha256_hex(v.to_string().as_bytes())
 }

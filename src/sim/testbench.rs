@@ -21,6 +21,8 @@ use crate::error::{Error, Problem, Result};
 use crate::sets::layout::{Field, Layout, WordLayout};
 use crate::spec::{DivByZero, Dut, NegativeZero, ParamValue, Signal, Spec, VhdlType};
 
+mod clocked;
+
 /// The hardware description language of an emitted testbench.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 #[non_exhaustive]
@@ -56,6 +58,11 @@ pub struct TestbenchOptions {
     pub settle: u32,
     /// Also load `expected.hex`, compare, count mismatches and fail the run on any.
     pub self_check: bool,
+    /// Clocked units with `valid_in` only: drop valid_in on about one cycle in K (seeded
+    /// pseudo-random cycles, `--stall-every K`). None: never.
+    pub stall_every: Option<u32>,
+    /// The stall generator's seed (the vector set's seed).
+    pub stall_seed: u64,
 }
 
 impl TestbenchOptions {
@@ -67,6 +74,8 @@ impl TestbenchOptions {
             first_index: 0,
             settle: 1,
             self_check: false,
+            stall_every: None,
+            stall_seed: 0,
         }
     }
 }
@@ -133,6 +142,12 @@ const PLUSARG_BYTES: u32 = 1024;
 /// printable ASCII.
 pub fn emit_testbench(spec: &Spec, options: &TestbenchOptions) -> Result<String> {
     let plan = Plan::new(spec, options)?;
+    if spec.timing.is_some() {
+        return Ok(match options.hdl {
+            Hdl::Verilog => plan.clocked_verilog(),
+            Hdl::Vhdl => plan.clocked_vhdl(),
+        });
+    }
     Ok(match options.hdl {
         Hdl::Verilog => plan.verilog(),
         Hdl::Vhdl => plan.vhdl(),
@@ -253,6 +268,33 @@ impl<'a> Plan<'a> {
                 )
                 .field("conventions.undefined_outputs"),
             );
+        }
+        match (&spec.timing, options.stall_every) {
+            (Some(_), _) if options.self_check => problems.push(
+                Problem::new(
+                    "--self-check",
+                    "a clocked unit's testbench does not self-check; judge its log with \
+                     `arithvec check`, which also checks the results' count and order",
+                )
+                .field("self_check"),
+            ),
+            (None, Some(_)) => problems.push(
+                Problem::new(
+                    "--stall-every",
+                    "stalls need a clocked unit with valid_in ([timing] valid_in = \"<port>\")",
+                )
+                .field("stall_every"),
+            ),
+            (Some(t), Some(_)) if t.valid_in.is_none() => problems.push(
+                Problem::new(
+                    "--stall-every",
+                    "stalls drop valid_in, but [timing] names no valid_in port",
+                )
+                .field("stall_every"),
+            ),
+            (_, Some(0)) => problems
+                .push(Problem::new("--stall-every", "must be at least 1").field("stall_every")),
+            _ => {}
         }
         if layout.stimulus.fields.is_empty() || layout.expected.fields.is_empty() {
             problems.push(

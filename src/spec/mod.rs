@@ -31,6 +31,8 @@ mod ports;
 pub use ports::{check_ranges, parse_port_text, Bundle, PortRange};
 mod vhdl_types;
 pub use vhdl_types::{VhdlType, VhdlTypes};
+mod timing;
+pub use timing::{Edge, ResetActive, Timing};
 
 /// The widest operand arithvec handles, in bits.
 pub const MAX_WIDTH: u32 = 512;
@@ -587,6 +589,9 @@ pub struct Spec {
     /// The `[select]` table of a select unit (None for the others).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub select: Option<SelectSpec>,
+    /// The `[timing]` table of a clocked unit (None for a combinational one).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub timing: Option<Timing>,
 }
 
 impl Spec {
@@ -724,6 +729,9 @@ impl Spec {
             }
             t.push_str(&d.vhdl_types.to_toml());
         }
+        if let Some(timing) = &self.timing {
+            t.push_str(&timing.to_toml());
+        }
         t
     }
 
@@ -747,6 +755,7 @@ impl Spec {
             dut: None,
             options: Spec::default_options(operation, encoding, width),
             select: None,
+            timing: None,
         }
     }
 }
@@ -971,6 +980,7 @@ impl<'a> Reader<'a> {
                 "random",
                 "dut",
                 "select",
+                "timing",
                 ops::ROOT_KEYS[0],
                 ops::ROOT_KEYS[1],
             ],
@@ -1079,6 +1089,7 @@ impl<'a> Reader<'a> {
             dut: None,
             options: None,
             select: None,
+            timing: None,
         };
         spec.options = Spec::default_options(spec.operation, spec.encoding, spec.width);
         if let Some(why) = spec.operation.refuses(spec.encoding) {
@@ -1105,6 +1116,7 @@ impl<'a> Reader<'a> {
         if let Some(t) = random_table {
             self.read_random(t, &mut spec.random);
         }
+        self.read_timing(root, &mut spec);
         if let Some(t) = dut_table {
             spec.dut = self.read_dut(t);
             let types = self.read_vhdl_types(t, &spec);

@@ -118,6 +118,7 @@ impl Spec {
                     dut: None,
                     options: None,
                     select: None,
+                    timing: None,
                 };
                 (code, spec)
             })

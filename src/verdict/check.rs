@@ -260,6 +260,10 @@ pub struct CheckReport {
     /// for other units).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub operation_outputs: Vec<OperationOutputs>,
+    /// A clocked unit (`[timing]`): the results' count and order, and the reset sample
+    /// (see `verdict::timing`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub timing: Option<crate::verdict::timing::TimingReport>,
 }
 
 /// The output ports compared on the rows of one operation of a select unit.
@@ -1842,6 +1846,7 @@ fn build_report(
         operation_outputs: per_operation,
         seen,
         runs: Vec::new(),
+        timing: None,
     };
     report.runs = match runs {
         Some(runs) => runs,

@@ -12,3 +12,4 @@ pub(crate) mod html;
 pub(crate) mod report;
 pub(crate) mod seen;
 pub(crate) mod table;
+pub(crate) mod timing;
