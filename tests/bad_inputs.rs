@@ -145,7 +145,7 @@ const CASES: &[Case] = &[
     edited("timing unknown key", ("spec.toml", |_| format!("{SPEC}\n[timing]\nclock = \"clk\"\nlatency = 2\nclock_period = 10\n")), &["classes", "spec.toml"], "timing.clock_period"),
     edited("timing port colliding with a port", ("spec.toml", |_| format!("{SPEC}\n[timing]\nclock = \"clk\"\nlatency = 2\nvalid_in = \"cin\"\n")), &["classes", "spec.toml"], "timing.valid_in"),
     edited("timing interval 0", ("spec.toml", |_| format!("{SPEC}\n[timing]\nclock = \"clk\"\nlatency = 2\ninterval = 0\n")), &["classes", "spec.toml"], "timing.interval"),
-    case("stall without a clocked unit", &[], &["testbench", "spec.toml", "--vectors", "vec", "-o", "tb.v", "--stall-every", "4"], "--stall-every"),
+    case("stall without a clocked unit", &[], &["testbench", "spec.toml", "--vectors", "vec", "-o", "tb.v", "--stall-every", "4"], "stalls need a clocked unit"),
     case("reset-known without a clocked unit", &[], &["check", "spec.toml", "--log", "log.csv", "--reset-known"], "--reset-known"),
 ];
 

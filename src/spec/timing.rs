@@ -176,8 +176,8 @@ impl Reader<'_> {
             Some((n as u32, at))
         };
         let reset_cycles = cycles(self, "reset_cycles", 1);
-        let latency = cycles(self, "latency", 0);
-        let interval = cycles(self, "interval", 0);
+        let latency = cycles(self, "latency", 1);
+        let interval = cycles(self, "interval", 1);
         let valid_in = self.string(t, p, "valid_in");
         let valid_out = self.string(t, p, "valid_out");
         let ready = self.string(t, p, "ready");
