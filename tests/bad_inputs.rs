@@ -140,6 +140,8 @@ const CASES: &[Case] = &[
     case("grade compact over its input", &[], &["grade", "spec.toml", "--vectors", "vec", "--builtin", "--compact", "--out", "vec"], "vec"),
     case("unknown subcommand", &[], &["frobnicate"], "frobnicate"),
     case("seed not a number", &[], &["gen", "spec.toml", "--out", "o", "--seed", "abc"], "--seed"),
+    edited("add_sat with a carry_in port", ("spec.toml", |_| spec_with("\"add\"", "\"add_sat\"")), &["classes", "spec.toml"], "ports.carry_in"),
+    edited("sub_sat with an overflow port", ("spec.toml", |_| spec_with("\"add\"", "\"sub_sat\"").replace("carry_in = \"cin\"\n", "").replace("carry_out = \"co\"", "overflow = \"ov\"")), &["classes", "spec.toml"], "ports.overflow"),
 ];
 
 /// Every file under `dir` with its contents.
