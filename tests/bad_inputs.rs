@@ -147,6 +147,8 @@ const CASES: &[Case] = &[
     edited("timing interval 0", ("spec.toml", |_| format!("{SPEC}\n[timing]\nclock = \"clk\"\nlatency = 2\ninterval = 0\n")), &["classes", "spec.toml"], "timing.interval"),
     case("stall without a clocked unit", &[], &["testbench", "spec.toml", "--vectors", "vec", "-o", "tb.v", "--stall-every", "4"], "stalls need a clocked unit"),
     case("reset-known without a clocked unit", &[], &["check", "spec.toml", "--log", "log.csv", "--reset-known"], "--reset-known"),
+    edited("add_sat with a carry_in port", ("spec.toml", |_| spec_with("\"add\"", "\"add_sat\"")), &["classes", "spec.toml"], "ports.carry_in"),
+    edited("sub_sat with an overflow port", ("spec.toml", |_| spec_with("\"add\"", "\"sub_sat\"").replace("carry_in = \"cin\"\n", "").replace("carry_out = \"co\"", "overflow = \"ov\"")), &["classes", "spec.toml"], "ports.overflow"),
 ];
 
 /// Every file under `dir` with its contents.

@@ -1,6 +1,6 @@
 //! The bulk oracle: more than a million random cases of the golden model against num-bigint
 //! (`BigInt` `+`, `-`, `*`, `/`, `%`, `<<`, `>>`, the library's documented arbitrary-precision
-//! semantics) at random widths 1..=512, split over four tests so the harness runs them in
+//! semantics) at random widths 1..=512, split over five tests so the harness runs them in
 //! parallel. Each test counts its cases and asserts the count, so a loop that silently ran
 //! short fails. The exact per-operation rules are tested in model_oracle*.rs; this file is
 //! about volume.
@@ -9,7 +9,7 @@ use arithvec::{Encoding, Inputs, Model, Operation, Signal, Spec, Word};
 use num_bigint::{BigInt, BigUint, Sign};
 use num_traits::{One, Zero};
 
-/// Cases per test; four tests make 1,040,000.
+/// Cases per test; five tests make 1,300,000.
 const CASES: u64 = 260_000;
 
 /// xorshift64*, so the tests need no seed files.
@@ -204,4 +204,70 @@ fn bulk_shifts_against_num_bigint() {
         };
         assert_eq!(unsigned(&o.result), expect, "{} w{w} k{k}", s.name);
     });
+}
+
+/// add_sat and sub_sat in every encoding: the decoded result equals the exact BigInt sum or
+/// difference clamped to the encoding's range, and `saturated` says whether it was clamped.
+/// Unsigned, twos and offset have one pattern per value, so their patterns are compared too.
+#[test]
+fn bulk_sat_against_num_bigint() {
+    let mut ops = Vec::new();
+    for enc in [
+        Encoding::Unsigned,
+        Encoding::Twos,
+        Encoding::Ones,
+        Encoding::SignMagnitude,
+        Encoding::Offset,
+    ] {
+        ops.push((Operation::AddSat, enc));
+        ops.push((Operation::SubSat, enc));
+    }
+    bulk(0xb01c_0005, &ops, |s, m, rng| {
+        let w = s.width;
+        let enc = s.encoding;
+        let (a, b) = (rng.word(w), rng.word(w));
+        let (va, vb) = (decoded(&a, w, enc), decoded(&b, w, enc));
+        let t = if s.operation == Operation::AddSat {
+            &va + &vb
+        } else {
+            &va - &vb
+        };
+        let top = BigInt::one() << (w - 1);
+        let (lo, hi) = match enc {
+            Encoding::Unsigned => (BigInt::zero(), (BigInt::one() << w) - 1),
+            Encoding::Twos | Encoding::Offset => (-top.clone(), &top - 1),
+            _ => (BigInt::one() - &top, &top - 1),
+        };
+        let clamped = t.clone().max(lo).min(hi);
+        let o = eval(m, a, b);
+        let got = decoded(&o.result, w, enc);
+        assert_eq!(got, clamped, "{} w{w} {va} {vb}", s.name);
+        assert_eq!(
+            o.get(Signal::Saturated).bit(0),
+            t != clamped,
+            "{} w{w}",
+            s.name
+        );
+        if matches!(enc, Encoding::Unsigned | Encoding::Twos) {
+            assert_eq!(unsigned(&o.result), pattern(&clamped, w), "{} w{w}", s.name);
+        }
+        if enc == Encoding::Offset {
+            assert_eq!(unsigned(&o.result), pattern(&(&clamped + &top), w));
+        }
+    });
+}
+
+/// The value of a w-bit pattern under `enc` (DEVELOPERS.md, "Values of an N-bit pattern").
+fn decoded(p: &Word, w: u32, enc: Encoding) -> BigInt {
+    let u = unsigned(&p.masked(w));
+    let top = BigInt::one() << (w - 1);
+    let msb = p.bit(w - 1);
+    match enc {
+        Encoding::Unsigned => u,
+        Encoding::Twos => value(p, w, true),
+        Encoding::Ones if msb => u - ((BigInt::one() << w) - 1),
+        Encoding::SignMagnitude if msb => -(u - top),
+        Encoding::Offset => u - top,
+        _ => u,
+    }
 }

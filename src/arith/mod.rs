@@ -8,5 +8,6 @@ pub(crate) mod bits;
 pub(crate) mod encoding;
 pub(crate) mod model;
 pub(crate) mod ops;
+pub(crate) mod sat;
 pub(crate) mod select;
 pub(crate) mod word;

@@ -42,7 +42,8 @@ pub struct Outputs {
     pub result: Word,
     /// The carry_out port's value (its meaning follows `conventions.carry_out`).
     pub carry_out: bool,
-    /// The true result is not representable.
+    /// The true result is not representable (for add_sat and sub_sat: the `saturated`
+    /// port, set exactly when the result was clamped).
     pub overflow: bool,
     /// Zero flag.
     pub zero: bool,
@@ -114,6 +115,7 @@ impl Outputs {
             Signal::Quotient => self.result.low_u64(),
             Signal::Remainder => self.remainder.low_u64(),
             Signal::DivByZero => self.div_by_zero as u64,
+            Signal::Saturated => self.overflow as u64,
             _ => 0,
         }
     }
@@ -133,6 +135,7 @@ impl Outputs {
             Signal::Quotient => self.result,
             Signal::Remainder => self.remainder,
             Signal::DivByZero => flag(self.div_by_zero),
+            Signal::Saturated => flag(self.overflow),
             _ => Word::ZERO,
         }
     }
@@ -152,6 +155,7 @@ impl Outputs {
             Signal::Quotient => self.result = value,
             Signal::Remainder => self.remainder = value,
             Signal::DivByZero => self.div_by_zero = b,
+            Signal::Saturated => self.overflow = b,
             _ => {}
         }
     }
@@ -460,6 +464,8 @@ impl Model {
                 | Operation::Xor
                 | Operation::Not
                 | Operation::Pass
+                | Operation::AddSat
+                | Operation::SubSat
                 | Operation::Select,
             ) => return None,
             (Encoding::SignMagnitude, _) | (_, Operation::Compare) => return None,

@@ -81,6 +81,8 @@ impl OpUnit {
             self.divide(a, b.mask(w))
         } else if self.operation.is_logic() || self.operation.is_select_value() {
             self.bitwise_or_select(a, b.mask(w))
+        } else if self.operation.is_saturating() {
+            self.saturate(a, b.mask(w))
         } else {
             self.mul(a, b.mask(w))
         }
@@ -278,7 +280,7 @@ impl OpUnit {
         flags(q, q.mask(w), r.mask(w), false, false, overflow)
     }
 
-    fn fix_zero<B: Bits>(&self, result: B, width: u32) -> B {
+    pub(crate) fn fix_zero<B: Bits>(&self, result: B, width: u32) -> B {
         if self.negative_zero == NegativeZero::Positive
             && is_negative_zero(result, width, self.encoding)
         {
@@ -288,7 +290,7 @@ impl OpUnit {
         }
     }
 
-    fn zero_of<B: Bits>(&self, result: B, width: u32) -> bool {
+    pub(crate) fn zero_of<B: Bits>(&self, result: B, width: u32) -> bool {
         match self.zero_flag {
             ZeroFlag::Value => decode(result, width, self.encoding).is_zero(),
             ZeroFlag::Bits => result.is_zero(),

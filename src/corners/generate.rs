@@ -455,6 +455,9 @@ fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32, pool: &[Word])
     if spec.operation.is_logic() || spec.operation.is_select_value() {
         return crate::corners::construct_simple::candidates(cat, spec, class, k);
     }
+    if spec.operation.is_saturating() {
+        return crate::corners::construct_sat::candidates(cat, spec, class, k);
+    }
     if spec.operation.is_extended() {
         return crate::corners::construct::candidates(cat, spec, class, k);
     }

@@ -9,5 +9,6 @@ pub(crate) mod classes;
 pub(crate) mod compare;
 pub(crate) mod construct;
 pub(crate) mod construct_divide;
+pub(crate) mod construct_sat;
 pub(crate) mod construct_simple;
 pub(crate) mod generate;

@@ -315,7 +315,7 @@ struct NarrowRows {
 /// Every signal's value (low 64 bits), indexed by `Signal as usize`, so the row writer
 /// reads fields by number instead of matching on the signal per field.
 #[inline]
-fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 17] {
+fn signal_values(i: &Inputs, o: &Outputs) -> [u64; Signal::ALL.len()] {
     [
         i.a.low_u64(),
         i.b.low_u64(),
@@ -334,6 +334,7 @@ fn signal_values(i: &Inputs, o: &Outputs) -> [u64; 17] {
         o.remainder.low_u64(),
         o.div_by_zero as u64,
         i.select as u64,
+        o.overflow as u64,
     ]
 }
 
@@ -361,7 +362,7 @@ impl NarrowWord {
 
     /// The packed word, as [`Packer::push_line`] packs it.
     #[inline]
-    fn pack(&self, values: &[u64; 17]) -> u128 {
+    fn pack(&self, values: &[u64; Signal::ALL.len()]) -> u128 {
         let mut packed = 0u128;
         for &(signal, lsb, mask) in &self.fields {
             packed |= ((values[signal] & mask) as u128) << lsb;

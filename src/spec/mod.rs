@@ -21,6 +21,7 @@ mod conventions;
 use conventions::ConventionKey;
 mod flags;
 mod ops;
+mod sat;
 mod select;
 pub use flags::ActiveLow;
 pub use ops::{
@@ -90,6 +91,10 @@ pub enum Operation {
     Not,
     /// a unchanged.
     Pass,
+    /// `a + b` clamped to the encoding's max/min, with a saturated flag (`spec::sat`).
+    AddSat,
+    /// `a - b` clamped to the encoding's max/min, with a saturated flag (`spec::sat`).
+    SubSat,
     /// Several operations behind one select port; the `[select]` table gives the code of
     /// each (see `spec::select`).
     Select,
@@ -155,6 +160,8 @@ impl Operation {
             Operation::Xor => "xor",
             Operation::Not => "not",
             Operation::Pass => "pass",
+            Operation::AddSat => "add_sat",
+            Operation::SubSat => "sub_sat",
             Operation::Select => "select",
         }
     }
@@ -176,6 +183,8 @@ impl Operation {
                 | Operation::And
                 | Operation::Or
                 | Operation::Xor
+                | Operation::AddSat
+                | Operation::SubSat
         )
     }
 
@@ -204,6 +213,7 @@ impl Operation {
             Operation::Min | Operation::Max => &[A, B, Result],
             Operation::And | Operation::Or | Operation::Xor => &[A, B, Result, Zero, Negative],
             Operation::Not | Operation::Pass => &[A, Result, Zero, Negative],
+            Operation::AddSat | Operation::SubSat => &[A, B, Result, Saturated, Zero, Negative],
             // The union of the operations a select unit can carry; `spec::select` refuses a
             // port no carried operation has.
             Operation::Select => &[
@@ -316,11 +326,13 @@ pub enum Signal {
     DivByZero,
     /// Operation select code of a select unit (width `[select] width`).
     Select,
+    /// add_sat, sub_sat: the true result was clamped to the encoding's max or min.
+    Saturated,
 }
 
 impl Signal {
     /// Every signal, in file-layout order: inputs first, then outputs.
-    pub const ALL: [Signal; 17] = [
+    pub const ALL: [Signal; 18] = [
         Signal::A,
         Signal::B,
         Signal::CarryIn,
@@ -338,6 +350,7 @@ impl Signal {
         Signal::Remainder,
         Signal::DivByZero,
         Signal::Select,
+        Signal::Saturated,
     ];
 
     /// The key used in `[ports]`.
@@ -360,6 +373,7 @@ impl Signal {
             Signal::Remainder => "remainder",
             Signal::DivByZero => "div_by_zero",
             Signal::Select => "select",
+            Signal::Saturated => "saturated",
         }
     }
 
@@ -1006,6 +1020,7 @@ impl<'a> Reader<'a> {
             &Operation::ALL
                 .into_iter()
                 .chain(Operation::EXTENDED)
+                .chain(Operation::SATURATING)
                 .chain([Operation::Select])
                 .map(|o| (o.name(), o))
                 .collect::<Vec<_>>(),

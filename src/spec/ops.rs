@@ -139,6 +139,7 @@ impl Operation {
             || self.is_division()
             || self.is_logic()
             || self.is_select_value()
+            || self.is_saturating()
     }
 
     /// Why `encoding` makes no sense for this operation, if it does not.

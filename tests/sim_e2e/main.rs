@@ -15,6 +15,7 @@ mod behav_ops;
 mod bugs;
 mod flow;
 mod reference;
+mod sat;
 mod select;
 mod shapes;
 mod spec;

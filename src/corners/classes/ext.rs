@@ -45,6 +45,10 @@ pub(crate) enum ExtKind {
     ValueOrder(Vec<Word>),
     /// abs: the operand cases of [`super::simple::abs_labels`], with their codes.
     AbsCases(Vec<Word>),
+    /// add_sat, sub_sat: the true result at and past max and min (see `classes::sat`).
+    SatBoundary,
+    /// add_sat, sub_sat: sign bits of (a, b), in range or clamped: bin 2 * (2sa + sb) + clamped.
+    SatSigns,
 }
 
 /// Labels of the overflow-boundary bins.
@@ -213,6 +217,11 @@ pub(super) fn ext_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>)
     if op.is_logic() || op.is_select_value() {
         result_templates(model, spec, out);
         super::simple::simple_templates(model, spec, out);
+        return;
+    }
+    if op.is_saturating() {
+        result_templates(model, spec, out);
+        super::sat::sat_templates(model, spec, out);
         return;
     }
     if op.is_shift() {
@@ -388,6 +397,9 @@ pub(super) fn ext_bins<B: Bits>(
         }
         ExtKind::BitPairs | ExtKind::ValueOrder(_) | ExtKind::AbsCases(_) => {
             super::simple::simple_bins(model, kind, a, b, t, bin);
+        }
+        ExtKind::SatBoundary | ExtKind::SatSigns => {
+            super::sat::sat_bins(model, kind, a, b, t, bin);
         }
     }
 }

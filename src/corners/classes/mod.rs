@@ -21,12 +21,14 @@ use crate::spec::{Encoding, Operation, Signal, Spec};
 mod divide;
 mod ext;
 mod program;
+mod sat;
 mod select;
 mod simple;
 mod templates;
 pub(crate) use divide::case_labels;
 pub(crate) use ext::{booth_digits, booth_operand, ExtKind};
 use program::*;
+pub(crate) use sat::extremes as sat_extremes;
 use templates::*;
 
 /// Which operand an operand class watches.
