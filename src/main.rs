@@ -67,6 +67,11 @@ enum Command {
         /// the random ones; the manifest records the file and its SHA-256.
         #[arg(long, value_name = "FILE", conflicts_with = "shard")]
         append: Option<PathBuf>,
+        /// Also write launch/capture pairs for transition faults (add and sub units in
+        /// unsigned or twos): after the directed corner vectors, vector 2k of the pairs
+        /// launches pair k and vector 2k+1 captures it; the manifest records where they sit.
+        #[arg(long, conflicts_with = "append")]
+        pairs: bool,
         #[command(flatten)]
         threads: cli::threads::ThreadsArg,
     },
@@ -217,6 +222,7 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             shard,
             append: Some(csv),
             threads,
+            pairs: _,
         } => {
             let _ = shard; // clap refuses --shard with --append
             cli::import::gen_append(&spec, &dir, count, seed, &csv, threads, quiet)
@@ -229,7 +235,17 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             shard,
             append: None,
             threads,
-        } => gen(&spec, &dir, count, seed, shard.as_deref(), threads, quiet),
+            pairs,
+        } => gen(
+            &spec,
+            &dir,
+            count,
+            seed,
+            shard.as_deref(),
+            pairs,
+            threads,
+            quiet,
+        ),
         Command::Import {
             spec,
             csv,
@@ -279,12 +295,14 @@ fn parse_shard(text: &str) -> Result<Shard, Error> {
     Ok(Shard { index, count })
 }
 
+#[allow(clippy::too_many_arguments)]
 fn gen(
     spec_path: &Path,
     dir: &Path,
     count: Option<u64>,
     seed: Option<u64>,
     shard: Option<&str>,
+    pairs: bool,
     threads: cli::threads::ThreadsArg,
     quiet: bool,
 ) -> Result<Outcome, Error> {
@@ -292,7 +310,10 @@ fn gen(
     let spec = read_spec(spec_path)?;
     let shard = shard.map(parse_shard).transpose()?;
     let threads = threads.resolve()?;
-    let generator = Generator::new(&spec, count, seed);
+    let mut generator = Generator::new(&spec, count, seed);
+    if pairs {
+        generator = generator.with_transition_pairs(&spec)?;
+    }
     // The index of every vector must fit in 64 bits; a total that overflows would wrap and
     // write a handful of vectors under a count nobody asked for.
     if (generator.directed().len() as u64)
@@ -383,6 +404,17 @@ fn gen(
             .map_err(cli::util::stdout_error)?;
         }
         writeln!(o, "  {:<13}", "manifest.json").map_err(cli::util::stdout_error)?;
+        if let Some(p) = &manifest.pairs {
+            writeln!(
+                o,
+                "  the directed part ends with {} launch/capture pairs (vectors {}..{}: 2k \
+                 launches, 2k+1 captures)",
+                p.pairs,
+                p.first_index,
+                p.first_index + 2 * p.pairs
+            )
+            .map_err(cli::util::stdout_error)?;
+        }
     }
     Ok(Outcome::Success)
 }

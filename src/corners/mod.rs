@@ -11,3 +11,4 @@ pub(crate) mod construct;
 pub(crate) mod construct_divide;
 pub(crate) mod construct_simple;
 pub(crate) mod generate;
+pub(crate) mod pairs;
