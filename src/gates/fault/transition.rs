@@ -127,14 +127,14 @@ impl TransitionList {
         let mut class_of = vec![0; faults.len()];
         let mut classes: Vec<Vec<usize>> = Vec::new();
         let mut class_of_root: HashMap<usize, usize> = HashMap::new();
-        for i in 0..faults.len() {
+        for (i, class) in class_of.iter_mut().enumerate() {
             let r = root(&mut parent, i);
             let c = *class_of_root.entry(r).or_insert_with(|| {
                 classes.push(Vec::new());
                 classes.len() - 1
             });
             classes[c].push(i);
-            class_of[i] = c;
+            *class = c;
         }
         TransitionList {
             faults,
