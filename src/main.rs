@@ -123,6 +123,10 @@ enum Command {
         /// this shows the vector a longer set would hold there.
         #[arg(long)]
         beyond: bool,
+        /// The set was written with `gen --pairs`: its directed part ends with the
+        /// launch/capture pairs (and its random indices start after them).
+        #[arg(long)]
+        pairs: bool,
         /// Output format: text, csv (the header and the vector's row of vectors.csv), or json
         /// (one document: origin, every input and expected output, classes and bins hit).
         #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
@@ -259,8 +263,9 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             seed,
             count,
             beyond,
+            pairs,
             format,
-        } => repro(&spec, index, seed, count, beyond, format),
+        } => repro(&spec, index, seed, count, (beyond, pairs), format),
         Command::Testbench {
             spec,
             vectors,
@@ -519,14 +524,17 @@ fn repro(
     index: u64,
     seed: Option<u64>,
     count: Option<u64>,
-    beyond: bool,
+    (beyond, pairs): (bool, bool),
     format: ReproFormat,
 ) -> Result<Outcome, Error> {
     let spec = read_spec(spec_path)?;
     // Vector j is a pure function of (spec, seed, j), so the random part can be unbounded;
     // the set's own size (the spec's count or --count) decides what "past the end" means.
     let set_random = count.unwrap_or(spec.random.count);
-    let generator = Generator::new(&spec, Some(u64::MAX - 1_000_000), seed);
+    let mut generator = Generator::new(&spec, Some(u64::MAX - 1_000_000), seed);
+    if pairs {
+        generator = generator.with_transition_pairs(&spec)?;
+    }
     let directed = generator.directed().len() as u64;
     let set_total = directed.saturating_add(set_random);
     if index >= set_total && !beyond {

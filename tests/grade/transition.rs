@@ -10,7 +10,7 @@ use arithvec::{
     TransitionList, TransitionOutcome, Word,
 };
 
-use crate::util::{expected, have, hdl, spec, Flags, Sandbox, Unit};
+use crate::util::{expected, have, spec, Flags, Sandbox, Unit};
 
 /// y = a & b: one AND gate.
 fn and_gate() -> Netlist {
@@ -342,5 +342,16 @@ fn a_pairs_set_is_graded_simulated_back_to_back_and_checked() {
         "vec",
     ]);
     check.expect_code(0);
-    let _ = hdl("ripple_add.v");
+    // repro --pairs rebuilds a random vector of the set (its index is past the pairs);
+    // without --pairs the same index names another vector.
+    let last = m["vectors"].as_u64().unwrap() - 1;
+    let row = csv.lines().nth(last as usize + 1).unwrap().to_string();
+    let index = last.to_string();
+    let with = sb.run(&[
+        "repro", &spec_file, "--index", &index, "--pairs", "--format", "csv",
+    ]);
+    with.expect_code(0);
+    assert_eq!(with.stdout.lines().nth(1), Some(row.as_str()));
+    let without = sb.run(&["repro", &spec_file, "--index", &index, "--format", "csv"]);
+    assert_ne!(without.stdout.lines().nth(1), Some(row.as_str()));
 }
