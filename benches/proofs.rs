@@ -12,8 +12,8 @@
 use std::time::{Duration, Instant};
 
 use arithvec::{
-    prove, GateKind, Generator, GradeOutcome, Grader, Inputs, Model, NetId, Netlist,
-    NetlistBuilder, ProveVerdict, Spec,
+    prove, BuiltinModel, GateKind, Generator, GradeOutcome, Grader, Inputs, Model, NetId, Netlist,
+    NetlistBuilder, PairSelection, ProveVerdict, Spec, TransitionOutcome,
 };
 
 const GOAL: Duration = Duration::from_secs(10);
@@ -103,7 +103,74 @@ fn majority_adder(width: usize) -> Netlist {
     b.build().expect("bench netlist")
 }
 
+/// Transition grading of the built-in 64-bit ripple adder: its `gen --pairs` set (designated
+/// pairs) and 10,000 random vectors taken as consecutive pairs.
+fn transition_bench() {
+    let spec = Spec::parse(
+        "name = \"bench_add64\"\noperation = \"add\"\nwidth = 64\nencoding = \"twos\"\n\n\
+         [ports]\na = \"a\"\nb = \"b\"\ncarry_in = \"cin\"\nresult = \"y\"\ncarry_out = \"co\"\n\
+         overflow = \"ovf\"\n\n[random]\ncount = 10000\nseed = 3\n",
+        "<bench>",
+    )
+    .expect("spec");
+    let nl = BuiltinModel::for_spec(&spec)
+        .expect("built-in")
+        .build(&spec)
+        .expect("builds");
+    let grader = Grader::new(&spec, &nl).expect("ports");
+    let model = Model::new(&spec);
+    let g = Generator::new(&spec, Some(0), None)
+        .with_transition_pairs(&spec)
+        .expect("pairs");
+    let (first, pairs) = g.transition_pair_block().expect("pairs");
+    let sets = [
+        (
+            "gen --pairs set, designated pairs",
+            (0..g.total())
+                .map(|i| g.vector(i).expect("v"))
+                .collect::<Vec<_>>(),
+            PairSelection::LaunchCapture {
+                first: first as usize,
+                pairs: pairs as usize,
+            },
+        ),
+        (
+            "10,000 random vectors, consecutive pairs",
+            {
+                let r = Generator::new(&spec, None, None);
+                let mut stream = r.random_stream(0);
+                (0..10_000).map(|_| stream.next_inputs()).collect()
+            },
+            PairSelection::Consecutive,
+        ),
+    ];
+    for (what, vectors, selection) in sets {
+        let expected: Vec<_> = vectors.iter().map(|v| model.evaluate(v)).collect();
+        let (outcome, t) = timed(3, || {
+            grader
+                .grade_transitions(&vectors, &expected, selection)
+                .expect("grades")
+        });
+        let report = match outcome {
+            TransitionOutcome::Graded(r) => r,
+            TransitionOutcome::NotTheSpec(bad) => panic!("not the spec: {bad:?}"),
+        };
+        println!(
+            "transition grading, built-in 64-bit ripple adder, {what}: {} pairs, {} of {} \
+             collapsed faults ({:.2}%): {:.3} s (goal < {} s: {})",
+            report.pairs,
+            report.detected,
+            report.collapsed,
+            report.coverage_percent,
+            t.as_secs_f64(),
+            GOAL.as_secs(),
+            if t < GOAL { "met" } else { "MISSED" }
+        );
+    }
+}
+
 fn main() {
+    transition_bench();
     // (1) Top-up of the offset case.
     let spec = Spec::parse(
         "name = \"bench_offset_sub\"\noperation = \"sub\"\nwidth = 24\nencoding = \"offset\"\n\n\

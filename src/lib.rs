@@ -57,15 +57,20 @@ pub use arith::model::{Inputs, Model, Outputs};
 pub use arith::word::{hex_digits, Word, MAX_WIDTH};
 pub use corners::classes::{Catalogue, Class, Hits};
 pub use corners::generate::{Generator, RandomStream};
+pub use corners::pairs::{transition_pair_bound, transition_pairs};
 pub use error::{Error, ErrorKind, Problem, Result};
 pub use gates::fault::{
     compact, detection_matrix, grade, grade_with, DetectionMatrix, Fault, FaultEntry, FaultList,
     FaultReport, FaultSite, GradeOptions, PatternSet, PortValue, Redundancy, SimulationMode,
 };
+pub use gates::fault::{
+    grade_transitions, PairSelection, TransitionEntry, TransitionFault, TransitionList,
+    TransitionReport,
+};
 pub use gates::grade::{
     write_selection, write_topped_up, BuiltinModel, GradeOutcome, Grader, NetlistMismatch,
-    TopUpFault, TopUpReport, TopUpStatus, EXHAUSTIVE_REDUNDANCY_METHOD, SAT_REDUNDANCY_METHOD,
-    TOP_UP_METHOD,
+    TopUpFault, TopUpReport, TopUpStatus, TransitionOutcome, EXHAUSTIVE_REDUNDANCY_METHOD,
+    SAT_REDUNDANCY_METHOD, TOP_UP_METHOD,
 };
 pub use gates::netlist::{Driver, Gate, GateKind, NetId, Netlist, NetlistBuilder, Port};
 pub use gates::prove::{
@@ -82,8 +87,8 @@ pub use sets::vectorset::{
     csv_header, csv_row, read_manifest, read_manifest_unverified,
     remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
     write as write_vector_set, write_imported, FileRecord, ImportSource, Imported, Manifest,
-    ManifestField, ManifestLayout, ManifestWord, Selection, Shard, TopUpVector, VectorSet,
-    WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
+    ManifestField, ManifestLayout, ManifestWord, PairLayout, Selection, Shard, TopUpVector,
+    VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, PAIR_LAYOUT, STIMULUS_HEX, VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{

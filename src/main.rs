@@ -67,6 +67,11 @@ enum Command {
         /// the random ones; the manifest records the file and its SHA-256.
         #[arg(long, value_name = "FILE", conflicts_with = "shard")]
         append: Option<PathBuf>,
+        /// Also write launch/capture pairs for transition faults (add and sub units in
+        /// unsigned or twos): after the directed corner vectors, vector 2k of the pairs
+        /// launches pair k and vector 2k+1 captures it; the manifest records where they sit.
+        #[arg(long, conflicts_with = "append")]
+        pairs: bool,
         #[command(flatten)]
         threads: cli::threads::ThreadsArg,
     },
@@ -118,6 +123,10 @@ enum Command {
         /// this shows the vector a longer set would hold there.
         #[arg(long)]
         beyond: bool,
+        /// The set was written with `gen --pairs`: its directed part ends with the
+        /// launch/capture pairs (and its random indices start after them).
+        #[arg(long)]
+        pairs: bool,
         /// Output format: text, csv (the header and the vector's row of vectors.csv), or json
         /// (one document: origin, every input and expected output, classes and bins hit).
         #[arg(long, value_enum, default_value_t = ReproFormat::Text)]
@@ -221,6 +230,7 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             shard,
             append: Some(csv),
             threads,
+            pairs: _,
         } => {
             let _ = shard; // clap refuses --shard with --append
             cli::import::gen_append(&spec, &dir, count, seed, &csv, threads, quiet)
@@ -233,7 +243,17 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             shard,
             append: None,
             threads,
-        } => gen(&spec, &dir, count, seed, shard.as_deref(), threads, quiet),
+            pairs,
+        } => gen(
+            &spec,
+            &dir,
+            count,
+            seed,
+            shard.as_deref(),
+            pairs,
+            threads,
+            quiet,
+        ),
         Command::Import {
             spec,
             csv,
@@ -247,8 +267,9 @@ fn run(cli: Cli) -> Result<Outcome, Error> {
             seed,
             count,
             beyond,
+            pairs,
             format,
-        } => repro(&spec, index, seed, count, beyond, format),
+        } => repro(&spec, index, seed, count, (beyond, pairs), format),
         Command::Testbench {
             spec,
             vectors,
@@ -292,12 +313,14 @@ fn parse_shard(text: &str) -> Result<Shard, Error> {
     Ok(Shard { index, count })
 }
 
+#[allow(clippy::too_many_arguments)]
 fn gen(
     spec_path: &Path,
     dir: &Path,
     count: Option<u64>,
     seed: Option<u64>,
     shard: Option<&str>,
+    pairs: bool,
     threads: cli::threads::ThreadsArg,
     quiet: bool,
 ) -> Result<Outcome, Error> {
@@ -305,7 +328,10 @@ fn gen(
     let spec = read_spec(spec_path)?;
     let shard = shard.map(parse_shard).transpose()?;
     let threads = threads.resolve()?;
-    let generator = Generator::new(&spec, count, seed);
+    let mut generator = Generator::new(&spec, count, seed);
+    if pairs {
+        generator = generator.with_transition_pairs(&spec)?;
+    }
     // The index of every vector must fit in 64 bits; a total that overflows would wrap and
     // write a handful of vectors under a count nobody asked for.
     if (generator.directed().len() as u64)
@@ -396,6 +422,17 @@ fn gen(
             .map_err(cli::util::stdout_error)?;
         }
         writeln!(o, "  {:<13}", "manifest.json").map_err(cli::util::stdout_error)?;
+        if let Some(p) = &manifest.pairs {
+            writeln!(
+                o,
+                "  the directed part ends with {} launch/capture pairs (vectors {}..{}: 2k \
+                 launches, 2k+1 captures)",
+                p.pairs,
+                p.first_index,
+                p.first_index + 2 * p.pairs
+            )
+            .map_err(cli::util::stdout_error)?;
+        }
     }
     Ok(Outcome::Success)
 }
@@ -500,14 +537,17 @@ fn repro(
     index: u64,
     seed: Option<u64>,
     count: Option<u64>,
-    beyond: bool,
+    (beyond, pairs): (bool, bool),
     format: ReproFormat,
 ) -> Result<Outcome, Error> {
     let spec = read_spec(spec_path)?;
     // Vector j is a pure function of (spec, seed, j), so the random part can be unbounded;
     // the set's own size (the spec's count or --count) decides what "past the end" means.
     let set_random = count.unwrap_or(spec.random.count);
-    let generator = Generator::new(&spec, Some(u64::MAX - 1_000_000), seed);
+    let mut generator = Generator::new(&spec, Some(u64::MAX - 1_000_000), seed);
+    if pairs {
+        generator = generator.with_transition_pairs(&spec)?;
+    }
     let directed = generator.directed().len() as u64;
     let set_total = directed.saturating_add(set_random);
     if index >= set_total && !beyond {

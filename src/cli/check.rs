@@ -221,6 +221,33 @@ fn open_vectors_unverified(dir: &Path, spec: &Spec) -> Result<(Manifest, Generat
         }
     };
     let mut generator = Generator::new(&set_spec, Some(random), Some(manifest.seed));
+    if let Some(pairs) = &manifest.pairs {
+        // Launch/capture pairs (`gen --pairs`) are rebuilt from the spec like the other
+        // directed vectors; their recorded place must be where they are rebuilt.
+        let corner_directed = generator.directed().len() as u64;
+        generator = generator.with_transition_pairs(&set_spec)?;
+        if pairs.layout != arithvec::PAIR_LAYOUT
+            || pairs.first_index != corner_directed
+            || generator.transition_pair_block() != Some((pairs.first_index, pairs.pairs))
+        {
+            return Err(Error::problem(
+                Problem::new(
+                    mpath,
+                    format!(
+                        "the manifest's pairs ({} pairs from index {}, layout \"{}\") are not the \
+                         pairs this spec gives ({} pairs from index {corner_directed}, layout \
+                         \"{}\")",
+                        pairs.pairs,
+                        pairs.first_index,
+                        pairs.layout,
+                        generator.transition_pair_block().map_or(0, |b| b.1),
+                        arithvec::PAIR_LAYOUT
+                    ),
+                )
+                .field("pairs"),
+            ));
+        }
+    }
     if let Some(imported) = &manifest.imported {
         // Imported vectors are read from the set's own stimulus.hex; a set made only of them
         // (`arithvec import`) has no directed or random part.

@@ -67,10 +67,10 @@ pub struct GradeArgs {
     module: Option<String>,
     /// Output format.
     #[arg(long, value_enum, default_value_t = GradeFormat::Text)]
-    format: GradeFormat,
+    pub(crate) format: GradeFormat,
     /// Fault coverage required, in percent (exit 3 when short).
     #[arg(long, value_name = "PCT", value_parser = parse_percent)]
-    require: Option<f64>,
+    pub(crate) require: Option<f64>,
     /// Write the smallest subset found that keeps class and fault coverage to --out.
     #[arg(long, requires = "out", conflicts_with = "top_up")]
     compact: bool,
@@ -96,6 +96,36 @@ pub struct GradeArgs {
     /// every report says so and lists the vectors where it disagrees with the model).
     #[arg(long, value_enum, default_value_t = Reference::Golden)]
     reference: Reference,
+    /// Fault model: `stuck-at` (the default) or `transition` (slow-to-rise and slow-to-fall
+    /// on every line, each pair's launch vector followed by its capture vector in the next
+    /// cycle).
+    #[arg(long, value_enum, default_value_t = FaultModel::StuckAt)]
+    model: FaultModel,
+    /// With --model transition: which vectors form the pairs (auto: the designated pairs of
+    /// a `gen --pairs` set, else every vector with the next).
+    #[arg(long, value_enum, default_value_t = PairsArg::Auto)]
+    pub(crate) pairs: PairsArg,
+}
+
+/// The fault model of `grade --model`.
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+pub enum FaultModel {
+    /// Single stuck-at-0 and stuck-at-1 faults (the default).
+    StuckAt,
+    /// Slow-to-rise and slow-to-fall faults, graded on pairs of consecutive vectors.
+    Transition,
+}
+
+/// Which vectors `grade --model transition` pairs up.
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+pub enum PairsArg {
+    /// The set's designated launch/capture pairs when `gen --pairs` wrote it, else every
+    /// consecutive pair.
+    Auto,
+    /// Every vector i with vector i + 1.
+    Consecutive,
+    /// Only the designated pairs (a set from `gen --pairs`).
+    LaunchCapture,
 }
 
 /// The reference responses of `grade --reference`.
@@ -277,7 +307,41 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             .unwrap_or(manifest.first_index + position as u64)
     };
     let mut netlist_reference = None;
+    if args.model == FaultModel::Transition {
+        let unsupported = [
+            (args.top_up, "--top-up"),
+            (args.compact, "--compact"),
+            (args.html.is_some(), "--html"),
+            (args.reference == Reference::Netlist, "--reference netlist"),
+        ];
+        if let Some((_, option)) = unsupported.iter().find(|(on, _)| *on) {
+            return Err(Error::problem(
+                Problem::new(
+                    "--model",
+                    format!(
+                        "{option} is for stuck-at faults; --model transition grades coverage \
+                         only"
+                    ),
+                )
+                .field("model"),
+            ));
+        }
+    } else if args.pairs != PairsArg::Auto {
+        return Err(Error::problem(
+            Problem::new("--pairs", "--pairs is for --model transition").field("pairs"),
+        ));
+    }
     let outcome = match args.reference {
+        Reference::Golden if args.model == FaultModel::Transition => {
+            match crate::cli::transition::grade_transition(
+                &args, &spec.name, &manifest, &set, &grader, quiet,
+            )? {
+                Some(outcome) => return Ok(outcome),
+                None => GradeOutcome::NotTheSpec(
+                    grader.fault_free_mismatches(&set.inputs, &set.expected)?,
+                ),
+            }
+        }
         Reference::Golden => grader.grade(&set.inputs, &set.expected)?,
         Reference::Netlist => {
             let (count, listed) = grader.fault_free_disagreements(

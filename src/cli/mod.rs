@@ -10,4 +10,5 @@ pub(crate) mod prove;
 pub(crate) mod reach;
 pub(crate) mod signals;
 pub(crate) mod threads;
+pub(crate) mod transition;
 pub(crate) mod util;

@@ -39,6 +39,9 @@ pub struct Generator {
     appended: std::sync::Arc<[Inputs]>,
     /// A select unit's codes, drawn uniformly for random vectors (empty for other units).
     codes: std::sync::Arc<[u32]>,
+    /// Launch/capture pairs (`gen --pairs`) at the end of the directed part: (first index,
+    /// pairs). Vector `first + 2k` launches pair k, `first + 2k + 1` captures it.
+    pairs: Option<(u64, u64)>,
 }
 
 /// Settings of the random part.
@@ -89,6 +92,7 @@ impl Generator {
             pool,
             appended: Vec::new().into(),
             codes: std::sync::Arc::from([]),
+            pairs: None,
             catalogue,
             directed,
             directed_hits,
@@ -167,6 +171,31 @@ impl Generator {
         self.directed_hits.iter_mut().for_each(|h| *h = 0);
         self.random.count = 0;
         self
+    }
+
+    /// The same set with the launch/capture pairs of [`crate::transition_pairs`] after its
+    /// directed vectors (so they are directed vectors too, and the random part follows
+    /// them). Errors for units the pairs are not built for.
+    pub fn with_transition_pairs(mut self, spec: &Spec) -> crate::error::Result<Generator> {
+        let pairs = crate::corners::pairs::transition_pairs(spec)?;
+        let first = self.directed.len() as u64;
+        let mut hits = Hits::new();
+        for (launch, capture) in &pairs {
+            for v in [launch, capture] {
+                self.catalogue.evaluate(v, &mut hits);
+                let counts = &mut self.directed_hits;
+                hits.for_each_bin(|b| counts[b] += 1);
+                self.directed.push(*v);
+            }
+        }
+        self.pairs = Some((first, pairs.len() as u64));
+        Ok(self)
+    }
+
+    /// The launch/capture pairs of [`Generator::with_transition_pairs`]: (index of the first
+    /// launch vector, number of pairs).
+    pub fn transition_pair_block(&self) -> Option<(u64, u64)> {
+        self.pairs
     }
 
     /// The appended vectors, in file order.

@@ -12,3 +12,4 @@ pub(crate) mod construct_divide;
 pub(crate) mod construct_sat;
 pub(crate) mod construct_simple;
 pub(crate) mod generate;
+pub(crate) mod pairs;

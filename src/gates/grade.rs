@@ -30,10 +30,12 @@ use crate::sets::vectorset::{
 use crate::spec::{Encoding, Operation, Signal, Spec};
 
 mod topup;
+mod transition;
 pub use topup::{
     TopUpFault, TopUpReport, TopUpStatus, EXHAUSTIVE_REDUNDANCY_METHOD, SAT_REDUNDANCY_METHOD,
     TOP_UP_METHOD,
 };
+pub use transition::TransitionOutcome;
 
 /// The structural models arithvec can grade without a netlist file.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -563,6 +565,7 @@ pub fn write_topped_up(
             top_up: top_up.to_vec(),
         }),
         imported: None,
+        pairs: crate::sets::vectorset::PairLayout::of(generator),
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
     text.push('\n');

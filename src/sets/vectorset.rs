@@ -156,7 +156,44 @@ pub struct Manifest {
     /// `stimulus.hex` (checked against its SHA-256) instead of regenerating them.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub imported: Option<Imported>,
+    /// For a set with launch/capture pairs (`gen --pairs`): where they sit. Readers rebuild
+    /// them from the spec, as they rebuild the other directed vectors. In a selection it
+    /// describes the source set (the selection's own order is its file order).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pairs: Option<PairLayout>,
 }
+
+/// The launch/capture pairs of a set (see [`Manifest::pairs`]).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct PairLayout {
+    /// Always `launch-capture`: vector `first_index + 2k` is the launch vector of pair k and
+    /// `first_index + 2k + 1` its capture vector, applied in consecutive cycles.
+    pub layout: String,
+    /// Index of the first launch vector (the directed corner vectors come before it).
+    pub first_index: u64,
+    /// Number of pairs (they take `2 x pairs` vectors, the last of the directed part).
+    pub pairs: u64,
+    /// The families, in order: `chain` (a carry or borrow launched into chains of every
+    /// length) and `cell` (every change of every cell's inputs).
+    pub families: Vec<String>,
+}
+
+impl PairLayout {
+    /// The layout of `generator`'s pairs, if it has any.
+    pub fn of(generator: &Generator) -> Option<PairLayout> {
+        generator
+            .transition_pair_block()
+            .map(|(first_index, pairs)| PairLayout {
+                layout: PAIR_LAYOUT.to_string(),
+                first_index,
+                pairs,
+                families: vec!["chain".to_string(), "cell".to_string()],
+            })
+    }
+}
+
+/// [`PairLayout::layout`]'s one value.
+pub const PAIR_LAYOUT: &str = "launch-capture";
 
 /// The provenance of imported vectors (see [`Manifest::imported`]).
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
@@ -977,6 +1014,7 @@ fn write_set(
             first_index: generator.directed().len() as u64 + generator.random_count(),
             vectors: generator.appended().len() as u64,
         }),
+        pairs: PairLayout::of(generator),
     };
     let mut text = serde_json::to_string_pretty(&manifest).expect("manifest serialises");
     text.push('\n');

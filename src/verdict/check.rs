@@ -1722,6 +1722,10 @@ fn describe(
     if shared.generator.random_count() != shared.spec.random.count {
         seed_part.push_str(&format!(" --count {}", shared.generator.random_count()));
     }
+    if shared.generator.transition_pair_block().is_some() {
+        // The pairs sit between the corner vectors and the random ones.
+        seed_part.push_str(" --pairs");
+    }
     // In a selected (compacted) set, position `index` is vector `source` of the source set.
     let source = shared.source_index(index).unwrap_or(index);
     let generated = shared.generator.directed().len() as u64 + shared.generator.random_count();

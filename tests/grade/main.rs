@@ -16,4 +16,5 @@ mod report_words;
 mod support;
 mod threads;
 mod topup;
+mod transition;
 mod util;

@@ -70,6 +70,7 @@ impl Generator {
             appended: Vec::new().into(),
             pool,
             codes: codes.into(),
+            pairs: None,
             catalogue,
             directed,
             directed_hits,

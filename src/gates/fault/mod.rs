@@ -34,11 +34,16 @@ use crate::gates::netlist::{Driver, GateKind, NetId, Netlist};
 
 mod engine;
 mod matrix;
+mod transition;
 mod wide;
 use engine::*;
 pub use engine::{grade, grade_with};
 pub(crate) use matrix::detection_matrix_on;
 pub use matrix::{compact, detection_matrix, DetectionMatrix};
+pub use transition::{
+    grade_transitions, PairSelection, TransitionEntry, TransitionFault, TransitionList,
+    TransitionReport,
+};
 use wide::*;
 
 /// Where a stuck-at fault sits.
