@@ -247,19 +247,24 @@ fn manifest_share(spec: &Spec, threads: usize) {
     )
     .expect("write the 1M-vector set");
     assert_eq!(generator.total(), VECTORS);
+    // Best of three, in wall seconds and in CPU seconds (all threads). On a shared machine the
+    // wall time of a read-and-hash pass mostly measures waiting for a core; the CPU time is
+    // what the pass costs, and the share the goal is judged on.
     let best = |f: &mut dyn FnMut()| {
         (0..3)
             .map(|_| {
-                let t = Instant::now();
+                let (t, c) = (Instant::now(), cpu_seconds());
                 f();
-                t.elapsed().as_secs_f64()
+                (t.elapsed().as_secs_f64(), cpu_seconds() - c)
             })
-            .fold(f64::INFINITY, f64::min)
+            .fold((f64::INFINITY, f64::INFINITY), |(w, c), (w2, c2)| {
+                (w.min(w2), c.min(c2))
+            })
     };
-    let verify = best(&mut || {
+    let (verify, verify_cpu) = best(&mut || {
         arithvec::verify_files(&dir, &manifest).expect("the set matches its manifest");
     });
-    let check = best(&mut || {
+    let (check, check_cpu) = best(&mut || {
         let source = BufReader::with_capacity(1 << 20, LogSource::new(spec, VECTORS));
         let mut reader = LogReader::new(source, "bench.csv", spec, Radix::Hex).expect("header");
         let options = CheckOptions {
@@ -274,9 +279,16 @@ fn manifest_share(spec: &Spec, threads: usize) {
     });
     let bytes: u64 = manifest.files.iter().map(|f| f.bytes).sum();
     println!(
-        "manifest verification of a 1M-vector set ({:.1} MB): {verify:.3} s; check of 1M \
-         lines: {check:.3} s; verification / check = {:.1}% (goal <= 10%)",
+        "manifest verification of a 1M-vector set ({:.1} MB): {verify:.3} s wall, \
+         {verify_cpu:.3} s CPU ({:.0} MB/s of CPU); check of 1M lines: {check:.3} s wall, \
+         {check_cpu:.3} s CPU",
         bytes as f64 / 1e6,
+        bytes as f64 / 1e6 / verify_cpu
+    );
+    println!(
+        "verification / check = {:.1}% of CPU time (goal <= 10%); {:.1}% of wall time \
+         (check runs it on its own thread beside the log, so on a free core it adds no wall time)",
+        100.0 * verify_cpu / check_cpu,
         100.0 * verify / check
     );
     let _ = std::fs::remove_dir_all(&dir);

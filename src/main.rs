@@ -5,7 +5,7 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
-use clap::{Parser, Subcommand, ValueEnum};
+use clap::{CommandFactory, FromArgMatches, Parser, Subcommand, ValueEnum};
 
 use arithvec::{
     csv_header, csv_row, emit_testbench, testbench_file_name, write_vector_set, Catalogue, Error,
@@ -29,7 +29,7 @@ team's own verification plan.";
     after_help = AFTER_HELP
 )]
 struct Cli {
-    /// Print nothing but errors (and, for check, the verdict line).
+    /// Print less (each command's `-q` help says what it leaves out); errors always print.
     #[arg(long, short, global = true)]
     quiet: bool,
     /// Draw tables with + - | only (automatic when the locale is not UTF-8). Tables wrap to
@@ -195,8 +195,73 @@ enum ReproFormat {
     Json,
 }
 
+/// What `-q/--quiet` leaves out, per command; each subcommand gets its own `-q` help from
+/// this table (the flag stays global, so `arithvec -q check ...` works as well).
+const QUIET_HELP: &[(&str, &str)] = &[
+    (
+        "gen",
+        "Print no summary (vector counts, files and their SHA-256s) and no progress bar; \
+         errors still print",
+    ),
+    (
+        "import",
+        "Print no summary of the set written (vector counts and files); errors still print",
+    ),
+    (
+        "classes",
+        "No effect: the class or bin listing is this command's output and always prints",
+    ),
+    (
+        "repro",
+        "No effect: the decoded vector is this command's output and always prints",
+    ),
+    (
+        "testbench",
+        "Print no \"wrote ... testbench\" line after writing the file; errors still print",
+    ),
+    (
+        "check",
+        "Print only the verdict line (no tables, pointers or repro commands) and no progress \
+         bar; report files are written in full",
+    ),
+    (
+        "merge",
+        "Print only the merged verdict line (no tables); report files are written in full",
+    ),
+    (
+        "grade",
+        "Print no fault table, top-up or compaction summary and no progress bar; --format \
+         json still prints its document and the exit code still gates",
+    ),
+    (
+        "prove",
+        "Print no text report (proof summary or counterexample); --format json still prints \
+         its document and the exit code still gates",
+    ),
+];
+
+/// The clap command with the per-command `-q` help of [`QUIET_HELP`].
+fn command() -> clap::Command {
+    let mut command = Cli::command();
+    for (name, help) in QUIET_HELP {
+        command = command.mut_subcommand(*name, |sub| {
+            sub.arg(
+                clap::Arg::new("quiet")
+                    .long("quiet")
+                    .short('q')
+                    .action(clap::ArgAction::SetTrue)
+                    .help(*help),
+            )
+        });
+    }
+    command
+}
+
 fn main() -> ExitCode {
-    let cli = match Cli::try_parse() {
+    let cli = match command()
+        .try_get_matches()
+        .and_then(|m| Cli::from_arg_matches(&m))
+    {
         Ok(c) => c,
         Err(e) => {
             let _ = e.print();

@@ -461,7 +461,8 @@ fn self_check_counts_one_mismatch_and_fails_the_run() {
     let log = expected_log(&layout, &ins, &outs, false);
     let n = ins.len();
     let pass = format!("arithvec-tb: {n} vectors, 0 mismatches");
-    let fail = format!("arithvec-tb: {n} vectors, 1 mismatches");
+    // Exactly "1 mismatch" (issue 9, item 20: singular for one), not "1 mismatches".
+    let fail = format!("arithvec-tb: {n} vectors, 1 mismatch\n");
     type Sim<'a> = (&'a str, Box<dyn Fn(&[&str]) -> Run + 'a>);
     let mut sims: Vec<Sim> = Vec::new();
     if have("iverilog") {
@@ -872,7 +873,7 @@ fn vhdl_self_check_on_ghdl() {
     assert!(!bad.output.status.success(), "{}", bad.describe());
     assert!(
         bad.describe()
-            .contains(&format!("arithvec-tb: {n} vectors, 1 mismatches")),
+            .contains(&format!("arithvec-tb: {n} vectors, 1 mismatch\n")),
         "{}",
         bad.describe()
     );

@@ -458,7 +458,12 @@ fn check_log(
             })
         })?;
     checker.add_log(&log_name);
-    let bar = spinner(quiet);
+    // With --vectors the total is the manifest's vector count: a bar with ETA; without, a
+    // spinner. Either only on a terminal (stderr), so files and pipes see the same bytes.
+    let bar = match manifest {
+        Some(m) => crate::cli::util::progress_bar(m.vectors, quiet, "rows checked"),
+        None => spinner(quiet),
+    };
     let bad = checker.check_log(&mut reader, args.lenient, |n| {
         if let Some(b) = &bar {
             b.set_position(n);

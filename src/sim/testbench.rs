@@ -790,11 +790,15 @@ impl<'a> Plan<'a> {
         out.push_str("    end\n    $fclose(v_fd);\n");
         if check {
             out.push_str(
-                "    $display(\"arithvec-tb: %0d vectors, %0d mismatches\", VECTORS, v_mismatches);\n\
+                "    // One summary line, singular for a count of one (\"1 vector, 1 mismatch\").\n\
+                 \x20   if (VECTORS == 1) $write(\"arithvec-tb: 1 vector, \");\n\
+                 \x20   else $write(\"arithvec-tb: %0d vectors, \", VECTORS);\n\
+                 \x20   if (v_mismatches == 1) $display(\"1 mismatch\");\n\
+                 \x20   else $display(\"%0d mismatches\", v_mismatches);\n\
                  \x20   // $fatal is IEEE 1800 (20.10); Icarus 11 and Verilator 5 accept it in\n\
                  \x20   // Verilog-2005 sources, and it is the only portable way to a failing exit status.\n\
                  \x20   if (v_mismatches > 0)\n\
-                 \x20     $fatal(1, \"arithvec-tb: %0d of %0d vectors mismatched\", v_mismatches, VECTORS);\n",
+                 \x20     $fatal(1, \"arithvec-tb: mismatched vectors: %0d of %0d\", v_mismatches, VECTORS);\n",
             );
         } else {
             out.push_str(
@@ -971,6 +975,9 @@ impl<'a> Plan<'a> {
             );
         }
         out.push_str(VHDL_HELPERS);
+        if check {
+            out.push_str(VHDL_COUNT_HELPER);
+        }
         out.push_str("begin\n");
         let _ = writeln!(out, "  v_dut : entity work.{}", self.dut.module);
         if !self.dut.parameters.is_empty() {
@@ -1109,11 +1116,11 @@ impl<'a> Plan<'a> {
         out.push_str("    file_close(v_results_file);\n");
         if check {
             out.push_str(
-                "    report \"arithvec-tb: \" & integer'image(c_vectors) & \" vectors, \"\n\
-                 \x20     & integer'image(v_mismatches) & \" mismatches\";\n\
+                "    report \"arithvec-tb: \" & f_count(c_vectors, \"vector\", \"vectors\") & \", \"\n\
+                 \x20     & f_count(v_mismatches, \"mismatch\", \"mismatches\");\n\
                  \x20   assert v_mismatches = 0\n\
-                 \x20     report \"arithvec-tb: \" & integer'image(v_mismatches) & \" of \"\n\
-                 \x20       & integer'image(c_vectors) & \" vectors mismatched\" severity failure;\n",
+                 \x20     report \"arithvec-tb: mismatched vectors: \" & integer'image(v_mismatches)\n\
+                 \x20       & \" of \" & integer'image(c_vectors) severity failure;\n",
             );
         } else {
             out.push_str(
@@ -1150,6 +1157,18 @@ impl<'a> Plan<'a> {
 
 /// The subprograms every VHDL testbench declares: digit padding for `hwrite` and the reader
 /// that skips comment lines.
+/// The self-check's count formatter: "1 vector", "2 vectors" (singular for one).
+const VHDL_COUNT_HELPER: &str = "
+  -- A count with its noun, singular for one: \"1 mismatch\", \"2 mismatches\".
+  function f_count(n : natural; one, many : string) return string is
+  begin
+    if n = 1 then
+      return integer'image(n) & \" \" & one;
+    end if;
+    return integer'image(n) & \" \" & many;
+  end function;
+";
+
 const VHDL_HELPERS: &str = r#"
   -- Widens a value to whole hex digits so that hwrite prints exactly ceil(width / 4)
   -- digits, padding like to_hstring (IEEE 1076-2008, 16.7): with 'Z' when the leftmost
@@ -1656,9 +1675,8 @@ parameters = { W = 16, STYLE = "say \"fast\"" }
         assert!(text.contains("$value$plusargs(\"expected=%s\", v_expected_path)) v_expected_path = \"expected.hex\";"));
         assert!(text.contains("wire [EXPECTED_BITS-1:0] v_got = {s_result, s_carry_out, s_overflow, s_zero, s_negative};"));
         assert!(text.contains("if (v_got !== v_expected_word[EXPECTED_BITS-1:0]) begin"));
-        assert!(text.contains(
-            "$display(\"arithvec-tb: %0d vectors, %0d mismatches\", VECTORS, v_mismatches);"
-        ));
+        assert!(text.contains("else $write(\"arithvec-tb: %0d vectors, \", VECTORS);"));
+        assert!(text.contains("if (v_mismatches == 1) $display(\"1 mismatch\");"));
         assert!(text.contains("if (v_mismatches > 0)\n      $fatal(1,"));
     }
 

@@ -90,3 +90,56 @@ fn issue9_option_names_mean_one_thing_in_every_command() {
     sb.run(&["gen", &spec, "-o", "old", "-q"]).expect_code(0);
     assert!(sb.path("old/manifest.json").exists());
 }
+
+/// The `-q/--quiet` help of one subcommand, joined across clap's wrapped lines.
+fn quiet_help(sb: &Sandbox, command: &str) -> String {
+    let help = sb.run(&[command, "--help"]);
+    help.expect_code(0);
+    let mut text = String::new();
+    let mut inside = false;
+    for line in help.stdout.lines().map(str::trim) {
+        if line.starts_with("-q, --quiet") {
+            inside = true;
+            text.push_str(line.trim_start_matches("-q, --quiet").trim());
+        } else if inside {
+            if line.is_empty() || line.starts_with('-') {
+                break;
+            }
+            text.push(' ');
+            text.push_str(line);
+        }
+    }
+    assert!(!text.is_empty(), "{command} --help has no -q, --quiet");
+    text
+}
+
+#[test]
+fn issue9_quiet_help_is_written_per_command() {
+    let sb = Sandbox::new();
+    let commands = subcommands(&sb);
+    let mut seen: Vec<(String, String)> = Vec::new();
+    for command in &commands {
+        let text = quiet_help(&sb, command);
+        if let Some((other, _)) = seen.iter().find(|(_, t)| *t == text) {
+            panic!("{command} and {other} share one -q help: {text}");
+        }
+        seen.push((command.clone(), text));
+    }
+    // Each says what that command stops printing (or that it prints its output anyway).
+    let said = |c: &str| seen.iter().find(|(n, _)| n == c).unwrap().1.clone();
+    assert!(said("check").contains("verdict line"), "{}", said("check"));
+    assert!(said("gen").contains("summary"), "{}", said("gen"));
+    assert!(said("gen").contains("progress bar"), "{}", said("gen"));
+    assert!(said("testbench").contains("file"), "{}", said("testbench"));
+
+    // -q works before and after the command name.
+    let spec = sb.write("flow.toml", FLOW_ADDER);
+    for (dir, args) in [("q1", ["-q", "gen"]), ("q2", ["gen", "-q"])] {
+        let run = sb.run(&[args[0], args[1], &spec, "--out", dir]);
+        run.expect_code(0);
+        assert_eq!(run.stdout, "", "{args:?}");
+    }
+    let loud = sb.run(&["gen", &spec, "--out", "q3"]);
+    loud.expect_code(0);
+    assert!(loud.stdout.contains("wrote "), "{}", loud.stdout);
+}
