@@ -336,7 +336,7 @@ struct Formatter<'a> {
     expected: Packer,
     inputs: Vec<(Signal, u32)>,
     outputs: Vec<(Signal, u32)>,
-    /// The fast path for units up to 64 bits whose packed words fit in 128 bits.
+    /// The fast path for units up to 64 bits whose packed words fit in 256 bits.
     narrow: Option<NarrowRows>,
 }
 
@@ -376,7 +376,8 @@ fn signal_values(i: &Inputs, o: &Outputs) -> [u64; Signal::ALL.len()] {
 }
 
 /// One packed word of the fast path: (signal number, lowest bit, mask) per field and its
-/// digits.
+/// digits. Words up to 128 bits are packed into a `u128`; words up to 256 bits (a 64-bit
+/// divider's quotient, remainder and flags) into four 64-bit limbs.
 struct NarrowWord {
     fields: Vec<(usize, u32, u64)>,
     digits: usize,
@@ -384,7 +385,7 @@ struct NarrowWord {
 
 impl NarrowWord {
     fn of(layout: &WordLayout) -> Option<NarrowWord> {
-        (layout.width <= 128).then(|| NarrowWord {
+        (layout.width <= 256).then(|| NarrowWord {
             fields: layout
                 .fields
                 .iter()
@@ -397,7 +398,7 @@ impl NarrowWord {
         })
     }
 
-    /// The packed word, as [`Packer::push_line`] packs it.
+    /// The packed word, as [`Packer::push_line`] packs it (words of at most 128 bits).
     #[inline]
     fn pack(&self, values: &[u64; Signal::ALL.len()]) -> u128 {
         let mut packed = 0u128;
@@ -405,6 +406,36 @@ impl NarrowWord {
             packed |= ((values[signal] & mask) as u128) << lsb;
         }
         packed
+    }
+
+    /// The packed word as four little-endian limbs (words of at most 256 bits).
+    #[inline]
+    fn pack_limbs(&self, values: &[u64; 17]) -> [u64; 4] {
+        let mut limbs = [0u64; 4];
+        for &(signal, lsb, mask) in &self.fields {
+            let v = values[signal] & mask;
+            let (limb, shift) = ((lsb / 64) as usize, lsb % 64);
+            limbs[limb] |= v << shift;
+            if shift > 0 && limb + 1 < 4 {
+                limbs[limb + 1] |= v >> (64 - shift);
+            }
+        }
+        limbs
+    }
+
+    /// Writes the packed word's hex digits to `line`.
+    #[inline]
+    fn write(&self, values: &[u64; 17], line: &mut Line) {
+        if self.digits <= 32 {
+            line.hex128(self.pack(values), self.digits);
+        } else {
+            let limbs = self.pack_limbs(values);
+            let top = self.digits.div_ceil(16);
+            line.hex(limbs[top - 1], self.digits - 16 * (top - 1));
+            for k in (0..top - 1).rev() {
+                line.hex(limbs[k], 16);
+            }
+        }
     }
 }
 
@@ -517,14 +548,14 @@ impl Formatter<'_> {
 
 /// A row being built on the stack, appended to its file in one copy.
 struct Line {
-    bytes: [u8; 160],
+    bytes: [u8; 256],
     len: usize,
 }
 
 impl Line {
     fn new() -> Line {
         Line {
-            bytes: [0; 160],
+            bytes: [0; 256],
             len: 0,
         }
     }
@@ -589,10 +620,11 @@ impl Line {
 }
 
 /// [`Formatter::push_row`] for the fast path: the same bytes, written from 64-bit values
-/// with a two-digit table into a stack buffer. The buffer's 160 bytes are ample: a row's
-/// numbers are the index (at most 20 digits), a, b and result (at most 16 digits each),
-/// at most six one-digit flags and their commas, under 100 bytes; the class list is copied
-/// after them.
+/// with a two-digit table into a stack buffer. The buffer's 256 bytes are ample: a row's
+/// numbers are the index (at most 20 digits) and the fields of the two packed words (at
+/// most 512 bits in at most 17 fields: at most 128 + 17 digits) with their commas, under
+/// 190 bytes; a packed word's line is at most 64 digits; the class list is copied after
+/// them.
 #[inline]
 fn push_row_narrow(
     n: &NarrowRows,
@@ -613,10 +645,10 @@ fn push_row_narrow(
     line.flush(&mut chunk.csv);
     chunk.csv.extend_from_slice(classes.as_bytes());
     chunk.csv.push(b'\n');
-    line.hex128(n.stimulus.pack(&values), n.stimulus.digits);
+    n.stimulus.write(&values, &mut line);
     line.byte(b'\n');
     line.flush(&mut chunk.stimulus);
-    line.hex128(n.expected.pack(&values), n.expected.digits);
+    n.expected.write(&values, &mut line);
     line.byte(b'\n');
     line.flush(&mut chunk.expected);
 }
@@ -1314,5 +1346,56 @@ impl VectorSet {
     pub fn get(&self, index: u64) -> Option<&Inputs> {
         let pos = index.checked_sub(self.manifest.first_index)?;
         self.inputs.get(pos as usize)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::spec::{Encoding, Operation};
+
+    /// The fast path writes the same bytes as the general one, for packed words up to 128
+    /// bits (one `u128`) and above (four limbs: a 64-bit divider's 129- and 130-bit expected
+    /// words, whose fields straddle limb boundaries).
+    #[test]
+    fn fast_rows_are_the_general_rows() {
+        for (op, enc, w) in [
+            (Operation::DivRem, Encoding::Twos, 64),
+            (Operation::DivRem, Encoding::Unsigned, 64),
+            (Operation::Div, Encoding::Twos, 33),
+            (Operation::Mul, Encoding::Twos, 32),
+            (Operation::Mul, Encoding::Unsigned, 30),
+            (Operation::Sub, Encoding::Twos, 32),
+        ] {
+            let spec = Spec::with_defaults(op, enc, w);
+            let g = Generator::new(&spec, Some(300), Some(5));
+            let f = formatter(&g, &spec);
+            let n = f
+                .narrow
+                .as_ref()
+                .unwrap_or_else(|| panic!("{op:?} {w}: no fast path"));
+            assert!(n.stimulus.digits <= 64 && n.expected.digits <= 64);
+            let cat = g.catalogue();
+            let mut hits = Hits::new();
+            let mut wide_words = 0;
+            for index in 0..g.total() {
+                let inputs = g.vector(index).expect("in the set");
+                let mut classes = String::new();
+                let outputs = evaluate_vector(cat, &inputs, &mut hits, Some(&mut classes));
+                let (mut fast, mut general) = (Chunk::default(), Chunk::default());
+                push_row_narrow(n, index, &inputs, &outputs, &classes, &mut fast);
+                f.push_row(index, &inputs, &outputs, &classes, &mut general);
+                assert_eq!(fast.csv, general.csv, "{op:?} {w} row {index}");
+                assert_eq!(fast.stimulus, general.stimulus, "{op:?} {w} row {index}");
+                assert_eq!(fast.expected, general.expected, "{op:?} {w} row {index}");
+                wide_words += (n.expected.digits > 32) as u32;
+            }
+            if op == Operation::DivRem {
+                assert!(
+                    wide_words > 0,
+                    "{op:?} {w}: the four-limb path was not used"
+                );
+            }
+        }
     }
 }

@@ -324,6 +324,18 @@ pub(super) fn ext_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>)
     }
 }
 
+/// Whether an extended kind hits any bin, for the kinds where that is cheaper to tell than
+/// which bins (the classes-only classification); None for the others.
+pub(super) fn ext_hit<B: Bits>(model: &Model, kind: &ExtKind, t: &Trace<B>) -> Option<bool> {
+    model.unit()?;
+    match kind {
+        // A bin at every digit position, at every bit, for every pair of sign bits.
+        ExtKind::BoothDigits | ExtKind::BitPairs | ExtKind::MulSigns => Some(true),
+        ExtKind::DivStep => super::divide::div_hit(kind, t),
+        _ => None,
+    }
+}
+
 /// The bins of an extended kind that (a, b, trace) hits, pushed with `bin`.
 pub(super) fn ext_bins<B: Bits>(
     model: &Model,

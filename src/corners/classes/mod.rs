@@ -914,9 +914,10 @@ impl Catalogue {
                         }
                     }
                 }
-                Kind::Ext(kind) => {
-                    ext::ext_bins(&self.model, kind, a, b, t, |k| bin(hits, k));
-                }
+                Kind::Ext(kind) => match ext::ext_hit(&self.model, kind, t) {
+                    Some(hit) if detail == Detail::ClassesOnly => hit_any = hit,
+                    _ => ext::ext_bins(&self.model, kind, a, b, t, |k| bin(hits, k)),
+                },
                 // Classified by the select catalogue itself.
                 Kind::SelectCode => {}
             }
