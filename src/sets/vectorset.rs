@@ -410,7 +410,7 @@ impl NarrowWord {
 
     /// The packed word as four little-endian limbs (words of at most 256 bits).
     #[inline]
-    fn pack_limbs(&self, values: &[u64; 17]) -> [u64; 4] {
+    fn pack_limbs(&self, values: &[u64; Signal::ALL.len()]) -> [u64; 4] {
         let mut limbs = [0u64; 4];
         for &(signal, lsb, mask) in &self.fields {
             let v = values[signal] & mask;
@@ -425,7 +425,7 @@ impl NarrowWord {
 
     /// Writes the packed word's hex digits to `line`.
     #[inline]
-    fn write(&self, values: &[u64; 17], line: &mut Line) {
+    fn write(&self, values: &[u64; Signal::ALL.len()], line: &mut Line) {
         if self.digits <= 32 {
             line.hex128(self.pack(values), self.digits);
         } else {
