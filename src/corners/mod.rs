@@ -11,3 +11,5 @@ pub(crate) mod construct;
 pub(crate) mod construct_divide;
 pub(crate) mod construct_simple;
 pub(crate) mod generate;
+#[cfg(test)]
+mod reachability;
