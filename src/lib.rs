@@ -82,8 +82,8 @@ pub use sets::vectorset::{
     csv_header, csv_row, read_manifest, read_manifest_unverified,
     remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
     write as write_vector_set, write_imported, FileRecord, ImportSource, Imported, Manifest,
-    ManifestField, ManifestLayout, ManifestWord, Selection, Shard, TopUpVector, VectorSet,
-    WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
+    ManifestField, ManifestLayout, ManifestWord, Selection, SetBytes, Shard, TopUpVector,
+    VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{
