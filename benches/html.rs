@@ -12,7 +12,7 @@
 //! browser half prints a loud SKIPPED line.
 
 use std::fs;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::Command;
 use std::time::{Duration, Instant};
 
@@ -20,25 +20,10 @@ const BIN: &str = env!("CARGO_BIN_EXE_arithvec");
 const GOAL_SECONDS: f64 = 2.0;
 const GOAL_BYTES: u64 = 5 * 1024 * 1024;
 
-const SPEC: &str = r#"name = "bench_tally"
-operation = "add"
-width = 8
-encoding = "unsigned"
+#[path = "../tests/support/html.rs"]
+mod html_support;
 
-[ports]
-a = "a"
-b = "b"
-carry_in = "cin"
-result = "y"
-carry_out = "co"
-overflow = "ovf"
-zero = "z"
-negative = "n"
-
-[random]
-count = 1000000
-seed = 5
-"#;
+use html_support::{find_chromium as chromium, headless};
 
 fn runs() -> usize {
     std::env::var("ARITHVEC_BENCH_RUNS")
@@ -70,53 +55,14 @@ fn arithvec(dir: &Path, args: &[&str]) -> (Duration, i32) {
 
 /// The log a unit with a broken bit-4 sum writes on every hundredth vector.
 fn write_log(dir: &Path) -> u64 {
-    let csv = fs::read_to_string(dir.join("vec/vectors.csv")).unwrap();
-    let mut lines = csv.lines();
-    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
-    let y = header.iter().position(|&h| h == "y").unwrap();
-    let mut out = String::with_capacity(csv.len());
-    out.push_str(&header[..header.len() - 1].join(","));
-    out.push('\n');
-    let mut broken = 0;
-    for line in lines {
-        let mut f: Vec<String> = line.split(',').map(str::to_string).collect();
-        f.pop();
-        if f[0].parse::<u64>().unwrap() % 100 == 7 {
-            let v = u8::from_str_radix(&f[y], 16).unwrap() ^ 0x10;
-            f[y] = format!("{v:02x}");
-            broken += 1;
-        }
-        out.push_str(&f.join(","));
-        out.push('\n');
-    }
-    fs::write(dir.join("results.csv"), out).unwrap();
-    broken
-}
-
-fn chromium() -> Option<PathBuf> {
-    ["chromium", "chromium-browser"].iter().find_map(|name| {
-        let o = Command::new("which").arg(name).output().ok()?;
-        o.status
-            .success()
-            .then(|| PathBuf::from(String::from_utf8_lossy(&o.stdout).trim()))
-    })
+    html_support::write_log(dir, "results.csv", 0x10, |i| i % 100 == 7)
 }
 
 fn browse(chromium: &Path, work: &Path, mode: &str, page: &Path) -> Duration {
     let profile = tempfile::tempdir_in(work).unwrap();
     let shot = work.join("shot.png");
-    let mut cmd = Command::new(chromium);
-    cmd.args([
-        "--headless",
-        "--no-sandbox",
-        "--disable-gpu",
-        "--no-first-run",
-        "--disable-background-networking",
-        "--disable-component-update",
-        "--disable-sync",
-        "--window-size=1280,1600",
-    ])
-    .arg(format!("--user-data-dir={}", profile.path().display()));
+    let mut cmd = headless(chromium, profile.path());
+    cmd.arg("--window-size=1280,1600");
     if mode == "dom" {
         cmd.arg("--dump-dom");
     } else {
@@ -137,7 +83,11 @@ fn browse(chromium: &Path, work: &Path, mode: &str, page: &Path) -> Duration {
 fn main() {
     let dir = tempfile::tempdir().expect("temp dir");
     let d = dir.path();
-    fs::write(d.join("unit.toml"), SPEC).unwrap();
+    fs::write(
+        d.join("unit.toml"),
+        html_support::adder_spec("bench_tally", 1_000_000, 5),
+    )
+    .unwrap();
     arithvec(d, &["gen", "unit.toml", "--out", "vec", "-q"]);
     let broken = write_log(d);
     let check = |html: bool| {

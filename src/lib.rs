@@ -87,8 +87,9 @@ pub use sets::vectorset::{
     csv_header, csv_row, read_manifest, read_manifest_unverified,
     remove_temporaries as remove_set_temporaries, sha256_hex, spec_identity, verify_files,
     write as write_vector_set, write_imported, FileRecord, ImportSource, Imported, Manifest,
-    ManifestField, ManifestLayout, ManifestWord, PairLayout, Selection, Shard, TopUpVector,
-    VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, PAIR_LAYOUT, STIMULUS_HEX, VECTORS_CSV,
+    ManifestField, ManifestLayout, ManifestWord, PairLayout, Selection, SetBytes, Shard,
+    TopUpVector, VectorSet, WriteOptions, EXPECTED_HEX, MANIFEST_JSON, PAIR_LAYOUT, STIMULUS_HEX,
+    VECTORS_CSV,
 };
 pub use sim::log::{FieldValue, LogReader, LogRow, Radix, RowError};
 pub use sim::testbench::{

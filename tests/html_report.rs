@@ -9,31 +9,20 @@
 
 use std::collections::HashSet;
 use std::fs;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::Command;
 
 const BIN: &str = env!("CARGO_BIN_EXE_arithvec");
 
+#[path = "support/html.rs"]
+mod html_support;
+
+use html_support::{chromium_for_test as chromium, headless, png_frame, run_browser};
+
 /// An invented 8-bit unsigned adder with carry-in and every flag.
-const TRAY_COUNTER: &str = r#"name = "tray_counter"
-operation = "add"
-width = 8
-encoding = "unsigned"
-
-[ports]
-a = "a"
-b = "b"
-carry_in = "cin"
-result = "y"
-carry_out = "co"
-overflow = "ovf"
-zero = "z"
-negative = "n"
-
-[random]
-count = 400
-seed = 7
-"#;
+fn tray_counter() -> String {
+    html_support::adder_spec("tray_counter", 400, 7)
+}
 
 struct Out {
     code: i32,
@@ -59,7 +48,7 @@ fn run(dir: &Path, args: &[&str]) -> Out {
 /// A spec and its generated vector set in a fresh directory.
 fn setup(count: Option<&str>) -> tempfile::TempDir {
     let dir = tempfile::tempdir().expect("temp dir");
-    fs::write(dir.path().join("unit.toml"), TRAY_COUNTER).unwrap();
+    fs::write(dir.path().join("unit.toml"), tray_counter()).unwrap();
     let mut args = vec!["gen", "unit.toml", "--out", "vec"];
     if let Some(c) = count {
         args.extend(["--count", c]);
@@ -72,28 +61,7 @@ fn setup(count: Option<&str>) -> tempfile::TempDir {
 /// The result log a correct unit writes: vectors.csv without its classes column. Rows whose
 /// index `breaks` returns true get result bit 4 flipped (a broken bit-4 sum).
 fn write_log(dir: &Path, name: &str, breaks: impl Fn(u64) -> bool) -> u64 {
-    let csv = fs::read_to_string(dir.join("vec/vectors.csv")).unwrap();
-    let mut lines = csv.lines();
-    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
-    let y = header.iter().position(|&h| h == "y").unwrap();
-    let mut out = String::with_capacity(csv.len());
-    out.push_str(&header[..header.len() - 1].join(","));
-    out.push('\n');
-    let mut broken = 0;
-    for line in lines {
-        let mut f: Vec<String> = line.split(',').map(str::to_string).collect();
-        f.pop();
-        let index: u64 = f[0].parse().unwrap();
-        if breaks(index) {
-            let v = u8::from_str_radix(&f[y], 16).unwrap() ^ 0x10;
-            f[y] = format!("{v:02x}");
-            broken += 1;
-        }
-        out.push_str(&f.join(","));
-        out.push('\n');
-    }
-    fs::write(dir.join(name), out).unwrap();
-    broken
+    html_support::write_log(dir, name, 0x10, breaks)
 }
 
 fn parse(html: &str) -> scraper::Html {
@@ -137,55 +105,17 @@ fn assert_clean_page(html: &str) {
     }
 }
 
-fn chromium() -> Option<PathBuf> {
-    for name in ["chromium", "chromium-browser"] {
-        if let Ok(o) = Command::new("which").arg(name).output() {
-            if o.status.success() {
-                return Some(PathBuf::from(String::from_utf8_lossy(&o.stdout).trim()));
-            }
-        }
-    }
-    if std::env::var_os("CI").is_some() {
-        panic!("chromium is missing and CI is set: run scripts/install-browser.sh");
-    }
-    eprintln!("SKIPPED: chromium not found; the browser half of this test did not run (scripts/install-browser.sh installs it)");
-    None
-}
-
 fn browser(chromium: &Path, work: &Path, args: &[&str], page: &Path) -> std::process::Output {
     let profile = tempfile::tempdir_in(work).expect("profile dir");
-    let out = Command::new(chromium)
-        .args([
-            "--headless",
-            "--no-sandbox",
-            "--disable-gpu",
-            "--disable-quic",
-            "--no-first-run",
-            "--disable-background-networking",
-            "--disable-component-update",
-            "--disable-sync",
-        ])
-        .arg(format!("--user-data-dir={}", profile.path().display()))
-        .args(args)
-        .arg(format!("file://{}", page.display()))
-        .output()
-        .expect("start chromium");
-    assert!(
-        out.status.success(),
-        "chromium failed: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    out
+    let mut cmd = headless(chromium, profile.path());
+    cmd.args(args).arg(format!("file://{}", page.display()));
+    run_browser(cmd)
 }
 
 /// Distinct RGB colours of a PNG.
 fn distinct_colours(png_path: &Path) -> usize {
-    let decoder = png::Decoder::new(std::io::BufReader::new(fs::File::open(png_path).unwrap()));
-    let mut reader = decoder.read_info().expect("a PNG");
-    let mut buf = vec![0; reader.output_buffer_size().expect("size")];
-    let info = reader.next_frame(&mut buf).expect("a frame");
-    let bytes = &buf[..info.buffer_size()];
-    let step = match info.color_type {
+    let (colour_type, bytes) = png_frame(png_path);
+    let step = match colour_type {
         png::ColorType::Rgba => 4,
         png::ColorType::Rgb => 3,
         other => panic!("unexpected PNG colour type {other:?}"),

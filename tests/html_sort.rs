@@ -7,58 +7,29 @@
 
 use std::collections::BTreeSet;
 use std::fs;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::Command;
 
 const BIN: &str = env!("CARGO_BIN_EXE_arithvec");
 
-/// An invented 8-bit unsigned adder with carry-in and every flag.
-const PALLET_SUM: &str = r#"name = "pallet_sum"
-operation = "add"
-width = 8
-encoding = "unsigned"
+#[path = "support/html.rs"]
+mod html_support;
 
-[ports]
-a = "a"
-b = "b"
-carry_in = "cin"
-result = "y"
-carry_out = "co"
-overflow = "ovf"
-zero = "z"
-negative = "n"
-
-[random]
-count = 300
-seed = 11
-"#;
+use html_support::{chromium_for_test as chromium, headless, png_frame, run_browser};
 
 /// Generates the set, writes a log whose rows with index % 4 == 0 have result bit 2 flipped
 /// (so some classes fail, some are covered), checks it with `--html` and returns the page.
 fn failing_page(dir: &Path) -> String {
-    fs::write(dir.join("unit.toml"), PALLET_SUM).unwrap();
+    // An invented 8-bit unsigned adder with carry-in and every flag.
+    let spec = html_support::adder_spec("pallet_sum", 300, 11);
+    fs::write(dir.join("unit.toml"), spec).unwrap();
     let g = Command::new(BIN)
         .args(["gen", "unit.toml", "--out", "vec", "-q"])
         .current_dir(dir)
         .output()
         .unwrap();
     assert!(g.status.success(), "{}", String::from_utf8_lossy(&g.stderr));
-    let csv = fs::read_to_string(dir.join("vec/vectors.csv")).unwrap();
-    let mut lines = csv.lines();
-    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
-    let y = header.iter().position(|&h| h == "y").unwrap();
-    let mut log = header[..header.len() - 1].join(",") + "\n";
-    for line in lines {
-        let mut f: Vec<String> = line.split(',').map(str::to_string).collect();
-        f.pop();
-        if f[0].parse::<u64>().unwrap() % 4 == 0 {
-            let v = u8::from_str_radix(&f[y], 16).unwrap() ^ 0x04;
-            f[y] = format!("{v:02x}");
-        }
-        log.push_str(&f.join(","));
-        log.push('\n');
-    }
-    fs::write(dir.join("results.csv"), log).unwrap();
+    html_support::write_log(dir, "results.csv", 0x04, |i| i % 4 == 0);
     let c = Command::new(BIN)
         .args([
             "check",
@@ -259,57 +230,19 @@ fn issue12_class_table_sorts_by_every_column_without_script() {
     in_browser(dir.path());
 }
 
-fn chromium() -> Option<PathBuf> {
-    for name in ["chromium", "chromium-browser"] {
-        if let Ok(o) = Command::new("which").arg(name).output() {
-            if o.status.success() {
-                return Some(PathBuf::from(String::from_utf8_lossy(&o.stdout).trim()));
-            }
-        }
-    }
-    if std::env::var_os("CI").is_some() {
-        panic!("chromium is missing and CI is set: run scripts/install-browser.sh");
-    }
-    eprintln!("SKIPPED: chromium not found; the browser half of this test did not run (scripts/install-browser.sh installs it)");
-    None
-}
-
 /// A screenshot of the page opened at `fragment`, as raw bytes of the PNG.
 fn screenshot(chromium: &Path, dir: &Path, fragment: &str) -> Vec<u8> {
     let profile = tempfile::tempdir_in(dir).unwrap();
     let shot = dir.join(format!("shot-{fragment}.png"));
-    let out = Command::new(chromium)
-        .args([
-            "--headless",
-            "--no-sandbox",
-            "--disable-gpu",
-            "--disable-quic",
-            "--no-first-run",
-            "--disable-background-networking",
-            "--disable-component-update",
-            "--disable-sync",
-            "--hide-scrollbars",
-            "--window-size=1280,10000",
-        ])
-        .arg(format!("--user-data-dir={}", profile.path().display()))
+    let mut cmd = headless(chromium, profile.path());
+    cmd.args(["--hide-scrollbars", "--window-size=1280,10000"])
         .arg(format!("--screenshot={}", shot.display()))
         .arg(format!(
             "file://{}#{fragment}",
             dir.join("report.html").display()
-        ))
-        .output()
-        .expect("start chromium");
-    assert!(
-        out.status.success(),
-        "chromium failed: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let decoder = png::Decoder::new(std::io::BufReader::new(fs::File::open(&shot).unwrap()));
-    let mut reader = decoder.read_info().expect("a PNG");
-    let mut buf = vec![0; reader.output_buffer_size().expect("size")];
-    let info = reader.next_frame(&mut buf).expect("a frame");
-    buf.truncate(info.buffer_size());
-    buf
+        ));
+    run_browser(cmd);
+    png_frame(&shot).1
 }
 
 /// Every sorted table sits at the same place on the page (only one is displayed), and the

@@ -12,8 +12,8 @@ use std::path::{Path, PathBuf};
 use std::sync::OnceLock;
 
 use arithvec::{
-    FaultList, LogReader, LogRow, Manifest, Netlist, Radix, Spec, VectorSet, Word, EXPECTED_HEX,
-    MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
+    FaultList, LogReader, LogRow, Manifest, Netlist, Radix, SetBytes, Spec, VectorSet, Word,
+    EXPECTED_HEX, MANIFEST_JSON, STIMULUS_HEX, VECTORS_CSV,
 };
 
 /// A scratch directory for the readers that take a directory (the vector set).
@@ -238,46 +238,71 @@ fn count_words(text: &str) -> usize {
         .count()
 }
 
-/// The example set's manifest rewritten for `vectors` words and the given file contents.
-fn manifest_for(set: &ExampleSet, vectors: usize, stimulus: &[u8], expected: &[u8]) -> String {
-    manifest_with(set, vectors, stimulus, expected, true)
-}
-
-/// [`manifest_for`]; without `with_spec` the manifest's copy of the normalised spec is left
-/// out (null): the set reader identifies the spec by `spec_sha256`, and the hex target, whose
-/// input is not the manifest, need not write and parse the copy on every execution.
-fn manifest_with(
-    set: &ExampleSet,
-    vectors: usize,
-    stimulus: &[u8],
-    expected: &[u8],
-    with_spec: bool,
-) -> String {
+/// The example sets' manifests as read, in [`SETS`] order.
+fn example_manifests() -> &'static [Manifest] {
     static PARSED: OnceLock<Vec<Manifest>> = OnceLock::new();
-    let parsed = PARSED.get_or_init(|| {
+    PARSED.get_or_init(|| {
         SETS.iter()
             .map(|s| Manifest::from_json(s.manifest, "manifest.json").expect("example manifest"))
             .collect()
-    });
-    let k = SETS.iter().position(|s| s.name == set.name).unwrap_or(0);
-    let mut m = parsed[k].clone();
+    })
+}
+
+/// Sets the manifest's word count and its records of the files to the given contents (the
+/// `vectors.csv` record only when `csv` is given).
+fn record_files(
+    m: &mut Manifest,
+    vectors: usize,
+    csv: Option<&[u8]>,
+    stimulus: &[u8],
+    expected: &[u8],
+) {
     m.vectors = vectors as u64;
     for rec in &mut m.files {
-        let bytes: &[u8] = match rec.name.as_str() {
-            VECTORS_CSV => SMALL_CSV.as_bytes(),
-            STIMULUS_HEX => stimulus,
-            EXPECTED_HEX => expected,
+        let bytes: &[u8] = match (rec.name.as_str(), csv) {
+            (VECTORS_CSV, Some(csv)) => csv,
+            (STIMULUS_HEX, _) => stimulus,
+            (EXPECTED_HEX, _) => expected,
             _ => continue,
         };
         rec.bytes = bytes.len() as u64;
         rec.sha256 = arithvec::sha256_hex(bytes);
     }
-    if with_spec {
-        serde_json::to_string_pretty(&m).expect("manifest serialises")
-    } else {
-        m.spec = serde_json::Value::Null;
-        serde_json::to_string(&m).expect("manifest serialises")
-    }
+}
+
+/// Example set `k`'s manifest rewritten for `vectors` words and the given file contents.
+fn manifest_for(k: usize, vectors: usize, stimulus: &[u8], expected: &[u8]) -> String {
+    let mut m = example_manifests()[k].clone();
+    record_files(
+        &mut m,
+        vectors,
+        Some(SMALL_CSV.as_bytes()),
+        stimulus,
+        expected,
+    );
+    serde_json::to_string_pretty(&m).expect("manifest serialises")
+}
+
+/// Example set `k`'s manifest as the hex target gives it to the set reader: without its copy
+/// of the normalised spec (null; the set reader identifies the spec by `spec_sha256`) and
+/// with [`SMALL_CSV`]'s record, both made once; per input only the count and the two hex
+/// files' records change.
+fn hex_manifest(k: usize, vectors: usize, stimulus: &[u8], expected: &[u8]) -> Manifest {
+    static TEMPLATES: OnceLock<Vec<Manifest>> = OnceLock::new();
+    let templates = TEMPLATES.get_or_init(|| {
+        example_manifests()
+            .iter()
+            .map(|m| {
+                let mut m = m.clone();
+                m.spec = serde_json::Value::Null;
+                record_files(&mut m, 0, Some(SMALL_CSV.as_bytes()), b"", b"");
+                m
+            })
+            .collect()
+    });
+    let mut m = templates[k].clone();
+    record_files(&mut m, vectors, None, stimulus, expected);
+    m
 }
 
 /// The example sets cut to [`SMALL_WORDS`] words, in [`SETS`] order.
@@ -292,7 +317,7 @@ pub fn small_sets() -> &'static [SmallSet] {
                 SmallSet {
                     name: set.name,
                     manifest: manifest_for(
-                        set,
+                        k,
                         SMALL_WORDS,
                         stimulus.as_bytes(),
                         expected.as_bytes(),
@@ -342,8 +367,11 @@ fn is_stimulus(text: &str, len: usize) -> bool {
 const MAX_MATCHED_WORDS: usize = 1 << 16;
 
 /// The `$readmemh` reader: the input as the example set's `stimulus.hex` or `expected.hex`,
-/// beside a manifest written for it (its size, SHA-256 and word count) and the other file cut
-/// or repeated to the same count, so the words themselves are parsed.
+/// beside a manifest made for it (its size, SHA-256 and word count) and the other file cut
+/// or repeated to the same count, so the words themselves are parsed. The set is read from
+/// memory (`VectorSet::from_bytes`: the checks and the hex parser of `VectorSet::read`, which
+/// `check --vectors` runs): writing it to the file system and reading it back, as the first
+/// version did, cost most of each execution.
 pub fn hex(data: &[u8], scratch: &Scratch) {
     let _ = hex_reads(data, scratch);
 }
@@ -352,17 +380,21 @@ pub fn hex(data: &[u8], scratch: &Scratch) {
 pub fn hex_reads(data: &[u8], scratch: &Scratch) -> bool {
     let text = String::from_utf8_lossy(data);
     let k = pick_set(&text);
-    let set = &SETS[k];
     let words = count_words(&text).min(MAX_MATCHED_WORDS);
-    if is_stimulus(&text, data.len()) {
-        let expected = cut_example(k, true, words);
-        let manifest = manifest_with(set, words, data, expected.as_bytes(), false);
-        read_set(scratch, k, manifest.as_bytes(), data, expected.as_bytes())
+    let stimulus_input = is_stimulus(&text, data.len());
+    let other = cut_example(k, stimulus_input, words);
+    let (stimulus, expected) = if stimulus_input {
+        (data, other.as_bytes())
     } else {
-        let stimulus = cut_example(k, false, words);
-        let manifest = manifest_with(set, words, stimulus.as_bytes(), data, false);
-        read_set(scratch, k, manifest.as_bytes(), stimulus.as_bytes(), data)
-    }
+        (other.as_bytes(), data)
+    };
+    let manifest = hex_manifest(k, words, stimulus, expected);
+    let files = SetBytes {
+        vectors_csv: SMALL_CSV.as_bytes(),
+        stimulus,
+        expected,
+    };
+    VectorSet::from_bytes(scratch.path(), manifest, &files, &units()[k]).is_ok()
 }
 
 /// Writes the set's files into the scratch directory and reads it as the command line does;

@@ -251,10 +251,8 @@ pub(crate) fn candidates(cat: &Catalogue, spec: &Spec, class: usize, k: u32) -> 
 
 #[cfg(test)]
 mod tests {
-    use crate::arith::model::Inputs;
-    use crate::arith::word::Word;
-    use crate::corners::classes::Hits;
     use crate::corners::generate::Generator;
+    use crate::corners::reachability::assert_reachability_matches_enumeration;
     use crate::spec::{
         Encoding, LargeAmount, NegativeZero, Operation, ResultPart, Signal, Signedness, Spec,
         ZeroFlag,
@@ -326,50 +324,18 @@ mod tests {
     /// for it) and every reachable bin is hit: exhaustive over all operands and amounts.
     #[test]
     fn extended_reachability_matches_exhaustive_enumeration() {
-        let mut failures = Vec::new();
-        for w in 1..=5u32 {
-            for spec in variants(w) {
-                let g = Generator::new(&spec, Some(0), None);
-                let cat = g.catalogue();
-                let mut seen = vec![false; cat.bin_count()];
-                let mut hits = Hits::new();
+        assert_reachability_matches_enumeration(
+            1..=5,
+            variants,
+            |spec, w| {
                 let bw = if spec.operation.is_shift() {
                     spec.signal_width(Signal::Amount)
                 } else {
                     w
                 };
-                for a in 0..1u64 << w {
-                    for b in 0..1u64 << bw {
-                        let v = Inputs {
-                            a: Word::from_u64(a),
-                            b: Word::from_u64(b),
-                            ..Inputs::default()
-                        };
-                        cat.evaluate(&v, &mut hits);
-                        hits.for_each_bin(|b| seen[b] = true);
-                    }
-                }
-                for (bin, &was_seen) in seen.iter().enumerate() {
-                    if was_seen != cat.is_reachable(bin) {
-                        failures.push(format!(
-                            "{} w{w} {:?}: bin {} hit by enumeration = {was_seen}, reachable = {}",
-                            spec.name,
-                            spec.options,
-                            cat.bin_id(bin),
-                            cat.is_reachable(bin)
-                        ));
-                    }
-                    if cat.is_reachable(bin) {
-                        assert!(g.directed_hits(bin) > 0, "{}", cat.bin_id(bin));
-                    }
-                }
-            }
-        }
-        assert!(
-            failures.is_empty(),
-            "{} mismatches:\n{}",
-            failures.len(),
-            failures[..failures.len().min(40)].join("\n")
+                1u64 << bw
+            },
+            |spec, w| format!("{} w{w} {:?}", spec.name, spec.options),
         );
     }
 

@@ -13,3 +13,5 @@ pub(crate) mod construct_sat;
 pub(crate) mod construct_simple;
 pub(crate) mod generate;
 pub(crate) mod pairs;
+#[cfg(test)]
+mod reachability;

@@ -295,8 +295,16 @@ pub fn sha256_hex(bytes: &[u8]) -> String {
     hex_of(&Sha256::digest(bytes))
 }
 
+/// `bytes` as lowercase hex, two digits a byte (a table look-up: formatting each byte with
+/// `format!` cost the hex fuzzer a tenth of every execution, eight digests each).
 fn hex_of(bytes: &[u8]) -> String {
-    bytes.iter().map(|b| format!("{b:02x}")).collect()
+    const DIGITS: &[u8; 16] = b"0123456789abcdef";
+    let mut s = String::with_capacity(2 * bytes.len());
+    for &b in bytes {
+        s.push(DIGITS[usize::from(b >> 4)] as char);
+        s.push(DIGITS[usize::from(b & 0xf)] as char);
+    }
+    s
 }
 
 /// The unit identity hash: the normalised spec without `[random]` and `[dut]`.
@@ -1129,42 +1137,14 @@ impl Manifest {
 /// threads). A mismatch is bad input naming the file.
 pub fn verify_files(dir: &Path, manifest: &Manifest) -> Result<()> {
     let mpath = dir.join(MANIFEST_JSON).display().to_string();
-    let mut records = Vec::new();
-    for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX] {
-        let mut found = manifest.files.iter().filter(|f| f.name == name);
-        match (found.next(), found.next()) {
-            (Some(rec), None) => records.push(rec),
-            (None, _) => {
-                return Err(Error::problem(
-                    Problem::new(mpath, format!("lists no {name}; regenerate the set"))
-                        .field("files"),
-                ))
-            }
-            (Some(_), Some(_)) => {
-                return Err(Error::problem(
-                    Problem::new(mpath, format!("lists {name} twice; regenerate the set"))
-                        .field("files"),
-                ))
-            }
-        }
-    }
+    let records = listed_records(manifest, &mpath)?;
     for rec in &records {
         let path = dir.join(&rec.name);
         let size = std::fs::metadata(&path)
             .map_err(|e| Error::io(&path, e))?
             .len();
         if size != rec.bytes {
-            return Err(Error::problem(
-                Problem::new(
-                    path.display().to_string(),
-                    format!(
-                        "is {size} bytes but manifest.json records {} (truncated, edited or \
-                         from another run?); regenerate the set",
-                        rec.bytes
-                    ),
-                )
-                .field("bytes"),
-            ));
+            return Err(size_mismatch(&path, size, rec));
         }
     }
     // Small sets are hashed on this thread: starting threads costs more than hashing a few
@@ -1185,6 +1165,61 @@ pub fn verify_files(dir: &Path, manifest: &Manifest) -> Result<()> {
             .collect()
     });
     results.into_iter().collect()
+}
+
+/// The manifest's records of `vectors.csv`, `stimulus.hex` and `expected.hex`, in that order;
+/// a file listed twice or not at all is bad input naming the manifest (`mpath`).
+fn listed_records<'m>(manifest: &'m Manifest, mpath: &str) -> Result<Vec<&'m FileRecord>> {
+    let mut records = Vec::new();
+    for name in [VECTORS_CSV, STIMULUS_HEX, EXPECTED_HEX] {
+        let mut found = manifest.files.iter().filter(|f| f.name == name);
+        match (found.next(), found.next()) {
+            (Some(rec), None) => records.push(rec),
+            (None, _) => {
+                return Err(Error::problem(
+                    Problem::new(mpath, format!("lists no {name}; regenerate the set"))
+                        .field("files"),
+                ))
+            }
+            (Some(_), Some(_)) => {
+                return Err(Error::problem(
+                    Problem::new(mpath, format!("lists {name} twice; regenerate the set"))
+                        .field("files"),
+                ))
+            }
+        }
+    }
+    Ok(records)
+}
+
+/// The error for a data file whose size is not the one its record gives.
+fn size_mismatch(path: &Path, size: u64, rec: &FileRecord) -> Error {
+    Error::problem(
+        Problem::new(
+            path.display().to_string(),
+            format!(
+                "is {size} bytes but manifest.json records {} (truncated, edited or \
+                 from another run?); regenerate the set",
+                rec.bytes
+            ),
+        )
+        .field("bytes"),
+    )
+}
+
+/// The error for a data file whose SHA-256 is not the one its record gives.
+fn digest_mismatch(path: &Path, digest: &str, rec: &FileRecord) -> Error {
+    Error::problem(
+        Problem::new(
+            path.display().to_string(),
+            format!(
+                "does not match manifest.json: SHA-256 {digest}, recorded {} (edited, \
+                 truncated or from another run?); regenerate the set",
+                rec.sha256
+            ),
+        )
+        .field("sha256"),
+    )
 }
 
 /// Total size up to which [`verify_files`] hashes the files one after another on the calling
@@ -1210,19 +1245,20 @@ fn verify_file(path: &Path, rec: &FileRecord) -> Result<()> {
     }
     let digest = hex_of(&hasher.finalize());
     if bytes != rec.bytes || digest != rec.sha256 {
-        return Err(Error::problem(
-            Problem::new(
-                path.display().to_string(),
-                format!(
-                    "does not match manifest.json: SHA-256 {digest}, recorded {} (edited, \
-                     truncated or from another run?); regenerate the set",
-                    rec.sha256
-                ),
-            )
-            .field("sha256"),
-        ));
+        return Err(digest_mismatch(path, &digest, rec));
     }
     Ok(())
+}
+
+/// The bytes of a vector set's three data files, for [`VectorSet::from_bytes`].
+#[derive(Debug, Clone, Copy)]
+pub struct SetBytes<'a> {
+    /// `vectors.csv`.
+    pub vectors_csv: &'a [u8],
+    /// `stimulus.hex`.
+    pub stimulus: &'a [u8],
+    /// `expected.hex`.
+    pub expected: &'a [u8],
 }
 
 impl VectorSet {
@@ -1230,20 +1266,7 @@ impl VectorSet {
     /// layout) and that the files match their recorded hashes.
     pub fn read(dir: &Path, spec: &Spec) -> Result<VectorSet> {
         let manifest = read_manifest(dir)?;
-        let mpath = dir.join(MANIFEST_JSON).display().to_string();
-        if manifest.spec_sha256 != spec_identity(spec) {
-            return Err(Error::problem(
-                Problem::new(
-                    mpath,
-                    format!(
-                        "this vector set was generated from a different spec (unit \"{}\"); \
-                         regenerate it with `arithvec gen`",
-                        manifest.unit
-                    ),
-                )
-                .field("spec_sha256"),
-            ));
-        }
+        check_identity(dir, &manifest, spec)?;
         let layout = Layout::for_spec(spec);
         let mut sets = Vec::new();
         for (name, word) in [
@@ -1252,67 +1275,56 @@ impl VectorSet {
         ] {
             let path = dir.join(name);
             let file = File::open(&path).map_err(|e| Error::io(&path, e))?;
-            let mut reader = BufReader::new(file);
-            let packer = Packer::new(word);
-            let mut line = String::new();
-            // The manifest's count is not trusted for the allocation: a damaged one could ask
-            // for more memory than the machine has (found by fuzzing the manifest reader).
-            let mut rows = Vec::with_capacity(manifest.vectors.min(1 << 16) as usize);
-            let mut hasher = Sha256::new();
-            let mut n = 0;
-            loop {
-                line.clear();
-                let got = reader
-                    .read_line(&mut line)
-                    .map_err(|e| Error::io(&path, e))?;
-                if got == 0 {
-                    break;
-                }
-                hasher.update(line.as_bytes());
-                n += 1;
-                let t = line.trim();
-                if t.is_empty() || t.starts_with("//") {
-                    continue;
-                }
-                match packer.unpack(t) {
-                    Some(fields) => rows.push(fields),
-                    None => {
-                        return Err(Error::problem(
-                            Problem::new(
-                                path.display().to_string(),
-                                format!(
-                                    "expected {} hex digits for a {}-bit word, found \"{t}\"",
-                                    word.hex_digits(),
-                                    word.width
-                                ),
-                            )
-                            .at_line(n),
-                        ))
-                    }
-                }
-            }
-            let digest = hex_of(&hasher.finalize());
-            if let Some(rec) = manifest.files.iter().find(|f| f.name == name) {
-                if rec.sha256 != digest {
-                    return Err(Error::problem(Problem::new(
-                        path.display().to_string(),
-                        "the file does not match the SHA-256 in manifest.json (edited or \
-                         truncated?); regenerate the set",
-                    )));
-                }
-            }
-            if rows.len() as u64 != manifest.vectors {
-                return Err(Error::problem(Problem::new(
-                    path.display().to_string(),
-                    format!(
-                        "holds {} words but manifest.json says {}",
-                        rows.len(),
-                        manifest.vectors
-                    ),
-                )));
-            }
-            sets.push(rows);
+            sets.push(read_words(
+                BufReader::new(file),
+                &path,
+                name,
+                word,
+                &manifest,
+            )?);
         }
+        Ok(VectorSet::assemble(manifest, &layout, sets))
+    }
+
+    /// Reads a set held in memory, with the checks and the parser of [`VectorSet::read`]:
+    /// `manifest` must list the three files once each with their sizes and SHA-256s, belong
+    /// to `spec`, and count the words of both hex files. `dir` is where the set is said to
+    /// be: messages name its files as [`VectorSet::read`] does.
+    pub fn from_bytes(
+        dir: &Path,
+        manifest: Manifest,
+        files: &SetBytes,
+        spec: &Spec,
+    ) -> Result<VectorSet> {
+        let mpath = dir.join(MANIFEST_JSON).display().to_string();
+        let records = listed_records(&manifest, &mpath)?;
+        let bytes = [files.vectors_csv, files.stimulus, files.expected];
+        for (rec, data) in records.iter().zip(bytes) {
+            let size = data.len() as u64;
+            if size != rec.bytes {
+                return Err(size_mismatch(&dir.join(&rec.name), size, rec));
+            }
+        }
+        for (rec, data) in records.iter().zip(bytes) {
+            let digest = sha256_hex(data);
+            if digest != rec.sha256 {
+                return Err(digest_mismatch(&dir.join(&rec.name), &digest, rec));
+            }
+        }
+        check_identity(dir, &manifest, spec)?;
+        let layout = Layout::for_spec(spec);
+        let mut sets = Vec::new();
+        for (name, word, data) in [
+            (STIMULUS_HEX, &layout.stimulus, files.stimulus),
+            (EXPECTED_HEX, &layout.expected, files.expected),
+        ] {
+            sets.push(read_words(data, &dir.join(name), name, word, &manifest)?);
+        }
+        Ok(VectorSet::assemble(manifest, &layout, sets))
+    }
+
+    /// The set from the words of its stimulus and expected files (in that order).
+    fn assemble(manifest: Manifest, layout: &Layout, mut sets: Vec<Vec<Vec<Word>>>) -> VectorSet {
         let expected_rows = sets.pop().unwrap_or_default();
         let input_rows = sets.pop().unwrap_or_default();
         let inputs = input_rows
@@ -1335,11 +1347,11 @@ impl VectorSet {
                 o
             })
             .collect();
-        Ok(VectorSet {
+        VectorSet {
             manifest,
             inputs,
             expected,
-        })
+        }
     }
 
     /// The inputs of vector `index`, if the set holds it.
@@ -1347,6 +1359,95 @@ impl VectorSet {
         let pos = index.checked_sub(self.manifest.first_index)?;
         self.inputs.get(pos as usize)
     }
+}
+
+/// Refuses a set whose manifest was written for another spec than `spec`.
+fn check_identity(dir: &Path, manifest: &Manifest, spec: &Spec) -> Result<()> {
+    if manifest.spec_sha256 == spec_identity(spec) {
+        return Ok(());
+    }
+    Err(Error::problem(
+        Problem::new(
+            dir.join(MANIFEST_JSON).display().to_string(),
+            format!(
+                "this vector set was generated from a different spec (unit \"{}\"); \
+                 regenerate it with `arithvec gen`",
+                manifest.unit
+            ),
+        )
+        .field("spec_sha256"),
+    ))
+}
+
+/// Parses the set's hex file `name` (`path` names it in messages): its words by field, checked
+/// against the file's SHA-256 in the manifest (hashed line by line as read) and the
+/// manifest's word count.
+fn read_words(
+    mut reader: impl BufRead,
+    path: &Path,
+    name: &str,
+    word: &WordLayout,
+    manifest: &Manifest,
+) -> Result<Vec<Vec<Word>>> {
+    let packer = Packer::new(word);
+    let mut line = String::new();
+    // The manifest's count is not trusted for the allocation: a damaged one could ask
+    // for more memory than the machine has (found by fuzzing the manifest reader).
+    let mut rows = Vec::with_capacity(manifest.vectors.min(1 << 16) as usize);
+    let mut hasher = Sha256::new();
+    let mut n = 0;
+    loop {
+        line.clear();
+        let got = reader
+            .read_line(&mut line)
+            .map_err(|e| Error::io(path, e))?;
+        if got == 0 {
+            break;
+        }
+        hasher.update(line.as_bytes());
+        n += 1;
+        let t = line.trim();
+        if t.is_empty() || t.starts_with("//") {
+            continue;
+        }
+        match packer.unpack(t) {
+            Some(fields) => rows.push(fields),
+            None => {
+                return Err(Error::problem(
+                    Problem::new(
+                        path.display().to_string(),
+                        format!(
+                            "expected {} hex digits for a {}-bit word, found \"{t}\"",
+                            word.hex_digits(),
+                            word.width
+                        ),
+                    )
+                    .at_line(n),
+                ))
+            }
+        }
+    }
+    let digest = hex_of(&hasher.finalize());
+    if let Some(rec) = manifest.files.iter().find(|f| f.name == name) {
+        if rec.sha256 != digest {
+            return Err(Error::problem(Problem::new(
+                path.display().to_string(),
+                "the file does not match the SHA-256 in manifest.json (edited or \
+                 truncated?); regenerate the set",
+            )));
+        }
+    }
+    if rows.len() as u64 != manifest.vectors {
+        return Err(Error::problem(Problem::new(
+            path.display().to_string(),
+            format!(
+                "holds {} words but manifest.json says {}",
+                rows.len(),
+                manifest.vectors
+            ),
+        )));
+    }
+    Ok(rows)
 }
 
 #[cfg(test)]

@@ -3,32 +3,38 @@
 //! not the unit the spec describes, exit 3 when coverage is short of `--require`. Also the
 //! rule that outputs the spec does not check are not observed.
 
+use crate::support::Run;
 use crate::util::{have, hdl, Flags, Sandbox, Unit};
+
+/// A sandbox holding the spec `NAME.toml` of a `width`-bit `unit` (no random vectors) and its
+/// set generated into `vec`: the sandbox and the spec's file name.
+fn generated(name: &str, unit: Unit, width: u32, flags: Flags) -> (Sandbox, String) {
+    let sb = Sandbox::new();
+    let spec = sb.spec(name, unit, width, 0, flags);
+    sb.gen(&spec, "vec", &[]);
+    (sb, spec)
+}
+
+/// `arithvec grade SPEC --vectors vec --netlist NETLIST` and `extra`, in the sandbox.
+fn grade_netlist(sb: &Sandbox, spec: &str, netlist: &str, extra: &[&str]) -> Run {
+    let mut args = vec!["grade", spec, "--vectors", "vec", "--netlist", netlist];
+    args.extend_from_slice(extra);
+    sb.run(&args)
+}
 
 #[test]
 fn a_netlist_with_word_level_cells_names_the_cell_and_the_synthesis_step() {
     if !have("yosys") {
         return;
     }
-    let sb = Sandbox::new();
-    let spec = sb.spec("add", Unit::Add, 8, 0, Flags::All);
-    sb.gen(&spec, "vec", &[]);
+    let (sb, spec) = generated("add", Unit::Add, 8, Flags::All);
     // `proc` alone leaves the behavioural adder's `+` as one `$add` cell.
     let script = format!(
         "read_verilog {}; chparam -set W 8 behav_add; proc; write_json behav.json",
         hdl("behav/behav_add.v").display()
     );
     sb.tool("yosys", &["-q", "-p", &script]);
-    let run = sb.run(&[
-        "grade",
-        &spec,
-        "--vectors",
-        "vec",
-        "--netlist",
-        "behav.json",
-        "--module",
-        "behav_add",
-    ]);
+    let run = grade_netlist(&sb, &spec, "behav.json", &["--module", "behav_add"]);
     run.expect_code(2);
     assert!(
         run.stderr
@@ -46,20 +52,9 @@ fn a_module_missing_from_the_netlist_is_bad_input() {
     if !have("yosys") {
         return;
     }
-    let sb = Sandbox::new();
-    let spec = sb.spec("add", Unit::Add, 8, 0, Flags::All);
-    sb.gen(&spec, "vec", &[]);
+    let (sb, spec) = generated("add", Unit::Add, 8, Flags::All);
     let json = sb.synthesize("add", Unit::Add, 8);
-    let run = sb.run(&[
-        "grade",
-        &spec,
-        "--vectors",
-        "vec",
-        "--netlist",
-        &json,
-        "--module",
-        "absent_unit",
-    ]);
+    let run = grade_netlist(&sb, &spec, &json, &["--module", "absent_unit"]);
     run.expect_code(2);
     assert!(
         run.stderr.contains("no module `absent_unit`") && run.stderr.contains("`ripple_add`"),
@@ -73,20 +68,9 @@ fn an_adder_graded_against_a_subtractor_spec_is_not_the_spec() {
     if !have("yosys") {
         return;
     }
-    let sb = Sandbox::new();
-    let spec = sb.spec("sub", Unit::Sub, 8, 0, Flags::All);
-    sb.gen(&spec, "vec", &[]);
+    let (sb, spec) = generated("sub", Unit::Sub, 8, Flags::All);
     let json = sb.synthesize("add", Unit::Add, 8);
-    let run = sb.run(&[
-        "grade",
-        &spec,
-        "--vectors",
-        "vec",
-        "--netlist",
-        &json,
-        "--module",
-        "ripple_add",
-    ]);
+    let run = grade_netlist(&sb, &spec, &json, &["--module", "ripple_add"]);
     run.expect_code(1);
     assert!(
         run.stdout.contains("not the unit the spec describes")
@@ -101,11 +85,9 @@ fn a_port_width_mismatch_is_bad_input() {
     if !have("yosys") {
         return;
     }
-    let sb = Sandbox::new();
-    let spec = sb.spec("add", Unit::Add, 8, 0, Flags::All);
-    sb.gen(&spec, "vec", &[]);
+    let (sb, spec) = generated("add", Unit::Add, 8, Flags::All);
     let json = sb.synthesize("add16", Unit::Add, 16);
-    let run = sb.run(&["grade", &spec, "--vectors", "vec", "--netlist", &json]);
+    let run = grade_netlist(&sb, &spec, &json, &[]);
     run.expect_code(2);
     assert!(
         run.stderr
@@ -169,16 +151,14 @@ fn outputs_the_spec_does_not_check_are_not_observed() {
     if !have("yosys") {
         return;
     }
-    let sb = Sandbox::new();
-    let spec = sb.spec("add", Unit::Add, 16, 0, Flags::ArithmeticOnly);
-    sb.gen(&spec, "vec", &[]);
+    let (sb, spec) = generated("add", Unit::Add, 16, Flags::ArithmeticOnly);
     let json = sb.synthesize("add", Unit::Add, 16);
     let r = sb.grade(&spec, "vec", &["--netlist", &json]);
     assert_eq!(r["unchecked_outputs"], serde_json::json!(["zero", "neg"]));
     // The zero flag's OR chain (15 cells for 16 bits) feeds nothing else; neg is y[15].
     assert_eq!(r["ungraded_gates"], 15);
     assert_eq!(r["detected"], r["collapsed"]);
-    let table = sb.run(&["grade", &spec, "--vectors", "vec", "--netlist", &json]);
+    let table = grade_netlist(&sb, &spec, &json, &[]);
     table.expect_code(0);
     assert!(
         table
@@ -202,14 +182,12 @@ fn issue9_a_spec_output_missing_from_the_netlist_is_bad_input() {
     if !have("yosys") {
         return;
     }
-    let sb = Sandbox::new();
-    let spec = sb.spec("add", Unit::Add, 8, 0, Flags::All);
-    sb.gen(&spec, "vec", &[]);
+    let (sb, spec) = generated("add", Unit::Add, 8, Flags::All);
     let json = sb.synthesize("add", Unit::Add, 8);
     // Rename the netlist's result port y to res.
     let text = sb.read(&json).replace("\"y\":", "\"res\":");
     let renamed = sb.write("renamed.json", &text);
-    let run = sb.run(&["grade", &spec, "--vectors", "vec", "--netlist", &renamed]);
+    let run = grade_netlist(&sb, &spec, &renamed, &[]);
     run.expect_code(2);
     assert!(
         run.stderr
@@ -222,9 +200,7 @@ fn issue9_a_spec_output_missing_from_the_netlist_is_bad_input() {
 /// Issue 9 item 5: `--require` is validated as in check (finite, 0..=100).
 #[test]
 fn issue9_grade_require_must_be_a_finite_percentage() {
-    let sb = Sandbox::new();
-    let spec = sb.spec("add", Unit::Add, 8, 0, Flags::All);
-    sb.gen(&spec, "vec", &[]);
+    let (sb, spec) = generated("add", Unit::Add, 8, Flags::All);
     for bad in ["nan", "101", "inf", "-1", "x"] {
         let arg = format!("--require={bad}");
         let run = sb.run(&["grade", &spec, "--vectors", "vec", "--builtin", &arg]);

@@ -164,51 +164,6 @@ pub(crate) fn boundary_bin<B: Bits>(unit: &OpUnit, truth: B) -> Option<u32> {
     }
 }
 
-/// The result classes of an N-bit result (the adders' own, minus the datapath ones).
-fn result_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>) {
-    let w = spec.width;
-    let bits = |f: &dyn Fn(u32) -> String| (0..w).map(f).collect::<Vec<_>>();
-    out.push((
-        "result.zero_from_nonzero".into(),
-        "the result's value is zero although an operand is not".into(),
-        Kind::ResultZeroFromNonzero,
-        one_bin(),
-    ));
-    let mut seen: Vec<Word> = Vec::new();
-    for s in [Special::Max, Special::Min, Special::NegativeZero] {
-        if let Some(code) = s.code(model) {
-            if seen.contains(&code) {
-                continue;
-            }
-            seen.push(code);
-            out.push((
-                format!("result.{}", s.id()),
-                format!("the result {}", s.describe()),
-                Kind::ResultPattern(s, code),
-                one_bin(),
-            ));
-        }
-    }
-    out.push((
-        "result.bits".into(),
-        "every result bit seen at 0 and at 1".into(),
-        Kind::ResultBits,
-        (0..w)
-            .flat_map(|i| [format!("bit{i}=0"), format!("bit{i}=1")])
-            .collect(),
-    ));
-    if spec.has(Signal::Zero) {
-        out.push((
-            "result.walking_one".into(),
-            "the result has exactly one 1 bit, at each position (each input of the zero \
-             flag's detector alone at 1)"
-                .into(),
-            Kind::ResultWalkingOne,
-            bits(&|i| format!("bit{i}")),
-        ));
-    }
-}
-
 /// Adds the classes of an extended operation after the operand classes.
 pub(super) fn ext_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>) {
     let Some(unit) = model.unit() else { return };

@@ -126,50 +126,7 @@ pub(super) fn class_templates(model: &Model, spec: &Spec, mode: Option<bool>) ->
         return out;
     }
 
-    // Result classes.
-    out.push((
-        "result.zero_from_nonzero".into(),
-        "the result's value is zero although an operand is not".into(),
-        Kind::ResultZeroFromNonzero,
-        one_bin(),
-    ));
-    let mut seen: Vec<Word> = Vec::new();
-    for s in [Special::Max, Special::Min, Special::NegativeZero] {
-        if let Some(code) = s.code(model) {
-            if seen.contains(&code) {
-                continue;
-            }
-            seen.push(code);
-            out.push((
-                format!("result.{}", s.id()),
-                format!("the result {}", s.describe()),
-                Kind::ResultPattern(s, code),
-                one_bin(),
-            ));
-        }
-    }
-    out.push((
-        "result.bits".into(),
-        "every result bit seen at 0 and at 1".into(),
-        Kind::ResultBits,
-        (0..w)
-            .flat_map(|i| [format!("bit{i}=0"), format!("bit{i}=1")])
-            .collect(),
-    ));
-    if spec.has(Signal::Zero) {
-        // A zero flag is a NOR over the result bits however synthesis builds it; each of its
-        // inputs stuck at 0 shows only when that result bit is the sole 1. All-zero plus
-        // every one-hot pattern is the complete single stuck-at test of a fan-out-free OR
-        // tree (common practice, no source); all-zero results are already in the set.
-        out.push((
-            "result.walking_one".into(),
-            "the result has exactly one 1 bit, at each position (each input of the zero \
-             flag's detector alone at 1)"
-                .into(),
-            Kind::ResultWalkingOne,
-            bits(&|i| format!("bit{i}")),
-        ));
-    }
+    result_templates(model, spec, &mut out);
     let cin_name = if subtracting { "bin" } else { "cin" };
     out.push((
         "overflow.boundary".into(),
@@ -384,6 +341,57 @@ fn compare_bit_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>) {
             "a and b differ only in the sign bit: a's sign bit 1 (a1b0) or 0 (a0b1)".into(),
             Kind::CompareSignOnly,
             vec!["a1b0".into(), "a0b1".into()],
+        ));
+    }
+}
+
+/// The result classes of an N-bit result: its value zero from non-zero operands, the special
+/// codes, every bit at 0 and 1, and (with a zero flag) the walking one. Shared by the adders
+/// and the extended operations.
+pub(super) fn result_templates(model: &Model, spec: &Spec, out: &mut Vec<Template>) {
+    let w = spec.width;
+    let bits = |f: &dyn Fn(u32) -> String| (0..w).map(f).collect::<Vec<_>>();
+    out.push((
+        "result.zero_from_nonzero".into(),
+        "the result's value is zero although an operand is not".into(),
+        Kind::ResultZeroFromNonzero,
+        one_bin(),
+    ));
+    let mut seen: Vec<Word> = Vec::new();
+    for s in [Special::Max, Special::Min, Special::NegativeZero] {
+        if let Some(code) = s.code(model) {
+            if seen.contains(&code) {
+                continue;
+            }
+            seen.push(code);
+            out.push((
+                format!("result.{}", s.id()),
+                format!("the result {}", s.describe()),
+                Kind::ResultPattern(s, code),
+                one_bin(),
+            ));
+        }
+    }
+    out.push((
+        "result.bits".into(),
+        "every result bit seen at 0 and at 1".into(),
+        Kind::ResultBits,
+        (0..w)
+            .flat_map(|i| [format!("bit{i}=0"), format!("bit{i}=1")])
+            .collect(),
+    ));
+    if spec.has(Signal::Zero) {
+        // A zero flag is a NOR over the result bits however synthesis builds it; each of its
+        // inputs stuck at 0 shows only when that result bit is the sole 1. All-zero plus
+        // every one-hot pattern is the complete single stuck-at test of a fan-out-free OR
+        // tree (common practice, no source); all-zero results are already in the set.
+        out.push((
+            "result.walking_one".into(),
+            "the result has exactly one 1 bit, at each position (each input of the zero \
+             flag's detector alone at 1)"
+                .into(),
+            Kind::ResultWalkingOne,
+            bits(&|i| format!("bit{i}")),
         ));
     }
 }

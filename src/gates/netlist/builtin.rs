@@ -26,14 +26,7 @@ impl Netlist {
     /// into bit i); cells are `fa[i].xor_ab`, `fa[i].xor_sum`, `fa[i].and_ab`, `fa[i].and_cp`,
     /// `fa[i].or_carry` and `ovf_xor`.
     pub fn ripple_adder(width: u32, carry_in: bool) -> Result<Netlist> {
-        Netlist::check_width(width, "ripple adder")?;
-        let mut b = NetlistBuilder::new("<built-in ripple adder>", "ripple_adder");
-        let a = b.input("a", width);
-        let bb = b.input("b", width);
-        let cin = carry_in.then(|| b.input("cin", 1)[0]);
-        let (y, carries) = ripple_chain(&mut b, &a, &bb, cin, Cell::Add);
-        finish_flags(&mut b, &y, &carries);
-        b.build()
+        Netlist::ripple(width, carry_in, Cell::Add, "ripple adder", "ripple_adder")
     }
 
     /// A `width`-bit ripple-borrow subtractor (a - b - bin) built from full-subtractor cells
@@ -45,12 +38,24 @@ impl Netlist {
     /// `carry[i]` (borrow into bit i); cells `fs[i].xor_ab`, `fs[i].xor_diff`,
     /// `fs[i].andnot_ba`, `fs[i].andnot_bx`, `fs[i].or_borrow`, `ovf_xor`.
     pub fn ripple_subtractor(width: u32, borrow_in: bool) -> Result<Netlist> {
-        Netlist::check_width(width, "ripple subtractor")?;
-        let mut b = NetlistBuilder::new("<built-in ripple subtractor>", "ripple_subtractor");
+        Netlist::ripple(
+            width,
+            borrow_in,
+            Cell::Subtract,
+            "ripple subtractor",
+            "ripple_subtractor",
+        )
+    }
+
+    /// A ripple chain of `cell`s with ports `a`, `b`, `cin` (when `carry_in`), `y`, `co` and
+    /// `ovf`: the adder and the subtractor above. `unit` names it in messages.
+    fn ripple(width: u32, carry_in: bool, cell: Cell, unit: &str, module: &str) -> Result<Netlist> {
+        Netlist::check_width(width, unit)?;
+        let mut b = NetlistBuilder::new(&format!("<built-in {unit}>"), module);
         let a = b.input("a", width);
         let bb = b.input("b", width);
-        let bin = borrow_in.then(|| b.input("cin", 1)[0]);
-        let (y, carries) = ripple_chain(&mut b, &a, &bb, bin, Cell::Subtract);
+        let cin = carry_in.then(|| b.input("cin", 1)[0]);
+        let (y, carries) = ripple_chain(&mut b, &a, &bb, cin, cell);
         finish_flags(&mut b, &y, &carries);
         b.build()
     }
@@ -89,6 +94,47 @@ pub(super) enum Cell {
     Subtract,
 }
 
+/// The gates of a one-bit cell, by role: `p = a ^ b` (net `propagate`), `g` the generate
+/// term (`generate` gate on `a, b`, or on `b, a` when `generate_swapped`), the sum or
+/// difference `p ^ c` (cell `sum`), `t` the carried-through term (`through` gate on `c, p`)
+/// and the carry (borrow) out `g | t` (cell `merge`).
+struct CellGates {
+    prefix: &'static str,
+    propagate: &'static str,
+    generate: (GateKind, &'static str),
+    generate_swapped: bool,
+    sum: &'static str,
+    through: (GateKind, &'static str),
+    merge: &'static str,
+}
+
+impl Cell {
+    fn gates(self) -> CellGates {
+        match self {
+            // Full adder: s = a ^ b ^ c, co = (a & b) | (c & (a ^ b)).
+            Cell::Add => CellGates {
+                prefix: "fa",
+                propagate: "p",
+                generate: (GateKind::And, "and_ab"),
+                generate_swapped: false,
+                sum: "xor_sum",
+                through: (GateKind::And, "and_cp"),
+                merge: "or_carry",
+            },
+            // Full subtractor: d = a ^ b ^ bin, bout = (~a & b) | (bin & ~(a ^ b)).
+            Cell::Subtract => CellGates {
+                prefix: "fs",
+                propagate: "x",
+                generate: (GateKind::AndNot, "andnot_ba"),
+                generate_swapped: true,
+                sum: "xor_diff",
+                through: (GateKind::AndNot, "andnot_bx"),
+                merge: "or_borrow",
+            },
+        }
+    }
+}
+
 /// Builds the ripple chain; returns the result nets and the carries (borrows) into each bit
 /// plus the final carry out (so `width + 1` entries; entry 0 is the carry-in, if any).
 pub(super) fn ripple_chain(
@@ -101,7 +147,8 @@ pub(super) fn ripple_chain(
     let width = a.len();
     let mut carries = vec![carry_in];
     let mut y = Vec::with_capacity(width);
-    let prefix = if cell == Cell::Add { "fa" } else { "fs" };
+    let gates = cell.gates();
+    let prefix = gates.prefix;
     for i in 0..width {
         let idx = Some(i as i64);
         let name = |part: &str| format!("{prefix}[{i}].{part}");
@@ -112,69 +159,37 @@ pub(super) fn ripple_chain(
             ("carry", Some(i as i64 + 1))
         };
         let out_name = if width == 1 { None } else { idx };
-        let next = match (cell, carries[i]) {
-            (Cell::Add, Some(c)) => {
-                let p = b.gate_net(GateKind::Xor, &name("xor_ab"), &[a[i], bb[i]], "p", idx);
-                let g = b.gate_net(GateKind::And, &name("and_ab"), &[a[i], bb[i]], "g", idx);
-                y.push(b.gate_net(GateKind::Xor, &name("xor_sum"), &[p, c], "y", out_name));
-                let t = b.gate_net(GateKind::And, &name("and_cp"), &[c, p], "t", idx);
+        let ab = [a[i], bb[i]];
+        let generate_in = if gates.generate_swapped {
+            [bb[i], a[i]]
+        } else {
+            ab
+        };
+        let next = match carries[i] {
+            Some(c) => {
+                let p = b.gate_net(GateKind::Xor, &name("xor_ab"), &ab, gates.propagate, idx);
+                let (kind, cell_name) = gates.generate;
+                let g = b.gate_net(kind, &name(cell_name), &generate_in, "g", idx);
+                y.push(b.gate_net(GateKind::Xor, &name(gates.sum), &[p, c], "y", out_name));
+                let (kind, cell_name) = gates.through;
+                let t = b.gate_net(kind, &name(cell_name), &[c, p], "t", idx);
                 b.gate_net(
                     GateKind::Or,
-                    &name("or_carry"),
+                    &name(gates.merge),
                     &[g, t],
                     carry_name,
                     carry_index,
                 )
             }
-            (Cell::Add, None) => {
-                // Half adder: the sum is a ^ b and the carry a & b.
-                y.push(b.gate_net(
-                    GateKind::Xor,
-                    &name("xor_ab"),
-                    &[a[i], bb[i]],
-                    "y",
-                    out_name,
-                ));
+            None => {
+                // Half cell: the sum (difference) is a ^ b and the carry (borrow) the
+                // generate term alone.
+                y.push(b.gate_net(GateKind::Xor, &name("xor_ab"), &ab, "y", out_name));
+                let (kind, cell_name) = gates.generate;
                 b.gate_net(
-                    GateKind::And,
-                    &name("and_ab"),
-                    &[a[i], bb[i]],
-                    carry_name,
-                    carry_index,
-                )
-            }
-            (Cell::Subtract, Some(c)) => {
-                let x = b.gate_net(GateKind::Xor, &name("xor_ab"), &[a[i], bb[i]], "x", idx);
-                let g = b.gate_net(
-                    GateKind::AndNot,
-                    &name("andnot_ba"),
-                    &[bb[i], a[i]],
-                    "g",
-                    idx,
-                );
-                y.push(b.gate_net(GateKind::Xor, &name("xor_diff"), &[x, c], "y", out_name));
-                let t = b.gate_net(GateKind::AndNot, &name("andnot_bx"), &[c, x], "t", idx);
-                b.gate_net(
-                    GateKind::Or,
-                    &name("or_borrow"),
-                    &[g, t],
-                    carry_name,
-                    carry_index,
-                )
-            }
-            (Cell::Subtract, None) => {
-                // Half subtractor: the difference is a ^ b and the borrow ~a & b.
-                y.push(b.gate_net(
-                    GateKind::Xor,
-                    &name("xor_ab"),
-                    &[a[i], bb[i]],
-                    "y",
-                    out_name,
-                ));
-                b.gate_net(
-                    GateKind::AndNot,
-                    &name("andnot_ba"),
-                    &[bb[i], a[i]],
+                    kind,
+                    &name(cell_name),
+                    &generate_in,
                     carry_name,
                     carry_index,
                 )
