@@ -1336,9 +1336,9 @@ fn vhdl_value(value: &ParamValue) -> String {
     }
 }
 
-/// Operands and the result are vectors at every width (a VHDL DUT declares them as
-/// std_logic_vector even at width 1), and so is a select unit's code; the flags are single
-/// bits.
+/// Operands, a shift's amount and the result are vectors at every width (a VHDL DUT declares
+/// them as std_logic_vector even at width 1), and so is a select unit's code; the flags are
+/// single bits.
 fn is_vector(field: &Field) -> bool {
     is_vector_signal(field.signal)
 }
@@ -1348,6 +1348,7 @@ fn is_vector_signal(signal: Signal) -> bool {
         signal,
         Signal::A
             | Signal::B
+            | Signal::Amount
             | Signal::Result
             | Signal::Quotient
             | Signal::Remainder
@@ -1836,5 +1837,26 @@ parameters = { W = 16, STYLE = "say \"fast\"" }
             emit(&spec, Hdl::Verilog, true),
             emit(&sub16(), Hdl::Verilog, true)
         );
+    }
+
+    #[test]
+    fn vhdl_declares_a_shift_amount_as_a_vector() {
+        // amount_width 2 and 1: the amount is a vector at every width, like the operands.
+        for (width, aw) in [(4, 2), (1, 1)] {
+            let text = format!(
+                "name = \"crank\"\noperation = \"shl\"\nwidth = {width}\n\
+                 encoding = \"unsigned\"\namount_width = {aw}\n\n[ports]\na = \"a\"\n\
+                 amount = \"sh\"\nresult = \"y\"\n\n[dut]\nmodule = \"crank\"\n"
+            );
+            let spec = Spec::parse(&text, "t.toml").unwrap();
+            let vhdl = emit(&spec, Hdl::Vhdl, true);
+            let hi = aw - 1;
+            for line in [
+                format!("signal s_amount : std_logic_vector({hi} downto 0) := (others => '0');"),
+                format!("s_amount <= v_word({hi} downto 0);"),
+            ] {
+                assert!(vhdl.contains(&line), "missing {line:?} in\n{vhdl}");
+            }
+        }
     }
 }

@@ -2,8 +2,8 @@
 //! an entity whose ports are numeric_std `unsigned` or `signed` without a wrapper. The value
 //! is one type for every vector port (`vhdl_types = "unsigned"`) or a table by DUT port name
 //! (`vhdl_types = { y = "unsigned", a = "signed" }`; unlisted ports stay std_logic_vector).
-//! Vector ports are the operands, result, quotient, remainder, select code and bundled ports;
-//! one-bit flags stay std_logic. Verilog testbenches ignore the key. Part of stage 1.
+//! Vector ports are the operands, a shift's amount, result, quotient, remainder, select code
+//! and bundled ports; one-bit flags stay std_logic. Verilog testbenches ignore the key. Part of stage 1.
 
 use std::collections::BTreeMap;
 
@@ -91,6 +91,7 @@ pub fn is_vector_signal(signal: Signal) -> bool {
         signal,
         Signal::A
             | Signal::B
+            | Signal::Amount
             | Signal::Result
             | Signal::Quotient
             | Signal::Remainder

@@ -1769,6 +1769,9 @@ fn decoded(sig: Signal, v: &Word, width: u32, enc: Encoding) -> String {
         Signal::A | Signal::B | Signal::Result | Signal::Quotient | Signal::Remainder
     ) {
         Value::decode(v, width, enc).to_string()
+    } else if matches!(sig, Signal::Amount | Signal::Select) {
+        // A shift amount and a select code are unsigned counts in every encoding.
+        Value::decode(v, width, Encoding::Unsigned).to_string()
     } else {
         (v.bit(0) as u8).to_string()
     }

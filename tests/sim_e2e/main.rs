@@ -22,4 +22,5 @@ mod spec;
 #[path = "../support/mod.rs"]
 mod support;
 mod tools;
+mod vhdl_ops;
 mod vhdl_types;
