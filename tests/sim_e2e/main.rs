@@ -16,6 +16,7 @@ mod bugs;
 mod flow;
 mod reference;
 mod select;
+mod select_packed;
 mod shapes;
 mod spec;
 #[path = "../support/mod.rs"]
