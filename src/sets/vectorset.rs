@@ -1506,7 +1506,7 @@ mod tests {
             for index in 0..g.total() {
                 let inputs = g.vector(index).expect("in the set");
                 let mut classes = String::new();
-                let outputs = evaluate_vector(cat, &inputs, &mut hits, Some(&mut classes));
+                let outputs = evaluate_vector(cat, None, &inputs, &mut hits, Some(&mut classes));
                 let (mut fast, mut general) = (Chunk::default(), Chunk::default());
                 push_row_narrow(n, index, &inputs, &outputs, &classes, &mut fast);
                 f.push_row(index, &inputs, &outputs, &classes, &mut general);
