@@ -15,6 +15,7 @@ mod options;
 mod plain_words;
 mod repro;
 mod select;
+mod select_switch;
 mod spec_errors;
 #[path = "../support/mod.rs"]
 mod support;
