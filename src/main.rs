@@ -652,7 +652,7 @@ fn repro(
     }
     let cat = generator.catalogue();
     let mut hits = arithvec::Hits::new();
-    let outputs = cat.evaluate(&inputs, &mut hits);
+    let outputs = generator.evaluate_at(index, &inputs, &mut hits);
     let d = generator.directed().len() as u64;
     if format == ReproFormat::Json {
         let port = |role: &str, sig: Signal, name: &str, v: &arithvec::Word| {

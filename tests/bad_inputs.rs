@@ -149,7 +149,20 @@ const CASES: &[Case] = &[
     case("reset-known without a clocked unit", &[], &["check", "spec.toml", "--log", "log.csv", "--reset-known"], "--reset-known"),
     edited("add_sat with a carry_in port", ("spec.toml", |_| spec_with("\"add\"", "\"add_sat\"")), &["classes", "spec.toml"], "ports.carry_in"),
     edited("sub_sat with an overflow port", ("spec.toml", |_| spec_with("\"add\"", "\"sub_sat\"").replace("carry_in = \"cin\"\n", "").replace("carry_out = \"co\"", "overflow = \"ov\"")), &["classes", "spec.toml"], "ports.overflow"),
+    edited("packed flag bit used twice", ("spec.toml", |_| packed("carry_out = 0\nzero = 0\n")), &["classes", "spec.toml"], "flags.zero"),
+    edited("packed flag bit outside its port", ("spec.toml", |_| packed("width = 2\ncarry_out = 0\nzero = 2\n")), &["classes", "spec.toml"], "flags.zero"),
+    edited("packed flag the operation lacks", ("spec.toml", |_| packed("zero = 0\nless = 1\n")), &["classes", "spec.toml"], "flags.less"),
+    edited("[flags] without ports.flags", ("spec.toml", |_| spec_with("[random]", "[flags]\noverflow = 0\n\n[random]")), &["classes", "spec.toml"], "flags"),
 ];
+
+/// The spec with its carry and zero flags packed in port `f`, laid out by `[flags]` `body`.
+fn packed(body: &str) -> String {
+    spec_with("carry_out = \"co\"\nzero = \"z\"\n", "flags = \"f\"\n").replacen(
+        "[random]",
+        &format!("[flags]\n{body}\n[random]"),
+        1,
+    )
+}
 
 /// Every file under `dir` with its contents.
 fn snapshot(dir: &Path) -> BTreeMap<String, Vec<u8>> {

@@ -133,13 +133,31 @@ impl Generator {
     pub fn directed_class_hits(&self) -> Vec<u32> {
         let mut counts = vec![0u32; self.catalogue.classes().len()];
         let mut hits = Hits::new();
+        let mut previous = None;
         for v in &self.directed {
             self.catalogue.evaluate(v, &mut hits);
+            self.catalogue.record_switch(previous, v.select, &mut hits);
+            previous = Some(v.select);
             for &c in hits.classes() {
                 counts[c as usize] += 1;
             }
         }
         counts
+    }
+
+    /// Evaluates and classifies vector `index` of the set, whose inputs are `inputs`: as
+    /// [`Catalogue::evaluate`], plus a select unit's `select.switch` bin, which needs the
+    /// vector before it (`index - 1`).
+    pub fn evaluate_at(&self, index: u64, inputs: &Inputs, hits: &mut Hits) -> Outputs {
+        let outputs = self.catalogue.evaluate(inputs, hits);
+        if self.catalogue.is_select() {
+            let previous = index
+                .checked_sub(1)
+                .and_then(|i| self.vector(i))
+                .map(|v| v.select);
+            self.catalogue.record_switch(previous, inputs.select, hits);
+        }
+        outputs
     }
 
     /// Number of random vectors.
@@ -1118,14 +1136,17 @@ fn build_directed(spec: &Spec, cat: &mut Catalogue) -> (Vec<Inputs>, Vec<u32>) {
 }
 
 /// Evaluates and classifies one vector, returning the outputs; the classes column text is
-/// appended to `classes` when given.
+/// appended to `classes` when given. `previous` is the select code of the vector applied
+/// before (a select unit's `select.switch` class; None for the first vector or other units).
 pub(crate) fn evaluate_vector(
     cat: &Catalogue,
+    previous: Option<u32>,
     inputs: &Inputs,
     hits: &mut Hits,
     classes: Option<&mut String>,
 ) -> Outputs {
     let outputs = cat.evaluate_with(inputs, hits, Detail::ClassesOnly);
+    cat.record_switch(previous, inputs.select, hits);
     if let Some(out) = classes {
         cat.class_list(hits, out);
     }

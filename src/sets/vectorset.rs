@@ -484,6 +484,12 @@ impl Formatter<'_> {
             chunk.expected.reserve(rows * (n.expected.digits + 1));
         }
         let appended_from = d + self.generator.random_count();
+        // A select unit's `select.switch` bin needs the code of the vector before.
+        let select = cat.is_select();
+        let mut previous = match (select, range.start) {
+            (true, i) if i > 0 => self.generator.vector(i - 1).map(|v| v.select),
+            _ => None,
+        };
         for index in range {
             let inputs = if index < d {
                 self.generator.directed()[index as usize]
@@ -494,7 +500,13 @@ impl Formatter<'_> {
                     .get_or_insert_with(|| self.generator.random_stream(index - d))
                     .next_inputs()
             };
-            let (outputs, mask) = cat.evaluate_class_mask(&inputs, &mut hits);
+            let (outputs, mut mask) = cat.evaluate_class_mask(&inputs, &mut hits);
+            if select {
+                if let Some(c) = cat.record_switch(previous, inputs.select, &mut hits) {
+                    mask = mask.map(|m| m | 1 << c);
+                }
+                previous = Some(inputs.select);
+            }
             let found = cache.iter().position(|(k, set, _)| match mask {
                 Some(m) => *k == m,
                 None => set.as_slice() == hits.classes(),
@@ -677,7 +689,19 @@ pub fn csv_row(generator: &Generator, spec: &Spec, index: u64, inputs: &Inputs) 
     let f = formatter(generator, spec);
     let mut hits = Hits::new();
     let mut classes = String::new();
-    let outputs = evaluate_vector(generator.catalogue(), inputs, &mut hits, Some(&mut classes));
+    // The select.switch bin needs the vector before.
+    let previous = index
+        .checked_sub(1)
+        .filter(|_| generator.catalogue().is_select())
+        .and_then(|i| generator.vector(i))
+        .map(|v| v.select);
+    let outputs = evaluate_vector(
+        generator.catalogue(),
+        previous,
+        inputs,
+        &mut hits,
+        Some(&mut classes),
+    );
     let mut chunk = Chunk::default();
     f.push_row(index, inputs, &outputs, &classes, &mut chunk);
     String::from_utf8(chunk.csv).expect("ascii")
@@ -1482,7 +1506,7 @@ mod tests {
             for index in 0..g.total() {
                 let inputs = g.vector(index).expect("in the set");
                 let mut classes = String::new();
-                let outputs = evaluate_vector(cat, &inputs, &mut hits, Some(&mut classes));
+                let outputs = evaluate_vector(cat, None, &inputs, &mut hits, Some(&mut classes));
                 let (mut fast, mut general) = (Chunk::default(), Chunk::default());
                 push_row_narrow(n, index, &inputs, &outputs, &classes, &mut fast);
                 f.push_row(index, &inputs, &outputs, &classes, &mut general);

@@ -28,6 +28,8 @@ pub use ops::{
     default_amount_width, DivByZero, LargeAmount, OpOptions, ResultPart, Rounding, Signedness,
 };
 pub use select::{SelectSpec, UndefinedOutputs};
+mod packed;
+pub use packed::PackedFlags;
 mod ports;
 pub use ports::{check_ranges, parse_port_text, Bundle, PortRange};
 mod vhdl_types;
@@ -483,6 +485,10 @@ pub enum Mix {
 #[derive(Debug, Clone, PartialEq, Eq, Default, Serialize)]
 pub struct Ports {
     names: BTreeMap<Signal, String>,
+    /// The packed flags vector (`ports.flags` with a `[flags]` table), if any; its flags
+    /// are in `names` as `PORT[BIT]` ranges. Left out of the JSON when absent.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    packed: Option<PackedFlags>,
 }
 
 impl Ports {
@@ -675,10 +681,16 @@ impl Spec {
         }
         for sig in Signal::ALL {
             if let Some(p) = self.ports.get(sig) {
-                t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
+                if !self.is_packed_member(sig) {
+                    t.push_str(&format!("{} = {}\n", sig.key(), q(p)));
+                }
             }
         }
+        if let Some(p) = self.ports.packed_flags() {
+            t.push_str(&format!("{} = {}\n", packed::KEY, q(&p.port)));
+        }
         t.push_str(&self.select_toml());
+        t.push_str(&self.packed_flags_toml());
         let c = &self.conventions;
         let mut conv = String::new();
         for key in ConventionKey::ALL {
@@ -995,6 +1007,7 @@ impl<'a> Reader<'a> {
                 "dut",
                 "select",
                 "timing",
+                packed::KEY,
                 ops::ROOT_KEYS[0],
                 ops::ROOT_KEYS[1],
             ],
@@ -1057,7 +1070,8 @@ impl<'a> Reader<'a> {
                 // Still check every table that does not depend on the operation and encoding,
                 // so that every problem is reported in one pass.
                 if let Some(t) = ports_table {
-                    let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
+                    let mut keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
+                    keys.push(packed::KEY);
                     self.check_keys(t, "ports.", &keys);
                     for signal in Signal::ALL {
                         if Self::get(t, signal.key()).is_some() {
@@ -1113,6 +1127,7 @@ impl<'a> Reader<'a> {
         }
         self.read_option_widths(root, &mut spec);
         self.read_select(root, ports_table, &mut spec);
+        self.read_packed_flags(root, ports_table, &mut spec);
         if let Some(t) = ports_table {
             // Bit ranges (`s[15:0]`) are checked once every role's width is known.
             for (signal, message) in check_ranges(&spec.ports, |s| spec.signal_width(s)) {
@@ -1185,7 +1200,8 @@ impl<'a> Reader<'a> {
         encoding: Encoding,
         table_line: usize,
     ) -> Ports {
-        let keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
+        let mut keys: Vec<&str> = Signal::ALL.iter().map(|s| s.key()).collect();
+        keys.push(packed::KEY);
         self.check_keys(t, "ports.", &keys);
         let mut ports = Ports::default();
         let mut seen: BTreeMap<String, Signal> = BTreeMap::new();
@@ -1266,6 +1282,7 @@ impl<'a> Reader<'a> {
         if !Signal::ALL
             .iter()
             .any(|s| !s.is_input() && ports.get(*s).is_some())
+            && Self::get(t, packed::KEY).is_none()
         {
             self.problems.push(
                 Problem::new(self.file, "the unit has no output port; name at least one")

@@ -133,6 +133,10 @@ impl Ports {
         let mut list: Vec<Bundle> = by_port.into_values().collect();
         for b in &mut list {
             b.members.sort_by_key(|m| m.2);
+            // A packed flags port may declare more bits than its flags use.
+            if let Some(p) = self.packed_flags().filter(|p| p.port == b.port) {
+                b.width = b.width.max(p.width.unwrap_or(0));
+            }
         }
         list
     }

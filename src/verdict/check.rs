@@ -547,6 +547,8 @@ struct Worker {
     row: LogRow,
     /// A spent batch to parse into (sequential checks).
     spare_batch: Batch,
+    /// A select unit's last row judged: (index, select code), for `select.switch`.
+    previous: Option<(u64, u32)>,
 }
 
 impl Worker {
@@ -557,6 +559,7 @@ impl Worker {
             lookup: VectorLookup::default(),
             row: LogRow::new(),
             spare_batch: Batch::default(),
+            previous: None,
         }
     }
 
@@ -618,6 +621,22 @@ impl Worker {
         v.vectors += 1;
         let cat = shared.generator.catalogue();
         let expected = cat.evaluate_for_coverage(&inputs, &mut self.hits);
+        if cat.is_select() {
+            // select.switch: the code of the vector applied just before, from the row before
+            // in the log when it is that vector, else from the set.
+            let before = index.checked_sub(1).and_then(|i| match self.previous {
+                Some((p, code)) if p == i => Some(code),
+                _ => {
+                    let k = match shared.set {
+                        Some(_) => shared.source_index(i)?,
+                        None => i,
+                    };
+                    shared.generator.vector(k).map(|v| v.select)
+                }
+            });
+            cat.record_switch(before, inputs.select, &mut self.hits);
+            self.previous = Some((index, inputs.select));
+        }
         let mut wrong = false;
         let mut unknown = operand_unknown;
         let model = cat.model();

@@ -16,6 +16,7 @@ mod plain_words;
 mod plurals;
 mod repro;
 mod select;
+mod select_switch;
 mod spec_errors;
 #[path = "../support/mod.rs"]
 mod support;

@@ -17,6 +17,7 @@ mod flow;
 mod reference;
 mod sat;
 mod select;
+mod select_packed;
 mod shapes;
 mod spec;
 #[path = "../support/mod.rs"]

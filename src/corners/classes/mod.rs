@@ -143,6 +143,9 @@ pub(crate) enum Kind {
     Ext(ExtKind),
     /// A select unit's code (classified in `classes::select`, never by a predicate).
     SelectCode,
+    /// A select unit's pair of back-to-back operations (classified in `classes::select` from
+    /// the previous vector's code, never by a predicate).
+    SelectSwitch,
 }
 
 /// One corner class.
@@ -919,7 +922,7 @@ impl Catalogue {
                     _ => ext::ext_bins(&self.model, kind, a, b, t, |k| bin(hits, k)),
                 },
                 // Classified by the select catalogue itself.
-                Kind::SelectCode => {}
+                Kind::SelectCode | Kind::SelectSwitch => {}
             }
         }
         hit_any || hits.bins.len() > before.0 || hits.dense.len() > before.1

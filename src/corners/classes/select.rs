@@ -1,5 +1,12 @@
 //! The catalogue of a select unit: the classes of every carried operation, prefixed by its
-//! name (`add.chain.length`, `compare.order`), then `select.code`, one bin per listed code.
+//! name (`add.chain.length`, `compare.order`), then `select.code`, one bin per listed code,
+//! then `select.switch`, one bin per ordered pair of listed operations applied back to back
+//! (`add->sub`, and `add->add` too).
+//!
+//! `select.switch` is the one class that depends on two vectors: the vector before in the
+//! order the testbench applies them. [`Catalogue::evaluate`] sees one vector, so the callers
+//! that know the previous one (the set writer, the checker, the generator's directed count)
+//! add its bin with [`Catalogue::record_switch`].
 //!
 //! Each carried operation keeps its own [`Catalogue`] (built from its part spec, reachability
 //! settled by its own generator); the select catalogue lays their classes and bins out one
@@ -27,6 +34,8 @@ pub(crate) struct SelectCatalogue {
     pub(crate) parts: Vec<SelectPart>,
     code_class: u16,
     code_first_bin: u32,
+    switch_class: u16,
+    switch_first_bin: u32,
 }
 
 impl Catalogue {
@@ -102,10 +111,35 @@ impl Catalogue {
             dense_slot: 0,
             labels,
         });
+        // select.switch: bin p * n + q for operation p followed by operation q.
+        let switch_class = cat.classes.len() as u16;
+        let switch_first_bin = cat.bin_class.len() as u32;
+        let mut pairs = Vec::new();
+        for p in &placed {
+            for q in &placed {
+                pairs.push(format!("{}->{}", p.operation.name(), q.operation.name()));
+            }
+        }
+        cat.bin_class
+            .extend(std::iter::repeat_n(switch_class, pairs.len()));
+        cat.reachable.extend(std::iter::repeat_n(true, pairs.len()));
+        cat.classes.push(Class {
+            id: "select.switch".to_string(),
+            description: "each ordered pair of listed operations runs back to back (the \
+                          second right after the first)"
+                .to_string(),
+            kind: Kind::SelectSwitch,
+            mode: None,
+            first_bin: switch_first_bin,
+            dense_slot: 0,
+            labels: pairs,
+        });
         cat.select = Some(Box::new(SelectCatalogue {
             parts: placed,
             code_class,
             code_first_bin,
+            switch_class,
+            switch_first_bin,
         }));
         cat
     }
@@ -118,6 +152,32 @@ impl Catalogue {
             .map(|(code, part)| (code, part.operation, Catalogue::candidates(&part)))
             .collect();
         Catalogue::compose(spec, parts)
+    }
+
+    /// True for the catalogue of a select unit (whose `select.switch` class needs the
+    /// previous vector: see [`Catalogue::record_switch`]).
+    pub(crate) fn is_select(&self) -> bool {
+        self.select.is_some()
+    }
+
+    /// Adds to `hits` the `select.switch` bin of a vector with select code `code` applied
+    /// right after one with code `previous` (None for the first vector). Returns the class
+    /// index when a bin was added: both codes must be listed. No effect on other catalogues.
+    pub(crate) fn record_switch(
+        &self,
+        previous: Option<u32>,
+        code: u32,
+        hits: &mut Hits,
+    ) -> Option<u16> {
+        let select = self.select.as_ref()?;
+        let position = |c: u32| select.parts.iter().position(|p| p.code == c);
+        let (p, q) = (position(previous?)?, position(code)?);
+        let n = select.parts.len();
+        hits.bins.push(select.switch_first_bin + (p * n + q) as u32);
+        if !hits.classes.contains(&select.switch_class) {
+            hits.classes.push(select.switch_class);
+        }
+        Some(select.switch_class)
     }
 
     /// Classifies `inputs` with the part its code selects; None when this is not a select

@@ -1,5 +1,5 @@
 //! The vector set of a select unit: every carried operation's directed set under its code,
-//! then ordered back-to-back pairs of operations, then random vectors whose code is drawn
+//! then every ordered pair of operations back to back (an operation after itself too), then random vectors whose code is drawn
 //! uniformly from the listed codes.
 //!
 //! Each operation's directed set is its own generator's (built from its part spec), so its
@@ -29,14 +29,12 @@ impl Generator {
                 ..*v
             }));
         }
-        // Every ordered pair of operations back to back (a unit that keeps the previous
-        // operation's control for a cycle shows here): for each first operation, a vector of
-        // it followed by the first directed vector of each other operation.
+        // Every ordered pair of operations back to back, an operation after itself included
+        // (a unit that keeps the previous operation's control for a cycle shows here): for
+        // each first operation, a vector of it followed by the first directed vector of each
+        // operation. So every `select.switch` bin is hit by construction.
         for (first, g1) in &parts {
             for (second, g2) in &parts {
-                if first == second {
-                    continue;
-                }
                 for (code, g) in [(first, g1), (second, g2)] {
                     if let Some(v) = g.directed.first() {
                         directed.push(Inputs {
@@ -57,8 +55,11 @@ impl Generator {
         );
         let mut directed_hits = vec![0u32; catalogue.bin_count()];
         let mut hits = Hits::new();
+        let mut previous = None;
         for v in &directed {
             catalogue.evaluate(v, &mut hits);
+            catalogue.record_switch(previous, v.select, &mut hits);
+            previous = Some(v.select);
             hits.for_each_bin(|b| directed_hits[b] += 1);
         }
         let mut hasher = Sha256::new();
