@@ -465,8 +465,8 @@ fn gen(
         let mut o = out();
         writeln!(
             o,
-            "wrote {} vectors ({} directed + {} random, seed {}{}) for unit {} to {}",
-            manifest.vectors,
+            "wrote {} ({} directed + {} random, seed {}{}) for unit {} to {}",
+            cli::util::counted(manifest.vectors, "vector", "vectors"),
             manifest.directed,
             manifest.random,
             manifest.seed,
@@ -818,13 +818,13 @@ fn testbench(
         let mut o = out();
         writeln!(
             o,
-            "wrote {} testbench {} for {} vectors of unit {}{}; the file's header gives the commands to run it",
+            "wrote {} testbench {} for {} of unit {}{}; the file's header gives the commands to run it",
             match hdl {
                 Hdl::Verilog => "Verilog",
                 _ => "VHDL",
             },
             path.display(),
-            manifest.vectors,
+            cli::util::counted(manifest.vectors, "vector", "vectors"),
             spec.name,
             if self_check { " (self-checking)" } else { "" }
         )

@@ -299,6 +299,23 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
     };
     let mut grader = Grader::new(&spec, &netlist)?;
     grader.set_threads(args.threads.resolve()?);
+    // A bar of fault classes settled (each simulated against every vector until detected),
+    // on stderr and only on a terminal, as for `gen` and `check --vectors`.
+    let classes = grader.faults().collapsed() as u64;
+    let bar = crate::cli::util::progress_bar_for_work(
+        classes,
+        classes.saturating_mul(set.inputs.len() as u64),
+        quiet || args.model == FaultModel::Transition,
+        "fault classes",
+    );
+    let tick = |n: u64| {
+        if let Some(b) = &bar {
+            b.inc(n);
+        }
+    };
+    if bar.is_some() {
+        grader.set_progress(&tick);
+    }
     let index_of = |position: usize| {
         manifest
             .selection
@@ -359,6 +376,9 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
             GradeOutcome::Graded(grader.grade_against_netlist(&set.inputs)?)
         }
     };
+    if let Some(b) = &bar {
+        b.finish_and_clear();
+    }
     let report = match outcome {
         GradeOutcome::Graded(r) => r,
         GradeOutcome::NotTheSpec(bad) => {
@@ -622,8 +642,10 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         }
         writeln!(
             o,
-            "single stuck-at faults of module {} ({} vectors of unit {})",
-            report.module, report.vectors, spec.name
+            "single stuck-at faults of module {} ({} of unit {})",
+            report.module,
+            crate::cli::util::counted(report.vectors as u64, "vector", "vectors"),
+            spec.name
         )
         .map_err(stdout_error)?;
         let t = crate::cli::util::table(
@@ -729,8 +751,11 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
         if !quiet && args.format != GradeFormat::Json {
             writeln!(
                 o,
-                "compacted {} vectors to {} ({}) in {}",
-                c.before, c.after, c.method, c.out
+                "compacted {} to {} ({}) in {}",
+                crate::cli::util::counted(c.before, "vector", "vectors"),
+                c.after,
+                c.method,
+                c.out
             )
             .map_err(stdout_error)?;
         }

@@ -73,8 +73,8 @@ pub fn write_set(
         };
         writeln!(
             o,
-            "wrote {} vectors for unit {} to {}: {} imported from {}{what}",
-            manifest.vectors,
+            "wrote {} for unit {} to {}: {} imported from {}{what}",
+            crate::cli::util::counted(manifest.vectors, "vector", "vectors"),
             spec.name,
             dir.display(),
             generator.appended().len(),

@@ -61,8 +61,10 @@ pub fn grade_transition(
     } else if !quiet {
         writeln!(
             o,
-            "transition faults (slow-to-rise, slow-to-fall) of module {} ({} vectors of unit {})",
-            report.module, report.vectors, spec_name
+            "transition faults (slow-to-rise, slow-to-fall) of module {} ({} of unit {})",
+            report.module,
+            crate::cli::util::counted(report.vectors as u64, "vector", "vectors"),
+            spec_name
         )
         .map_err(stdout_error)?;
         writeln!(o, "pairs: {}", report.pair_rule).map_err(stdout_error)?;

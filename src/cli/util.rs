@@ -62,7 +62,18 @@ pub fn stdout_error(e: std::io::Error) -> Error {
 /// A progress bar on stderr for runs long enough to wait on; None when quiet, when stderr is
 /// not a terminal, or when the job is small. No colours, so NO_COLOR holds trivially.
 pub fn progress_bar(total: u64, quiet: bool, unit: &str) -> Option<indicatif::ProgressBar> {
-    if quiet || total < 2_000_000 || !std::io::stderr().is_terminal() {
+    progress_bar_for_work(total, total, quiet, unit)
+}
+
+/// [`progress_bar`] counting `total` steps of `unit` for a job whose size is `work` (a bar of
+/// fault classes, say, for a run that simulates every class against every vector).
+pub fn progress_bar_for_work(
+    total: u64,
+    work: u64,
+    quiet: bool,
+    unit: &str,
+) -> Option<indicatif::ProgressBar> {
+    if quiet || work < 2_000_000 || !std::io::stderr().is_terminal() {
         return None;
     }
     let bar = indicatif::ProgressBar::new(total);
@@ -73,6 +84,11 @@ pub fn progress_bar(total: u64, quiet: bool, unit: &str) -> Option<indicatif::Pr
         bar.set_style(style.progress_chars("=> "));
     }
     Some(bar)
+}
+
+/// `count` followed by `one` when it is 1, else by `many`: "1 vector", "3 vectors".
+pub fn counted(count: u64, one: &str, many: &str) -> String {
+    format!("{count} {}", if count == 1 { one } else { many })
 }
 
 /// A plain table with a header row, in the process's table layout (see [`table_layout`]).

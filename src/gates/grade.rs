@@ -16,8 +16,8 @@ use crate::corners::classes::Hits;
 use crate::corners::generate::Generator;
 use crate::error::{Error, Problem, Result};
 use crate::gates::fault::{
-    compact, detection_matrix_on, grade_with, DetectionMatrix, FaultList, FaultReport,
-    GradeOptions, PatternSet, SimulationMode,
+    compact, detection_matrix_on, grade_with, grade_with_progress, DetectionMatrix, FaultList,
+    FaultReport, GradeOptions, PatternSet, SimulationMode,
 };
 use crate::gates::netlist::Netlist;
 use crate::sets::commit::Staging;
@@ -264,6 +264,8 @@ pub struct Grader<'a> {
     ungraded_gates: usize,
     /// Fault-simulation threads (0: one per core).
     threads: usize,
+    /// Told of each fault class settled while grading (a progress bar).
+    progress: Option<crate::gates::fault::Progress<'a>>,
 }
 
 impl<'a> Grader<'a> {
@@ -300,6 +302,7 @@ impl<'a> Grader<'a> {
             unchecked_outputs,
             ungraded_gates,
             threads: 0,
+            progress: None,
         })
     }
 
@@ -307,6 +310,12 @@ impl<'a> Grader<'a> {
     /// matrices and compactions are the same for every value.
     pub fn set_threads(&mut self, threads: usize) {
         self.threads = threads;
+    }
+
+    /// Reports grading progress to `progress`: it is called with the number of fault classes
+    /// just settled, adding up to [`FaultList::collapsed`] per grading run.
+    pub fn set_progress(&mut self, progress: crate::gates::fault::Progress<'a>) {
+        self.progress = Some(progress);
     }
 
     /// The netlist as graded: only the outputs the spec checks and the gates feeding them.
@@ -409,15 +418,14 @@ impl<'a> Grader<'a> {
     /// model was not the reference (see [`Grader::fault_free_disagreements`]).
     pub fn grade_against_netlist(&self, vectors: &[Inputs]) -> Result<Box<FaultReport>> {
         let patterns = self.patterns(vectors)?;
-        let mut report = grade_with(
-            &self.netlist,
-            &self.faults,
-            &patterns,
-            &GradeOptions {
-                threads: self.threads,
-                ..GradeOptions::default()
-            },
-        )?;
+        let options = GradeOptions {
+            threads: self.threads,
+            ..GradeOptions::default()
+        };
+        let mut report = match self.progress {
+            Some(p) => grade_with_progress(&self.netlist, &self.faults, &patterns, &options, p)?,
+            None => grade_with(&self.netlist, &self.faults, &patterns, &options)?,
+        };
         report.unchecked_outputs = self.unchecked_outputs.clone();
         report.ungraded_gates = self.ungraded_gates;
         Ok(Box::new(report))

@@ -13,6 +13,7 @@ mod machine_output;
 mod merge;
 mod options;
 mod plain_words;
+mod plurals;
 mod repro;
 mod select;
 mod select_switch;

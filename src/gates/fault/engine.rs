@@ -304,7 +304,14 @@ pub(super) fn for_each_block(total: usize, lanes: usize, mut f: impl FnMut(usize
 pub fn grade(netlist: &Netlist, patterns: &PatternSet) -> Result<FaultReport> {
     let topo = Topology::new(netlist);
     let faults = FaultList::with_topology(netlist, &topo);
-    grade_inner(netlist, &topo, &faults, patterns, &GradeOptions::default())
+    grade_inner(
+        netlist,
+        &topo,
+        &faults,
+        patterns,
+        &GradeOptions::default(),
+        None,
+    )
 }
 
 /// Grades `patterns` against the collapsed faults of `faults` (made by [`FaultList::new`]
@@ -321,7 +328,24 @@ pub fn grade_with(
     options: &GradeOptions,
 ) -> Result<FaultReport> {
     let topo = Topology::new(netlist);
-    grade_inner(netlist, &topo, faults, patterns, options)
+    grade_inner(netlist, &topo, faults, patterns, options, None)
+}
+
+/// Progress of a fault simulation: called (from the simulating threads) with the number of
+/// fault classes just settled; the calls add up to [`FaultList::collapsed`].
+pub type Progress<'p> = &'p (dyn Fn(u64) + Sync);
+
+/// [`grade_with`], reporting each fault class as it is settled (detected, or through every
+/// vector undetected) to `progress`, for a progress bar.
+pub fn grade_with_progress(
+    netlist: &Netlist,
+    faults: &FaultList,
+    patterns: &PatternSet,
+    options: &GradeOptions,
+    progress: Progress<'_>,
+) -> Result<FaultReport> {
+    let topo = Topology::new(netlist);
+    grade_inner(netlist, &topo, faults, patterns, options, Some(progress))
 }
 
 pub(super) fn grade_inner(
@@ -330,6 +354,7 @@ pub(super) fn grade_inner(
     faults: &FaultList,
     patterns: &PatternSet,
     options: &GradeOptions,
+    progress: Option<Progress<'_>>,
 ) -> Result<FaultReport> {
     faults.check(nl)?;
     patterns.check(nl)?;
@@ -338,7 +363,7 @@ pub(super) fn grade_inner(
     // Each class's first detection depends on nothing but its own fault, so the classes are
     // split between threads and the results are the same on any thread count.
     let first: Vec<Option<usize>> = split_classes(classes, options.threads, |range| {
-        first_detections(nl, topo, faults, patterns, options.mode, range)
+        first_detections(nl, topo, faults, patterns, options.mode, range, progress)
     })
     .concat();
     let remaining: Vec<usize> = (0..classes).filter(|&c| first[c].is_none()).collect();
@@ -427,7 +452,13 @@ fn first_detections(
     patterns: &PatternSet,
     mode: SimulationMode,
     range: std::ops::Range<usize>,
+    progress: Option<Progress<'_>>,
 ) -> Vec<Option<usize>> {
+    let settled = |n: usize| {
+        if let (Some(p), true) = (progress, n > 0) {
+            p(n as u64);
+        }
+    };
     let lanes = mode.lanes();
     let classes = faults.collapsed();
     let offset = range.start;
@@ -444,6 +475,7 @@ fn first_detections(
         if use_wide {
             wide.fill(chunk);
         }
+        let before = remaining.len();
         remaining.retain(|&c| {
             let rep = faults.representative(c);
             let cone = cones.get(&mut engine, c, rep.site);
@@ -468,8 +500,10 @@ fn first_detections(
             }
             true
         });
+        settled(before - remaining.len());
         !remaining.is_empty()
     });
+    settled(remaining.len());
 
     first
 }

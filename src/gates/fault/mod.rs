@@ -37,7 +37,7 @@ mod matrix;
 mod transition;
 mod wide;
 use engine::*;
-pub use engine::{grade, grade_with};
+pub use engine::{grade, grade_with, grade_with_progress, Progress};
 pub(crate) use matrix::detection_matrix_on;
 pub use matrix::{compact, detection_matrix, DetectionMatrix};
 pub use transition::{
