@@ -78,7 +78,8 @@ pub struct GradeArgs {
     /// it or a proof that none exists; with --out, write the set plus the new vectors there.
     #[arg(long)]
     top_up: bool,
-    /// Conflicts the SAT solver may spend on one fault before --top-up calls it aborted.
+    /// Conflict budget per fault for --top-up: the solver checks it between propagations and
+    /// stops at the first check past it (the fault is then aborted; the report gives the spent count).
     #[arg(long, value_name = "N", default_value_t = 20_000, requires = "top_up",
           value_parser = clap::value_parser!(u64).range(1..))]
     conflicts: u64,
@@ -761,8 +762,14 @@ fn write_top_up_text(
 ) -> Result<(), Error> {
     writeln!(
         o,
-        "test top-up (SAT fault miter per undetected fault, at most {} conflicts each):",
-        t.conflict_budget
+        "test top-up (SAT fault miter per undetected fault; budget {} conflicts per fault; the \
+         solver stops at the first check past it; spent: {} conflicts in all, {} on {} aborted \
+         fault{}):",
+        t.conflict_budget,
+        t.conflicts_spent,
+        t.aborted_conflicts_spent,
+        t.aborted,
+        if t.aborted == 1 { "" } else { "s" }
     )
     .map_err(stdout_error)?;
     let rows = vec![[
@@ -810,8 +817,10 @@ fn write_top_up_text(
                         method.split(':').next().unwrap_or(method)
                     )
                 }
-                TopUpStatus::Aborted { conflicts, .. } => {
-                    format!("aborted after {conflicts} conflicts: nothing claimed")
+                TopUpStatus::Aborted { conflicts, budget } => {
+                    format!(
+                        "aborted (budget {budget}, spent {conflicts} conflicts): nothing claimed"
+                    )
                 }
             };
             [
