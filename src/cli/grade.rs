@@ -10,7 +10,7 @@ use serde::Serialize;
 use arithvec::{
     render_grade_html, write_selection, write_topped_up, BuiltinModel, CompactedSet, Error,
     FaultEntry, FaultReport, GradeFault, GradeOutcome, GradeSummary, Grader, Netlist,
-    NetlistReference, Problem, Redundancy, TopUpReport, TopUpStatus, VectorSet,
+    NetlistReference, Problem, Redundancy, TopUpReport, TopUpStatus, TopUpSummary, VectorSet,
 };
 
 use crate::cli::check::open_vectors;
@@ -238,6 +238,7 @@ fn grade_summary(
         ungraded_gates: report.ungraded_gates,
         require: args.require,
         compacted,
+        top_up: None,
         netlist_reference: None,
     }
 }
@@ -744,6 +745,31 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
     if let Some(path) = &args.html {
         let mut summary = grade_summary(&report, &args, manifest.seed, compacted);
         summary.netlist_reference = netlist_reference;
+        summary.top_up = top_up.as_ref().map(|t| TopUpSummary {
+            vectors_before: t.vectors_before,
+            collapsed: t.collapsed,
+            detected_by_set: t.detected_before,
+            detected_by_top_up: t
+                .faults
+                .iter()
+                .filter(|f| matches!(f.top_up, TopUpStatus::Detected { .. }))
+                .count(),
+            proven_redundant_exhaustive: t.proven_redundant_exhaustive,
+            proven_redundant_sat: t.proven_redundant_sat,
+            aborted: t.aborted,
+            conflict_budget: t.conflict_budget,
+            conflicts_spent: t.conflicts_spent,
+            aborted_conflicts_spent: t.aborted_conflicts_spent,
+            coverage_percent: t.coverage_percent,
+            testable_coverage_percent: t.testable_coverage_percent,
+            vectors: t
+                .added
+                .iter()
+                .enumerate()
+                .map(|(i, v)| (i, v.fault.clone(), v.method.clone()))
+                .collect(),
+            out: args.out.as_ref().map(|d| d.display().to_string()),
+        });
         write_output(path, render_grade_html(&spec, &summary).as_bytes())?;
     }
     o.flush().map_err(stdout_error)?;
