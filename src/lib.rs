@@ -114,7 +114,7 @@ pub use verdict::coverage::{
 };
 pub use verdict::html::{
     render_check_html, render_grade_html, CompactedSet, GradeFault, GradeSummary, HtmlContext,
-    HtmlRun, NetlistReference, HTML_FAILURES,
+    HtmlRun, NetlistReference, TopUpSummary, HTML_FAILURES,
 };
 pub use verdict::report::{render_junit, render_junit_timed, render_text, verdict_line, ClassRows};
 pub use verdict::seen::{RunRecord, SeenIndices, SetIdentity};

@@ -465,3 +465,110 @@ fn issue12_a_million_vectors_with_ten_thousand_failures_stay_under_5_mb() {
     );
     assert_clean_page(&html);
 }
+
+/// `grade --top-up --html`: the page has a top-up section whose outcome counts, coverage
+/// figures and vector table are the ones `--format json` reports for the same run (the
+/// 24-bit offset-binary subtractor whose set misses faults on the zero detector).
+#[test]
+fn grade_page_shows_the_top_up_results() {
+    let have_yosys = Command::new("yosys")
+        .arg("-V")
+        .output()
+        .is_ok_and(|o| o.status.success());
+    if !have_yosys {
+        return;
+    }
+    let dir = tempfile::tempdir().expect("temp dir");
+    let hdl = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/hdl");
+    fs::copy(
+        hdl.join("specs/behav_offset_sub.toml"),
+        dir.path().join("unit.toml"),
+    )
+    .unwrap();
+    let y = Command::new("yosys")
+        .current_dir(dir.path())
+        .args([
+            "-q",
+            "-p",
+            &format!(
+                "read_verilog {}; synth -flatten -top behav_offset_sub; abc -g \
+                 AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json sub.json",
+                hdl.join("behav/behav_offset_sub.v").display()
+            ),
+        ])
+        .output()
+        .expect("yosys");
+    assert!(y.status.success(), "{}", String::from_utf8_lossy(&y.stderr));
+    let g = run(dir.path(), &["gen", "unit.toml", "--out", "vec"]);
+    assert_eq!(g.code, 0, "{}{}", g.stdout, g.stderr);
+    let g = run(
+        dir.path(),
+        &[
+            "grade",
+            "unit.toml",
+            "--vectors",
+            "vec",
+            "--netlist",
+            "sub.json",
+            "--top-up",
+            "--out",
+            "vec2",
+            "--html",
+            "grade.html",
+            "--format",
+            "json",
+        ],
+    );
+    assert_eq!(g.code, 0, "{}{}", g.stdout, g.stderr);
+    let doc: serde_json::Value = serde_json::from_str(&g.stdout).unwrap();
+    let t = &doc["top_up"];
+    let added = t["added_vectors"].as_array().unwrap();
+    assert!(!added.is_empty(), "{t}");
+    let html = fs::read_to_string(dir.path().join("grade.html")).unwrap();
+    assert_clean_page(&html);
+    let page = parse(&html);
+    let cells = |css: &str| -> Vec<Vec<String>> {
+        select(&page, css)
+            .iter()
+            .map(|row| {
+                row.select(&scraper::Selector::parse("td").unwrap())
+                    .map(|c| c.text().collect::<String>().trim().to_string())
+                    .collect()
+            })
+            .collect()
+    };
+    let counts = cells("table.topup tbody tr");
+    assert_eq!(counts.len(), 1);
+    let c = &counts[0];
+    let n = |k: &str| t[k].as_u64().unwrap().to_string();
+    let by_top_up = t["faults"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|f| f["top_up"]["status"] == "detected")
+        .count();
+    assert_eq!(c[0], n("collapsed"));
+    assert_eq!(c[1], n("detected_before"));
+    assert_eq!(c[2], by_top_up.to_string());
+    assert_eq!(
+        t["detected"].as_u64().unwrap(),
+        t["detected_before"].as_u64().unwrap() + by_top_up as u64
+    );
+    assert!(c[3].starts_with(&n("proven_redundant")), "{c:?}");
+    assert_eq!(c[4], n("aborted"));
+    assert!(c[5].ends_with(&format!("{:.2}%", t["coverage_percent"].as_f64().unwrap())));
+    assert!(c[6].ends_with("100.00%"), "{c:?}");
+    // One row per added vector: its index in the written set, the fault and the method.
+    let rows = cells("table.topup-vectors tbody tr");
+    assert_eq!(rows.len(), added.len());
+    let before = t["vectors_before"].as_u64().unwrap();
+    for (i, (row, v)) in rows.iter().zip(added).enumerate() {
+        assert_eq!(row[0], (before + i as u64).to_string());
+        assert_eq!(row[1], v["fault"].as_str().unwrap());
+        assert_eq!(row[2], v["method"].as_str().unwrap());
+    }
+    let text: String = page.root_element().text().collect();
+    assert!(text.contains("Test top-up"));
+    assert!(text.contains("vec2"));
+    assert!(text.contains("the solver stops at the first check past it"));
+}

@@ -10,7 +10,7 @@ use serde::Serialize;
 use arithvec::{
     render_grade_html, write_selection, write_topped_up, BuiltinModel, CompactedSet, Error,
     FaultEntry, FaultReport, GradeFault, GradeOutcome, GradeSummary, Grader, Netlist,
-    NetlistReference, Problem, Redundancy, TopUpReport, TopUpStatus, VectorSet,
+    NetlistReference, Problem, Redundancy, TopUpReport, TopUpStatus, TopUpSummary, VectorSet,
 };
 
 use crate::cli::check::open_vectors;
@@ -78,7 +78,8 @@ pub struct GradeArgs {
     /// it or a proof that none exists; with --out, write the set plus the new vectors there.
     #[arg(long)]
     top_up: bool,
-    /// Conflicts the SAT solver may spend on one fault before --top-up calls it aborted.
+    /// Conflict budget per fault for --top-up: the solver checks it between propagations and
+    /// stops at the first check past it (the fault is then aborted; the report gives the spent count).
     #[arg(long, value_name = "N", default_value_t = 20_000, requires = "top_up",
           value_parser = clap::value_parser!(u64).range(1..))]
     conflicts: u64,
@@ -237,6 +238,7 @@ fn grade_summary(
         ungraded_gates: report.ungraded_gates,
         require: args.require,
         compacted,
+        top_up: None,
         netlist_reference: None,
     }
 }
@@ -768,6 +770,31 @@ pub fn grade(args: GradeArgs, quiet: bool) -> Result<Outcome, Error> {
     if let Some(path) = &args.html {
         let mut summary = grade_summary(&report, &args, manifest.seed, compacted);
         summary.netlist_reference = netlist_reference;
+        summary.top_up = top_up.as_ref().map(|t| TopUpSummary {
+            vectors_before: t.vectors_before,
+            collapsed: t.collapsed,
+            detected_by_set: t.detected_before,
+            detected_by_top_up: t
+                .faults
+                .iter()
+                .filter(|f| matches!(f.top_up, TopUpStatus::Detected { .. }))
+                .count(),
+            proven_redundant_exhaustive: t.proven_redundant_exhaustive,
+            proven_redundant_sat: t.proven_redundant_sat,
+            aborted: t.aborted,
+            conflict_budget: t.conflict_budget,
+            conflicts_spent: t.conflicts_spent,
+            aborted_conflicts_spent: t.aborted_conflicts_spent,
+            coverage_percent: t.coverage_percent,
+            testable_coverage_percent: t.testable_coverage_percent,
+            vectors: t
+                .added
+                .iter()
+                .enumerate()
+                .map(|(i, v)| (i, v.fault.clone(), v.method.clone()))
+                .collect(),
+            out: args.out.as_ref().map(|d| d.display().to_string()),
+        });
         write_output(path, render_grade_html(&spec, &summary).as_bytes())?;
     }
     o.flush().map_err(stdout_error)?;
@@ -786,8 +813,14 @@ fn write_top_up_text(
 ) -> Result<(), Error> {
     writeln!(
         o,
-        "test top-up (SAT fault miter per undetected fault, at most {} conflicts each):",
-        t.conflict_budget
+        "test top-up (SAT fault miter per undetected fault; budget {} conflicts per fault; the \
+         solver stops at the first check past it; spent: {} conflicts in all, {} on {} aborted \
+         fault{}):",
+        t.conflict_budget,
+        t.conflicts_spent,
+        t.aborted_conflicts_spent,
+        t.aborted,
+        if t.aborted == 1 { "" } else { "s" }
     )
     .map_err(stdout_error)?;
     let rows = vec![[
@@ -835,8 +868,10 @@ fn write_top_up_text(
                         method.split(':').next().unwrap_or(method)
                     )
                 }
-                TopUpStatus::Aborted { conflicts, .. } => {
-                    format!("aborted after {conflicts} conflicts: nothing claimed")
+                TopUpStatus::Aborted { conflicts, budget } => {
+                    format!(
+                        "aborted (budget {budget}, spent {conflicts} conflicts): nothing claimed"
+                    )
                 }
             };
             [

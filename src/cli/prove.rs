@@ -49,7 +49,8 @@ pub struct ProveArgs {
     /// Module of --reference (default: the same module name as the netlist's).
     #[arg(long, value_name = "NAME", requires = "reference")]
     reference_module: Option<String>,
-    /// Conflicts the SAT solver may spend before the answer is "unknown".
+    /// Conflict budget: the solver checks it between propagations and stops at the first check
+    /// past it; the answer is then "unknown" with the conflicts spent.
     #[arg(long, value_name = "N", default_value_t = 1_000_000,
           value_parser = clap::value_parser!(u64).range(1..))]
     conflicts: u64,
@@ -195,8 +196,8 @@ fn write_text(
         ProveVerdict::Unknown => w(
             o,
             format!(
-                "UNKNOWN: the conflict budget ({}) ran out after {} conflicts; nothing was proved \
-                 and no counterexample was found",
+                "UNKNOWN: budget {} conflicts; the solver stops at the first check past it; \
+                 spent: {} conflicts; nothing was proved and no counterexample was found",
                 r.conflict_budget, r.conflicts
             ),
         )?,

@@ -120,6 +120,41 @@ pub struct GradeSummary {
     /// Set when the run graded against the netlist's own fault-free responses
     /// (`--reference netlist`) rather than the golden model.
     pub netlist_reference: Option<NetlistReference>,
+    /// Test top-up's results, when `--top-up` ran.
+    pub top_up: Option<TopUpSummary>,
+}
+
+/// What `grade --top-up` found, as the page shows it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TopUpSummary {
+    /// Vectors in the graded set.
+    pub vectors_before: usize,
+    /// Collapsed faults.
+    pub collapsed: usize,
+    /// Collapsed faults the graded set detects.
+    pub detected_by_set: usize,
+    /// Collapsed faults detected only by a top-up vector.
+    pub detected_by_top_up: usize,
+    /// Proven redundant by exhaustive simulation.
+    pub proven_redundant_exhaustive: usize,
+    /// Proven redundant by SAT.
+    pub proven_redundant_sat: usize,
+    /// Undecided: the budget ran out.
+    pub aborted: usize,
+    /// Conflict budget per fault.
+    pub conflict_budget: u64,
+    /// Conflicts the solver spent in all.
+    pub conflicts_spent: u64,
+    /// Of those, on aborted faults.
+    pub aborted_conflicts_spent: u64,
+    /// detected / collapsed x 100, after top-up.
+    pub coverage_percent: f64,
+    /// detected / (collapsed - proven redundant) x 100, after top-up.
+    pub testable_coverage_percent: f64,
+    /// The added vectors: (index among the added, the fault it was made for, method).
+    pub vectors: Vec<(usize, String, String)>,
+    /// Where the set plus the added vectors was written, if anywhere.
+    pub out: Option<String>,
 }
 
 /// What a page graded against the netlist's own responses shows about that choice.
@@ -1148,6 +1183,46 @@ pub fn render_grade_html(spec: &Spec, g: &GradeSummary) -> String {
                 } }
             }
             @if g.undetected.len() > 200 { p { "\u{2026} and " (g.undetected.len() - 200) " more (see --format json)." } }
+        }
+        h2 { "Test top-up" }
+        @match &g.top_up {
+            Some(t) => {
+                p { "SAT fault miter per fault the set leaves undetected; budget " (t.conflict_budget)
+                    " conflicts per fault; the solver stops at the first check past it; spent: "
+                    (t.conflicts_spent) " conflicts in all, " (t.aborted_conflicts_spent) " on aborted faults." }
+                table.topup {
+                    thead { tr {
+                        th.n { "collapsed" } th.n { "detected by set" } th.n { "detected by top-up vector" }
+                        th.n { "proven redundant" } th.n { "aborted" } th { "coverage" } th { "testable coverage" }
+                    } }
+                    tbody { tr {
+                        td.n { (t.collapsed) } td.n { (t.detected_by_set) } td.n { (t.detected_by_top_up) }
+                        td.n { (t.proven_redundant_exhaustive + t.proven_redundant_sat) " ("
+                            (t.proven_redundant_exhaustive) " exhaustive, " (t.proven_redundant_sat) " SAT)" }
+                        td.n.bad[t.aborted > 0] { (t.aborted) }
+                        td { (percent_bar(t.coverage_percent)) " " (format!("{:.2}", t.coverage_percent)) "%" }
+                        td { (percent_bar(t.testable_coverage_percent)) " " (format!("{:.2}", t.testable_coverage_percent)) "%" }
+                    } }
+                }
+                p { "Testable coverage is detected / (collapsed - proven redundant). An aborted fault is undecided: nothing is claimed about it." }
+                h3 { "Top-up vectors" }
+                @if t.vectors.is_empty() {
+                    p { "None added." }
+                } @else {
+                    table.topup-vectors {
+                        thead { tr { th.n { "index" } th { "fault" } th { "method" } } }
+                        tbody { @for (i, fault, method) in t.vectors.iter().take(500) {
+                            tr { td.n { (t.vectors_before + i) } td.mono { (fault) } td { (method) } }
+                        } }
+                    }
+                    @if t.vectors.len() > 500 { p { "\u{2026} and " (t.vectors.len() - 500) " more (see --format json)." } }
+                }
+                @match &t.out {
+                    Some(d) => { p { "Wrote the set plus " (t.vectors.len()) " top-up vectors to " span.mono { (d) } "." } },
+                    None => { p { "No --out given: nothing written." } },
+                }
+            },
+            None => { p { "Not run (pass --top-up)." } },
         }
         h2 { "Compacted set" }
         @match &g.compacted {

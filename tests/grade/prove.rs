@@ -261,4 +261,9 @@ fn a_multiplier_beyond_the_budget_ends_unknown_within_it() {
     text.expect_code(3);
     text.expect_stdout("UNKNOWN");
     text.expect_stdout("nothing was proved");
+    // The budget is worded as the limit the solver checks, with the real spent count.
+    text.expect_stdout(&format!(
+        "budget 3000 conflicts; the solver stops at the first check past it; spent: {spent} conflicts"
+    ));
+    assert!(!text.stdout.contains("at most"), "{}", text.stdout);
 }

@@ -480,6 +480,7 @@ fn a_spent_budget_is_reported_as_aborted() {
     let budget = 300;
     let t = grader.top_up(&vectors, &report, budget).expect("top-up");
     assert!(t.aborted > 0, "{t:?}");
+    let mut aborted_spent = 0;
     for f in &t.faults {
         if let TopUpStatus::Aborted {
             conflicts,
@@ -487,6 +488,13 @@ fn a_spent_budget_is_reported_as_aborted() {
         } = f.top_up
         {
             assert_eq!(b, budget);
+            // The reported figure is the solver's own count: the same miter solved again
+            // (batsat is deterministic) spends exactly that many.
+            let again =
+                arithvec::fault_miter(&nl, grader.faults().representative(f.fault.class), budget);
+            assert_eq!(again.answer, arithvec::Answer::Unknown);
+            assert_eq!(again.conflicts, conflicts, "{f:?}");
+            aborted_spent += conflicts;
             // The solver stops at its next budget check once the budget's learnt clauses are
             // counted; conflicts that learn only a unit clause are not in that count, so
             // the solver's own figure may run a little past it.
@@ -502,4 +510,77 @@ fn a_spent_budget_is_reported_as_aborted() {
         "every fault is detected, proven redundant or aborted"
     );
     assert!(t.testable_coverage_percent < 100.0);
+    assert_eq!(t.aborted_conflicts_spent, aborted_spent);
+    assert!(t.conflicts_spent >= aborted_spent);
+}
+
+/// An 8 x 8 multiplier's faults with a budget of one conflict: most solves stop at the first
+/// budget check, some past it. The report gives the solver's spent counts (per aborted fault
+/// and in total, in JSON and text) and words the budget as the limit the solver checks; it
+/// never claims "at most" the budget.
+#[test]
+fn top_up_reports_the_conflicts_spent_past_the_budget() {
+    if !have("yosys") {
+        return;
+    }
+    let sb = Sandbox::new();
+    let spec = sb.write(
+        "mul.toml",
+        "name = \"lantern_mul\"\noperation = \"mul\"\nwidth = 8\nencoding = \"unsigned\"\n\n\
+         [ports]\na = \"a\"\nb = \"b\"\nresult = \"p\"\n\n[dut]\nmodule = \"behav_mul\"\n\
+         parameters = { W = 8, SIGNED = 0 }\n",
+    );
+    let rtl = hdl("behav/behav_mul.v").display().to_string();
+    sb.tool(
+        "yosys",
+        &[
+            "-q",
+            "-p",
+            &format!(
+                "read_verilog {rtl}; chparam -set W 8 -set SIGNED 0 behav_mul; synth -flatten \
+                 -top behav_mul; abc -g AND,NAND,OR,NOR,XOR,XNOR,MUX; opt_clean; write_json mul.json"
+            ),
+        ],
+    );
+    sb.gen(&spec, "vec", &["--count", "0"]).expect_code(0);
+    let args = [
+        "grade",
+        spec.as_str(),
+        "--vectors",
+        "vec",
+        "--netlist",
+        "mul.json",
+        "--top-up",
+        "--conflicts",
+        "1",
+    ];
+    let mut json_args = args.to_vec();
+    json_args.extend(["--format", "json"]);
+    let run = sb.run(&json_args);
+    let doc = run.json();
+    let t = &doc["top_up"];
+    assert_eq!(t["conflict_budget"], 1);
+    let aborted: Vec<u64> = t["faults"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|f| f["top_up"]["status"] == "aborted")
+        .map(|f| f["top_up"]["conflicts"].as_u64().unwrap())
+        .collect();
+    assert_eq!(aborted.len() as u64, t["aborted"].as_u64().unwrap());
+    assert!(!aborted.is_empty(), "{t}");
+    // Some solves run past the budget before the solver's check stops them.
+    assert!(aborted.iter().any(|&c| c > 1), "{aborted:?}");
+    let sum: u64 = aborted.iter().sum();
+    assert_eq!(t["aborted_conflicts_spent"].as_u64().unwrap(), sum);
+    let total = t["conflicts_spent"].as_u64().unwrap();
+    assert!(total >= sum);
+    let text = sb.run(&args);
+    text.expect_stdout(&format!(
+        "budget 1 conflicts per fault; the solver stops at the first check past it; spent: \
+         {total} conflicts in all, {sum} on {} aborted faults",
+        aborted.len()
+    ));
+    text.expect_stdout("aborted (budget 1, spent ");
+    assert!(!text.stdout.contains("at most"), "{}", text.stdout);
 }

@@ -48,7 +48,8 @@ pub enum TopUpStatus {
     },
     /// The conflict budget ran out before SAT decided: nothing is claimed.
     Aborted {
-        /// Conflicts spent.
+        /// Conflicts the solver spent (its own count; may pass the budget, which it checks
+        /// between propagations).
         conflicts: u64,
         /// The per-fault budget.
         budget: u64,
@@ -86,8 +87,13 @@ pub struct TopUpReport {
     pub proven_redundant_sat: usize,
     /// Undetected and undecided: the budget ran out.
     pub aborted: usize,
-    /// Conflict budget per fault.
+    /// Conflict budget per fault: a limit the solver checks between propagations, so a
+    /// solve stops at the first check past it and may spend a few conflicts more.
     pub conflict_budget: u64,
+    /// Conflicts the solver actually spent, over every fault's solve (its own count).
+    pub conflicts_spent: u64,
+    /// Of those, conflicts spent on the faults left aborted.
+    pub aborted_conflicts_spent: u64,
     /// detected / collapsed x 100.
     pub coverage_percent: f64,
     /// detected / (collapsed - proven redundant) x 100 (100 when nothing is testable).
@@ -130,16 +136,27 @@ impl Grader<'_> {
         class: usize,
         conflict_budget: u64,
     ) -> std::result::Result<Option<Inputs>, u64> {
+        self.sat_test_spent(class, conflict_budget).0
+    }
+
+    /// [`Grader::sat_test`] with the conflicts the solver spent (its own count), whatever
+    /// the answer.
+    pub fn sat_test_spent(
+        &self,
+        class: usize,
+        conflict_budget: u64,
+    ) -> (std::result::Result<Option<Inputs>, u64>, u64) {
         let solved = fault_miter(
             &self.netlist,
             self.faults.representative(class),
             conflict_budget,
         );
-        match solved.answer {
+        let r = match solved.answer {
             Answer::Sat(bits) => Ok(Some(self.inputs_of(&bits))),
             Answer::Unsat => Ok(None),
             Answer::Unknown => Err(solved.conflicts),
-        }
+        };
+        (r, solved.conflicts)
     }
 
     /// Tops up `vectors`, whose grade is `report`, with SAT vectors for the faults it left
@@ -169,12 +186,15 @@ impl Grader<'_> {
         let model = Model::new(self.spec);
         let mut added = Vec::new();
         let mut added_inputs: Vec<Inputs> = Vec::new();
+        let mut conflicts_spent = 0u64;
         for k in 0..open.len() {
             if open[k].1.is_some() {
                 continue;
             }
             let class = open[k].0.class;
-            let status = match self.sat_test(class, conflict_budget) {
+            let (result, spent) = self.sat_test_spent(class, conflict_budget);
+            conflicts_spent += spent;
+            let status = match result {
                 Err(conflicts) => TopUpStatus::Aborted {
                     conflicts,
                     budget: conflict_budget,
@@ -284,6 +304,13 @@ impl Grader<'_> {
             .iter()
             .filter(|f| matches!(f.top_up, TopUpStatus::Aborted { .. }))
             .count();
+        let aborted_conflicts_spent = faults
+            .iter()
+            .map(|f| match f.top_up {
+                TopUpStatus::Aborted { conflicts, .. } => conflicts,
+                _ => 0,
+            })
+            .sum();
         let proven = exhaustive + sat_redundant;
         let collapsed = report.collapsed;
         let pct = |n: usize, d: usize| {
@@ -304,6 +331,8 @@ impl Grader<'_> {
             proven_redundant_sat: sat_redundant,
             aborted,
             conflict_budget,
+            conflicts_spent,
+            aborted_conflicts_spent,
             coverage_percent: pct(regrade.detected, collapsed),
             testable_coverage_percent: pct(regrade.detected, collapsed - proven),
             faults,
